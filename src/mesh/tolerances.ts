@@ -1,0 +1,46 @@
+/**
+ * Every numeric tolerance of tanframe, in one place. Each says what it measures and
+ * where the value comes from.
+ */
+
+/**
+ * Degenerate-UV test: a triangle is degenerate when |det| <= UV_DEGENERATE_RELATIVE *
+ * (|e1_uv|^2 + |e2_uv|^2), det being twice its signed UV area. This is the sine of the
+ * smallest UV corner angle scale: 1e-7 flags collinear / coincident UVs while keeping thin
+ * slivers that still have a direction. Common practice, no single source.
+ */
+export const UV_DEGENERATE_RELATIVE = 1e-7;
+
+/**
+ * The standard method's own zero test for areas and lengths: |x| > FLT_MIN counts as
+ * non-zero (the reference implementation's `NotZero`; from memory of that code).
+ */
+export const MIKK_NOT_ZERO = 1.1754943508222875e-38;
+
+/**
+ * Geometry-degenerate test: a triangle whose |cross(e1,e2)| <= GEOMETRY_DEGENERATE_RELATIVE *
+ * (|e1|^2 + |e2|^2) has no usable area (collinear or coincident corners). Common practice.
+ */
+export const GEOMETRY_DEGENERATE_RELATIVE = 1e-10;
+
+/**
+ * Unit-length tolerance for stored NORMAL and TANGENT xyz: | |v| - 1 | beyond this is
+ * non-unit. The glTF validator's own threshold is 0.00005 on the length (from memory);
+ * we allow a little more for quantized input. Common practice.
+ */
+export const UNIT_LENGTH_TOLERANCE = 5e-4;
+
+/** Below this length a vector counts as zero and is not normalised (float32 scale). */
+export const ZERO_LENGTH = 1e-20;
+
+/**
+ * A stored tangent counts as orthogonal to its normal when |dot(n, t)| <= this (cosine),
+ * about 0.6 degrees off 90. Common practice.
+ */
+export const ORTHOGONAL_COSINE_TOLERANCE = 1e-2;
+
+/** Default angle (degrees) beyond which a stored tangent counts as mismatched (DESIGN.md). */
+export const DEFAULT_TANGENT_MISMATCH_DEG = 1;
+
+/** Default smoothing angle (degrees) for `--normals smooth`. Common practice. */
+export const DEFAULT_SMOOTH_ANGLE_DEG = 60;
