@@ -1,0 +1,78 @@
+/**
+ * Based on: the library contract in DESIGN.md; dispatches to the MikkTSpace method (Mikkelsen
+ * 2008) or Lengyel's method (2001) and re-indexes so vertices split only where frames differ.
+ */
+import { assert } from '../mesh/errors.js';
+import type { FrameInput, FrameOptions, FrameResult } from '../mesh/types.js';
+import { computeLengyelTangents } from './lengyel.js';
+import { computeMikktspaceCorners } from './mikktspace.js';
+import { splitByCornerFrames } from './split.js';
+
+/**
+ * Computes tangent frames for a triangle mesh.
+ * Returns tangents (4 floats per output vertex, xyz unit, w = +1 | -1), a triangle list over
+ * the output vertices and, per output vertex, the input vertex it copies. `mikktspace`
+ * (default) splits a vertex where its corners' frames differ (mirror seams); `lengyel` gives
+ * one frame per input vertex and never splits. `uvOrigin` defaults to 'top-left' (glTF);
+ * frames are solved with v measured upward either way. Degenerate input never throws: it
+ * gets the documented fallback and is counted in `stats`.
+ * Preconditions: positions and normals hold 3 floats per vertex and uvs 2, for the same
+ * vertex count; indices (if given) are a multiple of 3 and below that count; faces (if given)
+ * hold one entry per triangle.
+ */
+export function computeFrames(input: FrameInput, options: FrameOptions = {}): FrameResult {
+  const { positions, normals, uvs } = input;
+  const method = options.method ?? 'mikktspace';
+  const uvOrigin = options.uvOrigin ?? 'top-left';
+  const weight = options.weight ?? 'derivative';
+  assert(method === 'mikktspace' || method === 'lengyel', `unknown method ${String(method)}`);
+  assert(uvOrigin === 'top-left' || uvOrigin === 'bottom-left', `unknown uvOrigin ${String(uvOrigin)}`);
+  assert(positions.length % 3 === 0, 'positions must hold 3 floats per vertex');
+  const vertexCount = positions.length / 3;
+  assert(normals.length === vertexCount * 3, 'normals must hold 3 floats per vertex');
+  assert(uvs.length === vertexCount * 2, 'uvs must hold 2 floats per vertex');
+  let indices = input.indices ?? null;
+  if (!indices) {
+    assert(vertexCount % 3 === 0, 'a non-indexed mesh needs a multiple of 3 vertices');
+    indices = new Uint32Array(vertexCount);
+    for (let i = 0; i < vertexCount; i++) indices[i] = i;
+  }
+  assert(indices.length % 3 === 0, 'indices must be a multiple of 3');
+  for (let i = 0; i < indices.length; i++) assert(indices[i] < vertexCount, `index ${indices[i]} out of range`);
+  const triangleCount = indices.length / 3;
+  const faces = input.faces ?? null;
+  assert(!faces || faces.length === triangleCount, 'faces must hold one entry per triangle');
+  const vSign = uvOrigin === 'bottom-left' ? 1 : -1;
+
+  if (method === 'lengyel') {
+    const tangents = new Float32Array(vertexCount * 4);
+    const s = computeLengyelTangents(tangents, indices, positions, normals, uvs, vSign, weight, triangleCount, vertexCount);
+    const sourceVertex = new Uint32Array(vertexCount);
+    for (let v = 0; v < vertexCount; v++) sourceVertex[v] = v;
+    return {
+      tangents,
+      indices: indices.slice(),
+      sourceVertex,
+      stats: {
+        degenerateUvTriangles: s.degenerateUvTriangles,
+        mirroredTriangles: s.mirroredTriangles,
+        splitVertices: 0,
+        fallbackTangents: s.fallbackTangents,
+      },
+    };
+  }
+  const corners = new Float32Array(triangleCount * 12);
+  const s = computeMikktspaceCorners(corners, indices, positions, normals, uvs, faces, vSign, triangleCount, vertexCount);
+  const split = splitByCornerFrames(corners, indices, normals, vertexCount);
+  return {
+    tangents: split.tangents,
+    indices: split.indices,
+    sourceVertex: split.sourceVertex,
+    stats: {
+      degenerateUvTriangles: s.degenerateUvTriangles,
+      mirroredTriangles: s.mirroredTriangles,
+      splitVertices: split.sourceVertex.length - vertexCount,
+      fallbackTangents: s.fallbackCorners,
+    },
+  };
+}

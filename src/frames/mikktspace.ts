@@ -1,0 +1,309 @@
+/**
+ * Based on: M. Mikkelsen, "Simulation of Wrinkled Surfaces Revisited" (MSc thesis, University
+ * of Copenhagen, 2008), the MikkTSpace method that glTF 2.0 names for generated tangents.
+ * Follows the steps in METHODS.md: welding, per-triangle first-order derivatives, degenerate
+ * triangles set aside, groups at each welded vertex connected through shared edges with one
+ * orientation, angle-weighted projected sums, one frame per group. The angular threshold is
+ * the method's default of 180 degrees, so each group forms a single sub-group. Details of the
+ * reference code (edge pairing order, orientation adoption of "group with any" triangles,
+ * quad orientation forcing) follow our memory of the published reference implementation.
+ */
+import { MIKK_NOT_ZERO, UV_DEGENERATE_RELATIVE } from '../mesh/tolerances.js';
+import { weldVertices } from '../mesh/weld.js';
+import { writeFallbackTangent } from './fallback.js';
+
+const NONE = 0xffffffff;
+const ORIENT_PRESERVING = 1;
+const GROUP_WITH_ANY = 2;
+const DEGENERATE = 4;
+
+/** Counts a `mikktspace` solve reports. */
+export interface MikktspaceStats {
+  degenerateUvTriangles: number;
+  mirroredTriangles: number;
+  /** Corners whose frame came from the documented fallback. */
+  fallbackCorners: number;
+  /** Distinct welded vertices. */
+  weldedVertices: number;
+}
+
+/**
+ * Computes one tangent per triangle corner with the MikkTSpace method.
+ * `out` receives 4 floats per corner (corner c = triangle c/3, slot c%3): xyz unit, w = +1 for
+ * an orientation-preserving group, -1 otherwise. `vSign` is +1 when v grows upward and -1 for
+ * glTF's top-left origin (negates every dv). `faces`, when given, holds an original face id per
+ * triangle; consecutive triangles with the same id (a split quad) are forced to one orientation.
+ * Corners with no usable direction get the documented fallback (see fallback.ts).
+ * Preconditions: indices hold 3 * triangleCount entries < vertexCount; normals are unit;
+ * out.length >= 12 * triangleCount.
+ */
+export function computeMikktspaceCorners(
+  out: Float32Array,
+  indices: Uint32Array,
+  positions: Float32Array,
+  normals: Float32Array,
+  uvs: Float32Array,
+  faces: Uint32Array | null,
+  vSign: number,
+  triangleCount: number,
+  vertexCount: number,
+): MikktspaceStats {
+  const cornerCount = triangleCount * 3;
+  // 1. Welding: connectivity comes from welded indices.
+  const rep = new Uint32Array(vertexCount);
+  const weldedVertices = weldVertices(rep, positions, normals, uvs, vertexCount);
+  const wi = new Uint32Array(cornerCount);
+  for (let c = 0; c < cornerCount; c++) wi[c] = rep[indices[c]];
+
+  // 2. Per-triangle derivatives and flags.
+  const flags = new Uint8Array(triangleCount);
+  const os = new Float64Array(triangleCount * 3);
+  let degenerateUv = 0, mirrored = 0;
+  for (let t = 0; t < triangleCount; t++) {
+    const a = wi[t * 3], b = wi[t * 3 + 1], c = wi[t * 3 + 2];
+    let f = GROUP_WITH_ANY;
+    const u0 = uvs[a * 2], v0 = uvs[a * 2 + 1];
+    const t21x = uvs[b * 2] - u0, t21y = vSign * (uvs[b * 2 + 1] - v0);
+    const t31x = uvs[c * 2] - u0, t31y = vSign * (uvs[c * 2 + 1] - v0);
+    const area2 = t21x * t31y - t21y * t31x;
+    const scale = t21x * t21x + t21y * t21y + t31x * t31x + t31y * t31y;
+    if (!(Math.abs(area2) > UV_DEGENERATE_RELATIVE * scale)) degenerateUv++;
+    else if (area2 < 0) mirrored++;
+    if (a === b || a === c || b === c) {
+      flags[t] = f | DEGENERATE;
+      continue;
+    }
+    const x0 = positions[a * 3], y0 = positions[a * 3 + 1], z0 = positions[a * 3 + 2];
+    const d1x = positions[b * 3] - x0, d1y = positions[b * 3 + 1] - y0, d1z = positions[b * 3 + 2] - z0;
+    const d2x = positions[c * 3] - x0, d2y = positions[c * 3 + 1] - y0, d2z = positions[c * 3 + 2] - z0;
+    let ox = t31y * d1x - t21y * d2x, oy = t31y * d1y - t21y * d2y, oz = t31y * d1z - t21y * d2z;
+    const tx = -t31x * d1x + t21x * d2x, ty = -t31x * d1y + t21x * d2y, tz = -t31x * d1z + t21x * d2z;
+    if (area2 > 0) f |= ORIENT_PRESERVING;
+    const absArea = Math.abs(area2);
+    if (absArea > MIKK_NOT_ZERO) {
+      const lenOs = Math.sqrt(ox * ox + oy * oy + oz * oz);
+      const lenOt = Math.sqrt(tx * tx + ty * ty + tz * tz);
+      const s = area2 > 0 ? 1 : -1;
+      if (lenOs > MIKK_NOT_ZERO) { ox *= s / lenOs; oy *= s / lenOs; oz *= s / lenOs; }
+      if (lenOs / absArea > MIKK_NOT_ZERO && lenOt / absArea > MIKK_NOT_ZERO) f &= ~GROUP_WITH_ANY;
+    }
+    os[t * 3] = ox; os[t * 3 + 1] = oy; os[t * 3 + 2] = oz;
+    flags[t] = f;
+  }
+
+  // Split quads (same face id on consecutive triangles) share one orientation.
+  if (faces) {
+    for (let t = 0; t + 1 < triangleCount; t++) {
+      if (faces[t] !== faces[t + 1]) continue;
+      const fa = flags[t], fb = flags[t + 1];
+      if ((fa | fb) & DEGENERATE) continue;
+      if ((fa & ORIENT_PRESERVING) === (fb & ORIENT_PRESERVING)) continue;
+      let first = (fb & GROUP_WITH_ANY) !== 0;
+      if (!first) first = uvArea(uvs, wi, t, vSign) >= uvArea(uvs, wi, t + 1, vSign);
+      const src = first ? t : t + 1, dst = first ? t + 1 : t;
+      flags[dst] = (flags[dst] & ~ORIENT_PRESERVING) | (flags[src] & ORIENT_PRESERVING);
+    }
+  }
+
+  // 3. Edge adjacency over welded indices: edge i of t runs corner i -> corner i+1 and pairs
+  //    with the first later triangle holding the opposite directed edge.
+  const neighbour = buildNeighbours(wi, flags, triangleCount, vertexCount);
+
+  // 4-6. Groups at each welded vertex, evaluated as soon as they are complete.
+  const cornerGroup = new Uint32Array(cornerCount).fill(NONE);
+  let stack = new Uint32Array(1024);
+  let members = new Uint32Array(64);
+  let groupCount = 0;
+  let fallbackCorners = 0;
+  for (let f = 0; f < triangleCount; f++) {
+    if (flags[f] & GROUP_WITH_ANY) continue;
+    for (let i = 0; i < 3; i++) {
+      if (cornerGroup[f * 3 + i] !== NONE) continue;
+      const g = groupCount++;
+      const vrep = wi[f * 3 + i];
+      const orient = flags[f] & ORIENT_PRESERVING;
+      cornerGroup[f * 3 + i] = g;
+      let memberCount = 0;
+      members[memberCount++] = f * 3 + i;
+      let sp = 0;
+      // Left neighbour first, then right (pushed in reverse).
+      const r0 = neighbour[f * 3 + (i > 0 ? i - 1 : 2)], l0 = neighbour[f * 3 + i];
+      if (r0 !== NONE) stack[sp++] = r0;
+      if (l0 !== NONE) stack[sp++] = l0;
+      while (sp > 0) {
+        const t = stack[--sp];
+        let j = 0;
+        if (wi[t * 3] === vrep) j = 0;
+        else if (wi[t * 3 + 1] === vrep) j = 1;
+        else if (wi[t * 3 + 2] === vrep) j = 2;
+        else continue;
+        const cg = cornerGroup[t * 3 + j];
+        if (cg !== NONE) continue;
+        if (flags[t] & GROUP_WITH_ANY) {
+          if (cornerGroup[t * 3] === NONE && cornerGroup[t * 3 + 1] === NONE && cornerGroup[t * 3 + 2] === NONE) {
+            flags[t] = (flags[t] & ~ORIENT_PRESERVING) | orient;
+          }
+        }
+        if ((flags[t] & ORIENT_PRESERVING) !== orient) continue;
+        cornerGroup[t * 3 + j] = g;
+        if (memberCount === members.length) {
+          const grown = new Uint32Array(members.length * 2);
+          grown.set(members);
+          members = grown;
+        }
+        members[memberCount++] = t * 3 + j;
+        const r = neighbour[t * 3 + (j > 0 ? j - 1 : 2)], l = neighbour[t * 3 + j];
+        if (sp + 2 > stack.length) {
+          const grown = new Uint32Array(stack.length * 2);
+          grown.set(stack);
+          stack = grown;
+        }
+        if (r !== NONE) stack[sp++] = r;
+        if (l !== NONE) stack[sp++] = l;
+      }
+      if (!evaluateGroup(out, members, memberCount, vrep, orient !== 0, wi, flags, os, positions, normals)) {
+        fallbackCorners += memberCount;
+      }
+    }
+  }
+
+  // Corners of non-degenerate triangles that joined no group (isolated "group with any").
+  const firstGood = new Uint32Array(vertexCount).fill(NONE);
+  for (let t = 0; t < triangleCount; t++) {
+    if (flags[t] & DEGENERATE) continue;
+    for (let i = 0; i < 3; i++) {
+      const c = t * 3 + i;
+      if (cornerGroup[c] === NONE) {
+        const v = wi[c];
+        writeFallbackTangent(out, c * 4, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
+        fallbackCorners++;
+      }
+      if (firstGood[wi[c]] === NONE) firstGood[wi[c]] = c;
+    }
+  }
+  // Degenerate triangles take the frame the same welded vertex has in a good triangle.
+  for (let t = 0; t < triangleCount; t++) {
+    if (!(flags[t] & DEGENERATE)) continue;
+    for (let i = 0; i < 3; i++) {
+      const c = t * 3 + i;
+      const src = firstGood[wi[c]];
+      if (src !== NONE) {
+        out[c * 4] = out[src * 4]; out[c * 4 + 1] = out[src * 4 + 1];
+        out[c * 4 + 2] = out[src * 4 + 2]; out[c * 4 + 3] = out[src * 4 + 3];
+      } else {
+        const v = wi[c];
+        writeFallbackTangent(out, c * 4, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
+        fallbackCorners++;
+      }
+    }
+  }
+  return { degenerateUvTriangles: degenerateUv, mirroredTriangles: mirrored, fallbackCorners, weldedVertices };
+}
+
+/** Unsigned UV area of triangle t (welded corners). */
+function uvArea(uvs: Float32Array, wi: Uint32Array, t: number, vSign: number): number {
+  const a = wi[t * 3], b = wi[t * 3 + 1], c = wi[t * 3 + 2];
+  const u0 = uvs[a * 2], v0 = uvs[a * 2 + 1];
+  const t21x = uvs[b * 2] - u0, t21y = vSign * (uvs[b * 2 + 1] - v0);
+  const t31x = uvs[c * 2] - u0, t31y = vSign * (uvs[c * 2 + 1] - v0);
+  return Math.abs(t21x * t31y - t21y * t31x) * 0.5;
+}
+
+/**
+ * Pairs directed edges a->b with b->a of another triangle: returns, per corner c (edge from
+ * corner c to the next corner), the neighbouring triangle or NONE. Degenerate triangles take
+ * no part. Outgoing edges are kept as compressed sparse rows per welded vertex.
+ */
+function buildNeighbours(wi: Uint32Array, flags: Uint8Array, triangleCount: number, vertexCount: number): Uint32Array {
+  const cornerCount = triangleCount * 3;
+  const start = new Uint32Array(vertexCount + 1);
+  for (let t = 0; t < triangleCount; t++) {
+    if (flags[t] & DEGENERATE) continue;
+    start[wi[t * 3] + 1]++; start[wi[t * 3 + 1] + 1]++; start[wi[t * 3 + 2] + 1]++;
+  }
+  for (let v = 0; v < vertexCount; v++) start[v + 1] += start[v];
+  const fill = start.slice(0, vertexCount);
+  const edges = new Uint32Array(start[vertexCount]);
+  for (let t = 0; t < triangleCount; t++) {
+    if (flags[t] & DEGENERATE) continue;
+    for (let i = 0; i < 3; i++) edges[fill[wi[t * 3 + i]]++] = t * 3 + i;
+  }
+  const neighbour = new Uint32Array(cornerCount).fill(NONE);
+  for (let t = 0; t < triangleCount; t++) {
+    if (flags[t] & DEGENERATE) continue;
+    for (let i = 0; i < 3; i++) {
+      const c = t * 3 + i;
+      if (neighbour[c] !== NONE) continue;
+      const a = wi[c], b = wi[t * 3 + (i < 2 ? i + 1 : 0)];
+      const end = start[b + 1];
+      for (let k = start[b]; k < end; k++) {
+        const e = edges[k];
+        const u = (e / 3) | 0;
+        if (u <= t) continue;
+        const next = e - u * 3 < 2 ? e + 1 : e - 2;
+        if (wi[next] !== a || neighbour[e] !== NONE) continue;
+        neighbour[c] = u;
+        neighbour[e] = t;
+        break;
+      }
+    }
+  }
+  return neighbour;
+}
+
+/**
+ * Angle-weighted sum of the projected, normalised derivatives of the group's contributing
+ * triangles at welded vertex `v`; writes the frame to every member corner. Returns false when
+ * nothing contributed (the members then hold the fallback with the group's sign).
+ */
+function evaluateGroup(
+  out: Float32Array, members: Uint32Array, memberCount: number, v: number, orient: boolean,
+  wi: Uint32Array, flags: Uint8Array, os: Float64Array, positions: Float32Array, normals: Float32Array,
+): boolean {
+  const nx = normals[v * 3], ny = normals[v * 3 + 1], nz = normals[v * 3 + 2];
+  let sx = 0, sy = 0, sz = 0;
+  for (let m = 0; m < memberCount; m++) {
+    const c = members[m];
+    const t = (c / 3) | 0;
+    if (flags[t] & GROUP_WITH_ANY) continue;
+    const i = c - t * 3;
+    let ox = os[t * 3], oy = os[t * 3 + 1], oz = os[t * 3 + 2];
+    const d = nx * ox + ny * oy + nz * oz;
+    ox -= nx * d; oy -= ny * d; oz -= nz * d;
+    const ol = Math.sqrt(ox * ox + oy * oy + oz * oz);
+    if (ol > MIKK_NOT_ZERO) { ox /= ol; oy /= ol; oz /= ol; }
+    const p0 = wi[t * 3 + (i > 0 ? i - 1 : 2)], p1 = wi[c], p2 = wi[t * 3 + (i < 2 ? i + 1 : 0)];
+    let ax = positions[p0 * 3] - positions[p1 * 3], ay = positions[p0 * 3 + 1] - positions[p1 * 3 + 1], az = positions[p0 * 3 + 2] - positions[p1 * 3 + 2];
+    let bx = positions[p2 * 3] - positions[p1 * 3], by = positions[p2 * 3 + 1] - positions[p1 * 3 + 1], bz = positions[p2 * 3 + 2] - positions[p1 * 3 + 2];
+    const da = nx * ax + ny * ay + nz * az;
+    ax -= nx * da; ay -= ny * da; az -= nz * da;
+    const la = Math.sqrt(ax * ax + ay * ay + az * az);
+    if (la > MIKK_NOT_ZERO) { ax /= la; ay /= la; az /= la; }
+    const db = nx * bx + ny * by + nz * bz;
+    bx -= nx * db; by -= ny * db; bz -= nz * db;
+    const lb = Math.sqrt(bx * bx + by * by + bz * bz);
+    if (lb > MIKK_NOT_ZERO) { bx /= lb; by /= lb; bz /= lb; }
+    let cos = ax * bx + ay * by + az * bz;
+    if (cos > 1) cos = 1; else if (cos < -1) cos = -1;
+    const angle = Math.acos(cos);
+    sx += angle * ox; sy += angle * oy; sz += angle * oz;
+  }
+  const sl = Math.sqrt(sx * sx + sy * sy + sz * sz);
+  const w = orient ? 1 : -1;
+  if (sl > MIKK_NOT_ZERO && Number.isFinite(sl)) {
+    const tx = sx / sl, ty = sy / sl, tz = sz / sl;
+    for (let m = 0; m < memberCount; m++) {
+      const o = members[m] * 4;
+      out[o] = tx; out[o + 1] = ty; out[o + 2] = tz; out[o + 3] = w;
+    }
+    return true;
+  }
+  const c0 = members[0] * 4;
+  writeFallbackTangent(out, c0, nx, ny, nz);
+  out[c0 + 3] = w;
+  for (let m = 1; m < memberCount; m++) {
+    const o = members[m] * 4;
+    out[o] = out[c0]; out[o + 1] = out[c0 + 1]; out[o + 2] = out[c0 + 2]; out[o + 3] = w;
+  }
+  return false;
+}

@@ -1,0 +1,64 @@
+/**
+ * Based on: the welding rule of the MikkTSpace method (Mikkelsen 2008): two vertices are the
+ * same when position, normal and texture coordinate are all equal. Hash-based on the float
+ * bit patterns (no string keys), with -0 read as +0 so equal floats always weld.
+ */
+
+const EMPTY = 0xffffffff;
+
+/**
+ * Welds vertices whose position (3), normal (3) and uv (2) are exactly equal.
+ * Writes into `out` (length >= vertexCount) the representative of each vertex: the lowest
+ * vertex index with the same key. Returns the number of distinct welded vertices.
+ * Preconditions: positions/normals hold 3 floats and uvs 2 floats per vertex.
+ */
+export function weldVertices(
+  out: Uint32Array,
+  positions: Float32Array,
+  normals: Float32Array,
+  uvs: Float32Array,
+  vertexCount: number,
+): number {
+  const pBits = new Uint32Array(positions.buffer, positions.byteOffset, vertexCount * 3);
+  const nBits = new Uint32Array(normals.buffer, normals.byteOffset, vertexCount * 3);
+  const tBits = new Uint32Array(uvs.buffer, uvs.byteOffset, vertexCount * 2);
+  let size = 16;
+  while (size < vertexCount * 2) size <<= 1;
+  const mask = size - 1;
+  const table = new Uint32Array(size).fill(EMPTY);
+  let distinct = 0;
+  for (let v = 0; v < vertexCount; v++) {
+    // Canonical bits: -0 (0x80000000) reads as +0.
+    let p0 = pBits[v * 3], p1 = pBits[v * 3 + 1], p2 = pBits[v * 3 + 2];
+    let n0 = nBits[v * 3], n1 = nBits[v * 3 + 1], n2 = nBits[v * 3 + 2];
+    let t0 = tBits[v * 2], t1 = tBits[v * 2 + 1];
+    if (p0 === 0x80000000) p0 = 0; if (p1 === 0x80000000) p1 = 0; if (p2 === 0x80000000) p2 = 0;
+    if (n0 === 0x80000000) n0 = 0; if (n1 === 0x80000000) n1 = 0; if (n2 === 0x80000000) n2 = 0;
+    if (t0 === 0x80000000) t0 = 0; if (t1 === 0x80000000) t1 = 0;
+    let h = Math.imul(p0, 0x9e3779b1) ^ Math.imul(p1, 0x85ebca77) ^ Math.imul(p2, 0xc2b2ae3d);
+    h = Math.imul(h ^ (h >>> 15), 0x27d4eb2f) ^ Math.imul(n0, 0x165667b1) ^ Math.imul(n1, 0xd3a2646c) ^ Math.imul(n2, 0xfd7046c5);
+    h = Math.imul(h ^ (h >>> 13), 0xb55a4f09) ^ Math.imul(t0, 0x9e3779b1) ^ Math.imul(t1, 0x7feb352d);
+    h ^= h >>> 16;
+    let slot = h & mask;
+    for (;;) {
+      const w = table[slot];
+      if (w === EMPTY) {
+        table[slot] = v;
+        out[v] = v;
+        distinct++;
+        break;
+      }
+      if (
+        positions[w * 3] === positions[v * 3] && positions[w * 3 + 1] === positions[v * 3 + 1] &&
+        positions[w * 3 + 2] === positions[v * 3 + 2] && normals[w * 3] === normals[v * 3] &&
+        normals[w * 3 + 1] === normals[v * 3 + 1] && normals[w * 3 + 2] === normals[v * 3 + 2] &&
+        uvs[w * 2] === uvs[v * 2] && uvs[w * 2 + 1] === uvs[v * 2 + 1]
+      ) {
+        out[v] = w;
+        break;
+      }
+      slot = (slot + 1) & mask;
+    }
+  }
+  return distinct;
+}
