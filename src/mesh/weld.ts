@@ -62,3 +62,35 @@ export function weldVertices(
   }
   return distinct;
 }
+
+/**
+ * Welds vertices by exactly equal position only (for smooth-normal generation).
+ * Writes into `out` the lowest vertex index with the same position; returns the number of
+ * distinct positions. Precondition: positions hold 3 floats per vertex.
+ */
+export function weldPositions(out: Uint32Array, positions: Float32Array, vertexCount: number): number {
+  const bits = new Uint32Array(positions.buffer, positions.byteOffset, vertexCount * 3);
+  let size = 16;
+  while (size < vertexCount * 2) size <<= 1;
+  const mask = size - 1;
+  const table = new Uint32Array(size).fill(EMPTY);
+  let distinct = 0;
+  for (let v = 0; v < vertexCount; v++) {
+    let p0 = bits[v * 3], p1 = bits[v * 3 + 1], p2 = bits[v * 3 + 2];
+    if (p0 === 0x80000000) p0 = 0; if (p1 === 0x80000000) p1 = 0; if (p2 === 0x80000000) p2 = 0;
+    let h = Math.imul(p0, 0x9e3779b1) ^ Math.imul(p1, 0x85ebca77) ^ Math.imul(p2, 0xc2b2ae3d);
+    h = Math.imul(h ^ (h >>> 15), 0x27d4eb2f);
+    h ^= h >>> 16;
+    let slot = h & mask;
+    for (;;) {
+      const w = table[slot];
+      if (w === EMPTY) { table[slot] = v; out[v] = v; distinct++; break; }
+      if (positions[w * 3] === positions[v * 3] && positions[w * 3 + 1] === positions[v * 3 + 1] && positions[w * 3 + 2] === positions[v * 3 + 2]) {
+        out[v] = w;
+        break;
+      }
+      slot = (slot + 1) & mask;
+    }
+  }
+  return distinct;
+}
