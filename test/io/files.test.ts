@@ -1,0 +1,76 @@
+import { mkdtemp, mkdir, readdir, readFile, rm, writeFile } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import * as path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { readInputBytes, writeFilesAtomic } from '../../src/io/files.js';
+import { TanframeError } from '../../src/mesh/errors.js';
+
+let root: string;
+beforeAll(async () => {
+  root = await mkdtemp(path.join(tmpdir(), 'tanframe-files-'));
+});
+afterAll(async () => {
+  await rm(root, { recursive: true, force: true });
+});
+
+async function codeOf(p: Promise<unknown>): Promise<string> {
+  try {
+    await p;
+  } catch (err) {
+    expect(err).toBeInstanceOf(TanframeError);
+    return (err as TanframeError).code;
+  }
+  return 'no error';
+}
+
+describe('writeFilesAtomic', () => {
+  it('creates missing folders and writes every file with its exact bytes, leaving no temporary files', async () => {
+    const dir = path.join(root, 'a', 'b');
+    await writeFilesAtomic([
+      { path: path.join(dir, 'x.gltf'), bytes: new TextEncoder().encode('{}') },
+      { path: path.join(dir, 'tex', 'y.bin'), bytes: new Uint8Array([1, 2, 3]) },
+    ]);
+    expect(await readFile(path.join(dir, 'x.gltf'), 'utf8')).toBe('{}');
+    expect([...(await readFile(path.join(dir, 'tex', 'y.bin')))]).toEqual([1, 2, 3]);
+    expect((await readdir(dir)).sort()).toEqual(['tex', 'x.gltf']);
+  });
+
+  it('replaces an existing file', async () => {
+    const file = path.join(root, 'replace.bin');
+    await writeFile(file, 'old');
+    await writeFilesAtomic([{ path: file, bytes: new TextEncoder().encode('new') }]);
+    expect(await readFile(file, 'utf8')).toBe('new');
+  });
+
+  it('fails with write-failed, removes its temporary files and leaves earlier outputs untouched', async () => {
+    const dir = path.join(root, 'fail');
+    await mkdir(path.join(dir, 'occupied'), { recursive: true });
+    await writeFile(path.join(dir, 'first.bin'), 'before');
+    // The second destination is a folder: it cannot be replaced, found after both temps are written.
+    const err = writeFilesAtomic([
+      { path: path.join(dir, 'first.bin'), bytes: new TextEncoder().encode('after') },
+      { path: path.join(dir, 'occupied'), bytes: new Uint8Array([1]) },
+    ]);
+    await expect(err).rejects.toMatchObject({ code: 'write-failed' });
+    await expect(err).rejects.toThrow(/occupied/);
+    const left = await readdir(dir);
+    expect(left.filter((n) => n.endsWith('.tmp'))).toEqual([]);
+    expect(await readFile(path.join(dir, 'first.bin'), 'utf8')).toBe('before');
+  });
+});
+
+describe('readInputBytes', () => {
+  it('reads a file', async () => {
+    const file = path.join(root, 'in.bin');
+    await writeFile(file, new Uint8Array([9, 8]));
+    expect([...(await readInputBytes(file))]).toEqual([9, 8]);
+  });
+
+  it('gives read-failed for a missing file or a folder, and empty-file for 0 bytes', async () => {
+    expect(await codeOf(readInputBytes(path.join(root, 'nope.glb')))).toBe('read-failed');
+    expect(await codeOf(readInputBytes(root))).toBe('read-failed');
+    const empty = path.join(root, 'empty.glb');
+    await writeFile(empty, '');
+    expect(await codeOf(readInputBytes(empty))).toBe('empty-file');
+  });
+});
