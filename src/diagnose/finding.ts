@@ -1,0 +1,32 @@
+/**
+ * Based on: the report schema in DESIGN.md ("{count, triangles: [first 1000 indices]}").
+ * The shape every triangle-list diagnostic returns, and the cap on listed indices.
+ */
+
+/** How many triangle indices a finding lists at most (DESIGN.md report schema: the first 1000). */
+export const MAX_LISTED = 1000;
+
+/**
+ * A triangle-list finding: `count` flagged triangles in all, `triangles` the first
+ * MAX_LISTED of their indices (positions in the triangle list), ascending.
+ */
+export interface Finding {
+  count: number;
+  triangles: number[];
+}
+
+/**
+ * Builds a finding from per-triangle marks: counts the non-zero entries of
+ * marks[0 .. triangleCount) and lists the first MAX_LISTED of their indices, ascending.
+ * Preconditions: marks.length >= triangleCount.
+ */
+export function findingFromMarks(marks: Uint8Array, triangleCount: number): Finding {
+  const triangles: number[] = [];
+  let count = 0;
+  for (let t = 0; t < triangleCount; t++) {
+    if (marks[t] === 0) continue;
+    if (count < MAX_LISTED) triangles.push(t);
+    count++;
+  }
+  return { count, triangles };
+}
