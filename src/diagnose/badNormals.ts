@@ -1,0 +1,86 @@
+/**
+ * Based on: glTF 2.0 specification, section 3.7.2.1 (NORMAL: normalized XYZ vertex normals)
+ * and section 3.7.4 (with a positive-determinant transform, front faces wind counterclockwise),
+ * so the face normal from the winding is cross(p1 - p0, p2 - p0).
+ */
+import { assert } from '../mesh/errors.js';
+import { UNIT_LENGTH_TOLERANCE, ZERO_LENGTH } from '../mesh/tolerances.js';
+
+/** What findBadNormals found, in vertices. */
+export interface BadNormals {
+  /** Vertices with at least one of the problems below (each vertex counts once). */
+  count: number;
+  /** Normals of length <= ZERO_LENGTH (no direction at all). */
+  zero: number;
+  /** Normals that are not zero but whose length differs from 1 by more than UNIT_LENGTH_TOLERANCE, or that are not finite. */
+  nonUnit: number;
+  /** Normals pointing away from the face (dot with the face normal < 0) on more than half of the corners that use them. */
+  flipped: number;
+}
+
+/**
+ * Finds the vertices whose stored normal is bad. Three kinds:
+ * - zero: length <= ZERO_LENGTH;
+ * - nonUnit: otherwise, | |n| - 1 | > UNIT_LENGTH_TOLERANCE, NaN and infinite normals included
+ *   (they are counted by countInvalidVertices as well);
+ * - flipped: a non-zero finite normal with dot(n, face normal) < 0 on MORE than half of the
+ *   corners that use the vertex, the face normal being cross(p1 - p0, p2 - p0) of the triangle
+ *   as wound. Corners of triangles whose face normal is zero or not finite (degenerate
+ *   geometry) have no face direction and take no part in that vote; a vertex no triangle uses
+ *   (or only degenerate ones) is never flipped. A dot of exactly 0 is not "away".
+ * A non-unit normal can also be flipped (it is counted in both), `count` counts each vertex once.
+ * Returns the counts, in vertices.
+ * Preconditions: indices hold 3 * triangleCount entries, each < vertexCount; positions and
+ * normals hold 3 floats per vertex.
+ */
+export function findBadNormals(
+  indices: Uint32Array,
+  positions: Float32Array,
+  normals: Float32Array,
+  triangleCount: number,
+  vertexCount: number,
+): BadNormals {
+  assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
+  assert(positions.length >= vertexCount * 3, 'positions must hold 3 floats per vertex');
+  assert(normals.length >= vertexCount * 3, 'normals must hold 3 floats per vertex');
+  // Per vertex: corners with a usable face normal, and those among them facing away.
+  const votes = new Uint32Array(vertexCount);
+  const away = new Uint32Array(vertexCount);
+  for (let t = 0; t < triangleCount; t++) {
+    const i0 = indices[t * 3], i1 = indices[t * 3 + 1], i2 = indices[t * 3 + 2];
+    const x0 = positions[i0 * 3], y0 = positions[i0 * 3 + 1], z0 = positions[i0 * 3 + 2];
+    const e1x = positions[i1 * 3] - x0, e1y = positions[i1 * 3 + 1] - y0, e1z = positions[i1 * 3 + 2] - z0;
+    const e2x = positions[i2 * 3] - x0, e2y = positions[i2 * 3 + 1] - y0, e2z = positions[i2 * 3 + 2] - z0;
+    const fx = e1y * e2z - e1z * e2y, fy = e1z * e2x - e1x * e2z, fz = e1x * e2y - e1y * e2x;
+    const f2 = fx * fx + fy * fy + fz * fz;
+    // Zero, NaN or infinite face normal: no direction to vote with.
+    if (!(f2 > 0) || f2 === Infinity) continue;
+    for (let k = 0; k < 3; k++) {
+      const v = indices[t * 3 + k];
+      votes[v]++;
+      const d = normals[v * 3] * fx + normals[v * 3 + 1] * fy + normals[v * 3 + 2] * fz;
+      if (d < 0) away[v]++;
+    }
+  }
+  let count = 0, zero = 0, nonUnit = 0, flipped = 0;
+  for (let v = 0; v < vertexCount; v++) {
+    const nx = normals[v * 3], ny = normals[v * 3 + 1], nz = normals[v * 3 + 2];
+    const len = Math.sqrt(nx * nx + ny * ny + nz * nz);
+    if (len <= ZERO_LENGTH) {
+      zero++;
+      count++;
+      continue;
+    }
+    let bad = false;
+    if (!(Math.abs(len - 1) <= UNIT_LENGTH_TOLERANCE)) {
+      nonUnit++;
+      bad = true;
+    }
+    if (len - len === 0 && away[v] * 2 > votes[v]) {
+      flipped++;
+      bad = true;
+    }
+    if (bad) count++;
+  }
+  return { count, zero, nonUnit, flipped };
+}
