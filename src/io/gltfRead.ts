@@ -1,0 +1,408 @@
+/**
+ * Reads a .gltf or .glb file into an Asset: checked JSON, resolved buffers, every mesh
+ * primitive decoded into dense typed arrays, external images located.
+ * Based on: glTF 2.0 specification, sections 3.6 (binary data storage: buffers, buffer views,
+ * accessors), 3.7.2 (mesh primitives, morph targets), 3.8.3 (images), 3.12 (extensions) and
+ * 4.4 (GLB); KHR_mesh_quantization.
+ *
+ * Nothing in the file is trusted before it is checked: every fault becomes a TanframeError
+ * with a stable code and a one-line message (the caller prefixes the file name).
+ */
+import * as fsp from 'node:fs/promises';
+import * as path from 'node:path';
+import {
+  MODE_TRIANGLES,
+  UNSIGNED_BYTE,
+  UNSIGNED_INT,
+  UNSIGNED_SHORT,
+  type Asset,
+  type AttributeData,
+  type ExternalImage,
+  type PrimitiveData,
+} from '../mesh/asset.js';
+import { TanframeError } from '../mesh/errors.js';
+import { readInputBytes } from './files.js';
+import { looksLikeGlb, parseGlb } from './glb.js';
+import {
+  DECODE_BUDGET_BASE,
+  DECODE_BUDGET_FACTOR,
+  chargeBudget,
+  checkAccessor,
+  decodeAccessor,
+  isIndex,
+  type AccessorSpec,
+  type DecodeBudget,
+  type ViewTable,
+} from './gltfAccessor.js';
+import { checkAttributeFormat, formatName } from './gltfSemantics.js';
+import { resolveResourceUri } from './uri.js';
+
+/** Required extensions that do not change how geometry is stored, so we can process the file. */
+const SAFE_REQUIRED_EXTENSIONS = new Set([
+  'KHR_mesh_quantization',
+  'KHR_texture_transform',
+  'KHR_texture_basisu',
+  'EXT_texture_webp',
+  'EXT_texture_avif',
+  'KHR_lights_punctual',
+  'EXT_lights_image_based',
+  'KHR_materials_variants',
+  'KHR_animation_pointer',
+  'KHR_xmp_json_ld',
+  'EXT_mesh_gpu_instancing',
+  'MSFT_texture_dds',
+]);
+
+/** Geometry compression extensions (decoding arrives in a later issue). */
+const COMPRESSION_EXTENSIONS = new Set(['KHR_draco_mesh_compression', 'EXT_meshopt_compression', 'KHR_meshopt_compression']);
+
+/** Everything decoding needs, shared by the helpers below. */
+interface ReadContext {
+  json: any;
+  views: ViewTable;
+  budget: DecodeBudget;
+  quantized: boolean;
+  /** Decoded vertex-attribute accessors by index (an accessor shared by primitives decodes once). */
+  decoded: Map<number, AttributeData>;
+}
+
+function badGltf(message: string): never {
+  throw new TanframeError('bad-gltf', message);
+}
+
+function isObject(v: unknown): v is Record<string, any> {
+  return v !== null && typeof v === 'object' && !Array.isArray(v);
+}
+
+/** `json[key]` as an array ([] when absent); 'bad-gltf' when present but not an array of objects. */
+function arrayOf(json: any, key: string): any[] {
+  const v = json[key];
+  if (v === undefined) return [];
+  if (!Array.isArray(v)) badGltf(`'${key}' is not an array`);
+  for (let i = 0; i < v.length; i++) if (!isObject(v[i])) badGltf(`${key}[${i}] is not an object`);
+  return v;
+}
+
+/** Parses .gltf text: UTF-8 (BOM tolerated), JSON, an object. */
+function parseGltfJson(bytes: Uint8Array): any {
+  let text: string;
+  try {
+    text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
+  } catch {
+    throw new TanframeError('bad-json', 'the file is not valid UTF-8 text');
+  }
+  let json: unknown;
+  try {
+    json = JSON.parse(text);
+  } catch (err) {
+    throw new TanframeError('bad-json', `the JSON does not parse: ${String((err as Error).message).split('\n')[0]}`);
+  }
+  if (!isObject(json)) badGltf('the JSON is not an object');
+  return json;
+}
+
+/** Checks asset.version (2.x) and the shape of the top-level arrays we use. */
+function checkTopLevel(json: any): void {
+  if (!isObject(json.asset) || typeof json.asset.version !== 'string') badGltf("missing 'asset.version'");
+  const major = /^(\d+)\.\d+$/.exec(json.asset.version);
+  if (!major) badGltf(`asset.version '${json.asset.version}' is not of the form major.minor`);
+  if (major[1] !== '2') {
+    throw new TanframeError('unsupported-format', `glTF version ${json.asset.version} is not supported (only 2.x)`);
+  }
+  for (const key of ['buffers', 'bufferViews', 'accessors', 'meshes', 'images', 'materials']) arrayOf(json, key);
+  for (const key of ['extensionsUsed', 'extensionsRequired']) {
+    const v = json[key];
+    if (v !== undefined && (!Array.isArray(v) || v.some((s) => typeof s !== 'string'))) badGltf(`'${key}' is not an array of strings`);
+  }
+}
+
+/** Refuses required extensions that change how geometry is stored (or that we do not know). */
+function checkRequiredExtensions(json: any): void {
+  for (const name of (json.extensionsRequired ?? []) as string[]) {
+    if (COMPRESSION_EXTENSIONS.has(name)) {
+      throw new TanframeError('unsupported-feature', `${name} (compressed geometry) is not supported yet`);
+    }
+    if (!SAFE_REQUIRED_EXTENSIONS.has(name) && !name.startsWith('KHR_materials_')) {
+      throw new TanframeError('unsupported-feature', `the required extension ${name} is not supported yet`);
+    }
+  }
+}
+
+/** Reads an external buffer or image file; ENOENT -> null, other errors -> 'read-failed'. */
+async function readResourceFile(file: string, what: string): Promise<Uint8Array | null> {
+  try {
+    const b = await fsp.readFile(file);
+    return new Uint8Array(b.buffer, b.byteOffset, b.byteLength);
+  } catch (err) {
+    const code = (err as NodeJS.ErrnoException).code;
+    if (code === 'ENOENT' || code === 'ENOTDIR') return null;
+    throw new TanframeError('read-failed', `cannot read ${what}: ${code === 'EISDIR' ? 'it is a folder' : code === 'EACCES' ? 'permission denied' : (code ?? 'error')}`);
+  }
+}
+
+/** The bytes of buffer `i`: GLB BIN chunk, data: URI or external file (inside `baseDir`). */
+async function bufferBytes(json: any, i: number, bin: Uint8Array | null, isGlb: boolean, baseDir: string): Promise<Uint8Array> {
+  const b = json.buffers[i];
+  if (b.uri === undefined) {
+    if (isObject(b.extensions?.EXT_meshopt_compression) || isObject(b.extensions?.KHR_meshopt_compression)) {
+      throw new TanframeError('unsupported-feature', `buffer ${i} is a compression fallback without data; meshopt compression is not supported yet`);
+    }
+    if (isGlb && i === 0) {
+      if (!bin) throw new TanframeError('bad-glb', 'buffer 0 has no uri but the GLB has no BIN chunk');
+      return bin;
+    }
+    badGltf(`buffer ${i} has no uri${isGlb ? ' (only buffer 0 can use the GLB BIN chunk)' : ''}`);
+  }
+  if (typeof b.uri !== 'string') badGltf(`buffer ${i} uri is not a string`);
+  const res = resolveResourceUri(b.uri, baseDir);
+  if (res.kind === 'data') return res.bytes;
+  const bytes = await readResourceFile(res.path, `buffer ${i} '${b.uri}'`);
+  if (!bytes) throw new TanframeError('missing-resource', `buffer ${i} file '${b.uri}' not found`);
+  return bytes;
+}
+
+/** Resolves every buffer and checks its declared byteLength fits the available bytes. */
+async function resolveBuffers(json: any, bin: Uint8Array | null, isGlb: boolean, baseDir: string): Promise<Uint8Array[]> {
+  const list = arrayOf(json, 'buffers');
+  const out: Uint8Array[] = [];
+  for (let i = 0; i < list.length; i++) {
+    const declared = list[i].byteLength;
+    if (!isIndex(declared) || declared < 1) badGltf(`buffer ${i} byteLength ${JSON.stringify(declared)} is not a positive integer`);
+    const bytes = await bufferBytes(json, i, bin, isGlb, baseDir);
+    if (declared > bytes.byteLength) badGltf(`buffer ${i} declares ${declared} bytes but only ${bytes.byteLength} are available`);
+    out.push(bytes.subarray(0, declared));
+  }
+  return out;
+}
+
+/** Checks every buffer view lies inside its buffer and has a legal byteStride. */
+function checkBufferViews(json: any, buffers: Uint8Array[]): ViewTable {
+  const list = arrayOf(json, 'bufferViews');
+  const table: ViewTable = { bytes: [], strides: [] };
+  for (let i = 0; i < list.length; i++) {
+    const v = list[i];
+    if (!isIndex(v.buffer) || v.buffer >= buffers.length) badGltf(`bufferView ${i} names buffer ${v.buffer}, which does not exist`);
+    if (!isIndex(v.byteLength) || v.byteLength < 1) badGltf(`bufferView ${i} byteLength is not a positive integer`);
+    const offset = v.byteOffset ?? 0;
+    if (!isIndex(offset)) badGltf(`bufferView ${i} byteOffset is not a non-negative integer`);
+    const size = buffers[v.buffer].byteLength;
+    if (offset + v.byteLength > size) {
+      badGltf(`bufferView ${i} (offset ${offset}, length ${v.byteLength}) overruns buffer ${v.buffer} (${size} bytes)`);
+    }
+    // Source: glTF 2.0 specification, bufferView.byteStride: 4..252, a multiple of 4.
+    if (v.byteStride !== undefined && (!isIndex(v.byteStride) || v.byteStride < 4 || v.byteStride > 252 || v.byteStride % 4 !== 0)) {
+      badGltf(`bufferView ${i} byteStride ${JSON.stringify(v.byteStride)} is not a multiple of 4 in 4..252`);
+    }
+    table.bytes.push(buffers[v.buffer].subarray(offset, offset + v.byteLength));
+    table.strides.push(v.byteStride);
+  }
+  return table;
+}
+
+/** Checks the shape of json.meshes (primitives, attributes, targets, indices, mode, material). */
+function checkMeshes(json: any): void {
+  const meshes = arrayOf(json, 'meshes');
+  const materialCount = arrayOf(json, 'materials').length;
+  for (let m = 0; m < meshes.length; m++) {
+    const prims = meshes[m].primitives;
+    if (!Array.isArray(prims) || prims.length === 0) badGltf(`mesh ${m} has no primitives`);
+    for (let p = 0; p < prims.length; p++) {
+      const where = `mesh ${m} primitive ${p}`;
+      const prim = prims[p];
+      if (!isObject(prim)) badGltf(`${where} is not an object`);
+      if (!isObject(prim.attributes) || Object.keys(prim.attributes).length === 0) badGltf(`${where} has no attributes`);
+      const targets = prim.targets ?? [];
+      if (!Array.isArray(targets) || targets.some((t: unknown) => !isObject(t))) badGltf(`${where} targets is not an array of objects`);
+      const mode = prim.mode ?? MODE_TRIANGLES;
+      if (!Number.isInteger(mode) || mode < 0 || mode > 6) badGltf(`${where} mode ${JSON.stringify(prim.mode)} is not 0..6`);
+      if (prim.material !== undefined && (!isIndex(prim.material) || prim.material >= materialCount)) {
+        badGltf(`${where} material ${JSON.stringify(prim.material)} does not exist`);
+      }
+      for (const map of [prim.attributes, ...targets]) {
+        for (const [sem, acc] of Object.entries(map)) {
+          if (!isIndex(acc)) throw new TanframeError('bad-accessor', `${where} ${sem} accessor ${JSON.stringify(acc)} is not an index`);
+        }
+      }
+      if (prim.indices !== undefined && !isIndex(prim.indices)) {
+        throw new TanframeError('bad-accessor', `${where} indices ${JSON.stringify(prim.indices)} is not an index`);
+      }
+    }
+  }
+}
+
+/** Accessor indices that primitives use as vertex attributes (byteStride applies to them). */
+function vertexAccessors(json: any): Set<number> {
+  const set = new Set<number>();
+  for (const mesh of arrayOf(json, 'meshes')) {
+    for (const prim of mesh.primitives) {
+      for (const map of [prim.attributes, ...(prim.targets ?? [])]) for (const a of Object.values(map)) set.add(a as number);
+    }
+  }
+  return set;
+}
+
+/**
+ * Checks every accessor in the file (fields, references, bounds) so that later stages,
+ * the writer included, can copy any referenced data without further checks.
+ */
+function checkAllAccessors(json: any, views: ViewTable): void {
+  const vertex = vertexAccessors(json);
+  const list = arrayOf(json, 'accessors');
+  for (let i = 0; i < list.length; i++) checkAccessor(json, i, views, vertex.has(i));
+}
+
+/** Decodes one attribute (or morph-target attribute) accessor after checking its format. */
+function decodeAttribute(ctx: ReadContext, semantic: string, index: number, isTarget: boolean, where: string): AttributeData {
+  const spec = checkAccessor(ctx.json, index, ctx.views, true);
+  const reason = checkAttributeFormat(semantic, spec.type, spec.componentType, spec.normalized, isTarget, ctx.quantized);
+  if (reason) throw new TanframeError('bad-accessor', `${where}: accessor ${index}: ${reason}`);
+  let data = ctx.decoded.get(index);
+  if (!data) {
+    data = {
+      array: decodeAccessor(spec, ctx.views, true, ctx.budget),
+      itemSize: spec.itemSize,
+      type: spec.type,
+      componentType: spec.componentType,
+      normalized: spec.normalized,
+    };
+    ctx.decoded.set(index, data);
+  }
+  return data;
+}
+
+/** Decodes an attribute map, checking every accessor has `count` elements (set by the first when null). */
+function decodeAttributeMap(
+  ctx: ReadContext,
+  map: Record<string, number>,
+  isTarget: boolean,
+  where: string,
+  counts: { value: number | null },
+): Record<string, AttributeData> {
+  const out: Record<string, AttributeData> = {};
+  for (const [semantic, index] of Object.entries(map)) {
+    const data = decodeAttribute(ctx, semantic, index, isTarget, where);
+    const count = data.array.length / data.itemSize;
+    if (counts.value === null) counts.value = count;
+    if (count !== counts.value) {
+      throw new TanframeError('bad-accessor', `${where}: ${isTarget ? 'morph target ' : ''}${semantic} has ${count} elements but the other attributes have ${counts.value}`);
+    }
+    out[semantic] = data;
+  }
+  return out;
+}
+
+/** Decodes the indices accessor, widened to Uint32, each checked against `vertexCount`. */
+function decodeIndices(ctx: ReadContext, index: number, vertexCount: number, where: string): Uint32Array {
+  const spec: AccessorSpec = checkAccessor(ctx.json, index, ctx.views, false);
+  const ct = spec.componentType;
+  // Source: glTF 2.0 specification, mesh.primitive.indices: SCALAR of unsigned byte/short/int.
+  if (spec.type !== 'SCALAR' || (ct !== UNSIGNED_BYTE && ct !== UNSIGNED_SHORT && ct !== UNSIGNED_INT)) {
+    throw new TanframeError('bad-accessor', `${where}: indices accessor ${index} must be SCALAR unsigned byte, short or int, not ${spec.type} ${formatName(ct, spec.normalized)}`);
+  }
+  const raw = decodeAccessor(spec, ctx.views, false, ctx.budget);
+  let out: Uint32Array;
+  if (raw instanceof Uint32Array) {
+    out = raw;
+  } else {
+    chargeBudget(ctx.budget, raw.length * 4, `indices accessor ${index}`);
+    out = new Uint32Array(raw.length);
+    out.set(raw);
+  }
+  for (let i = 0; i < out.length; i++) {
+    if (out[i] >= vertexCount) {
+      throw new TanframeError('bad-index', `${where}: index ${out[i]} at position ${i} is out of range (${vertexCount} vertices)`);
+    }
+  }
+  return out;
+}
+
+/** Decodes one primitive (attributes, targets, indices). */
+function decodePrimitive(ctx: ReadContext, m: number, p: number): PrimitiveData {
+  const mesh = ctx.json.meshes[m];
+  const prim = mesh.primitives[p];
+  const where = `mesh ${m} primitive ${p}`;
+  const counts = { value: null as number | null };
+  const attributes = decodeAttributeMap(ctx, prim.attributes, false, where, counts);
+  const targets = (prim.targets ?? []).map((t: Record<string, number>) => decodeAttributeMap(ctx, t, true, where, counts));
+  const vertexCount = counts.value ?? 0;
+  const indices = prim.indices === undefined ? null : decodeIndices(ctx, prim.indices, vertexCount, where);
+  return {
+    mesh: m,
+    primitive: p,
+    meshName: typeof mesh.name === 'string' ? mesh.name : null,
+    material: prim.material ?? null,
+    mode: prim.mode ?? MODE_TRIANGLES,
+    attributes,
+    indices,
+    targets,
+    faces: null,
+  };
+}
+
+/** Decodes every primitive of every mesh, in json order. */
+function decodeAllPrimitives(ctx: ReadContext): PrimitiveData[] {
+  const out: PrimitiveData[] = [];
+  const meshes = arrayOf(ctx.json, 'meshes');
+  for (let m = 0; m < meshes.length; m++) {
+    for (let p = 0; p < meshes[m].primitives.length; p++) out.push(decodePrimitive(ctx, m, p));
+  }
+  return out;
+}
+
+/** Locates images named by a (non-data:) URI; a missing file is a warning, not a failure. */
+async function resolveImages(json: any, baseDir: string, warnings: string[]): Promise<ExternalImage[]> {
+  const images = arrayOf(json, 'images');
+  const out: ExternalImage[] = [];
+  for (let i = 0; i < images.length; i++) {
+    const uri = images[i].uri;
+    if (uri === undefined) continue;
+    if (typeof uri !== 'string') badGltf(`image ${i} uri is not a string`);
+    if (/^data:/i.test(uri)) continue;
+    const res = resolveResourceUri(uri, baseDir);
+    if (res.kind !== 'file') continue;
+    const bytes = await readResourceFile(res.path, `image '${uri}'`);
+    if (!bytes) warnings.push(`image '${uri}' not found; its URI is kept`);
+    out.push({ image: i, uri, path: res.path, bytes });
+  }
+  return out;
+}
+
+/** True when the asset declares KHR_mesh_quantization (extensionsUsed or extensionsRequired). */
+function usesQuantization(json: any): boolean {
+  const name = 'KHR_mesh_quantization';
+  return (json.extensionsUsed ?? []).includes(name) || (json.extensionsRequired ?? []).includes(name);
+}
+
+/**
+ * Decodes glTF or GLB bytes into an Asset. `sourcePath` names the file (its folder resolves
+ * external URIs; '.glb' or the 'glTF' magic selects the GLB container). Throws TanframeError:
+ * 'empty-file', 'bad-glb', 'bad-json', 'bad-gltf', 'bad-accessor', 'bad-index', 'bad-uri',
+ * 'missing-resource', 'read-failed', 'unsupported-format', 'unsupported-feature', 'too-large'.
+ */
+export async function readGltfBytes(bytes: Uint8Array, sourcePath: string): Promise<Asset> {
+  if (bytes.length === 0) throw new TanframeError('empty-file', 'the file is empty (0 bytes)');
+  const isGlb = looksLikeGlb(bytes) || path.extname(sourcePath).toLowerCase() === '.glb';
+  const { json, bin } = isGlb ? parseGlb(bytes) : { json: parseGltfJson(bytes), bin: null };
+  checkTopLevel(json);
+  checkRequiredExtensions(json);
+  const baseDir = path.dirname(path.resolve(sourcePath));
+  const buffers = await resolveBuffers(json, bin, isGlb, baseDir);
+  const views = checkBufferViews(json, buffers);
+  checkMeshes(json);
+  checkAllAccessors(json, views);
+  const inputBytes = bytes.byteLength + buffers.reduce((s, b) => s + b.byteLength, 0);
+  const limit = DECODE_BUDGET_BASE + DECODE_BUDGET_FACTOR * inputBytes;
+  const ctx: ReadContext = { json, views, budget: { remaining: limit, limit }, quantized: usesQuantization(json), decoded: new Map() };
+  const primitives = decodeAllPrimitives(ctx);
+  const warnings: string[] = [];
+  const externalImages = await resolveImages(json, baseDir, warnings);
+  return { sourcePath, container: isGlb ? 'glb' : 'gltf', json, buffers, externalImages, primitives, warnings };
+}
+
+/**
+ * Reads a .gltf or .glb file into an Asset (see readGltfBytes). Decoded attribute arrays
+ * may be shared between primitives that share an accessor: treat them as read-only.
+ */
+export async function readGltf(filePath: string): Promise<Asset> {
+  return readGltfBytes(await readInputBytes(filePath), filePath);
+}
