@@ -44,3 +44,17 @@ export const DEFAULT_TANGENT_MISMATCH_DEG = 1;
 
 /** Default smoothing angle (degrees) for `--normals smooth`. Common practice. */
 export const DEFAULT_SMOOTH_ANGLE_DEG = 60;
+
+/**
+ * UV-overlap test, absolute part: two UV triangles whose penetration along some edge normal
+ * is at most this many UV units only touch (about 1/120 of a texel of an 8192-pixel map, and
+ * above the float32 rounding of UVs below 8). Common practice, no single source.
+ */
+export const UV_OVERLAP_ABSOLUTE = 1e-6;
+
+/**
+ * UV-overlap test, relative part: a penetration of at most this fraction of the smaller of the
+ * two triangles' extents along the same edge normal is touching, not overlap (absorbs rounding
+ * where a vertex lies on another triangle's edge). Common practice, no single source.
+ */
+export const UV_OVERLAP_RELATIVE = 1e-4;

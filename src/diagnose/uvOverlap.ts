@@ -1,0 +1,237 @@
+/**
+ * Based on: the separating axis theorem for convex polygons (two convex polygons have disjoint
+ * interiors exactly when the normal of one of their edges separates their projections) and a
+ * uniform grid for the broad phase, each candidate pair tested once, in the cell holding the
+ * lower-left corner of the intersection of the two bounding boxes. Both as in C. Ericson,
+ * "Real-Time Collision Detection" (2005), chapters on primitive tests and spatial
+ * partitioning (cited from memory).
+ */
+import { assert } from '../mesh/errors.js';
+import { UV_DEGENERATE_RELATIVE, UV_OVERLAP_ABSOLUTE, UV_OVERLAP_RELATIVE } from '../mesh/tolerances.js';
+import { findingFromMarks, type Finding } from './finding.js';
+
+/** Most grid cells the broad phase uses, whatever the mesh (16 MiB of cell offsets). */
+const MAX_GRID_CELLS = 1 << 22;
+/** Cells per usable triangle the grid may have at most (a sparse atlas gets coarser cells). */
+const CELLS_PER_TRIANGLE = 4;
+/** Cell entries per usable triangle before the cells are made coarser (guards against a few huge triangles). */
+const ENTRIES_PER_TRIANGLE = 16;
+
+/** How the broad phase of findUvOverlaps went (for tests and benchmarks). */
+export interface UvOverlapStats {
+  /** Grid cells along u and along v. */
+  cellsU: number;
+  cellsV: number;
+  /** Triangles entered into the grid (finite, non-degenerate UVs). */
+  gridTriangles: number;
+  /** Candidate pairs given to the exact triangle-triangle test. */
+  exactTests: number;
+}
+
+/**
+ * Finds the triangles of one UV set that overlap another triangle of the same set in UV space
+ * with positive area (a baked map cannot hold two values at one texel).
+ * - Touching is not overlap: triangles sharing an edge or a vertex, or penetrating each other
+ *   by no more than UV_OVERLAP_ABSOLUTE UV units or UV_OVERLAP_RELATIVE of the smaller
+ *   triangle's extent along the separating edge normal, are not reported.
+ * - Mirroring onto themselves is not overlap: a pair whose two UV triangles coincide exactly
+ *   (the same three UV points, bit for bit, in any order) is intentional stacking, as when
+ *   the left and right halves of a symmetric model share one set of UVs, and is skipped.
+ *   Partial overlaps are reported, including stacked shells triangulated differently.
+ * - Degenerate-UV triangles (UV_DEGENERATE_RELATIVE) and triangles with a NaN or infinite UV
+ *   have no area and take no part (they are reported by findDegenerateUvTriangles).
+ * Broad phase: a uniform grid over the UV bounding box of the usable triangles, cell size the
+ * mean of their bounding-box extents (max of width and height), made coarser while the grid
+ * would exceed 4 cells per triangle (at most 2^22 cells) or the bounding boxes would fill more
+ * than 16 cell entries per triangle; each pair is tested once. Narrow phase: the separating
+ * axis test on the six edge normals, in float64 from the float32 UVs, each projection taken
+ * relative to the edge's start so shared vertices project to exactly zero.
+ * Returns count = triangles involved in at least one overlap, and the first MAX_LISTED of their
+ * indices, ascending. When `marks` is given (length >= triangleCount), marks[t] is set to 1 for
+ * each overlapping triangle and 0 otherwise; when `stats` is given it receives the broad-phase
+ * figures. Memory: about 21 bytes per triangle plus the grid.
+ * Preconditions: indices hold 3 * triangleCount entries, each < uvs.length / 2.
+ */
+export function findUvOverlaps(
+  indices: Uint32Array,
+  uvs: Float32Array,
+  triangleCount: number,
+  marks: Uint8Array | null = null,
+  stats: UvOverlapStats | null = null,
+): Finding {
+  assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
+  assert(!marks || marks.length >= triangleCount, 'marks must hold one entry per triangle');
+  const flags = marks ?? new Uint8Array(triangleCount);
+  if (marks) flags.fill(0, 0, triangleCount);
+  // Per-triangle UV bounding boxes (exact: min/max of float32 values) and usability.
+  const box = new Float32Array(triangleCount * 4);
+  const usable = new Uint8Array(triangleCount);
+  let minU = Infinity, minV = Infinity, maxU = -Infinity, maxV = -Infinity;
+  let extentSum = 0, usableCount = 0;
+  for (let t = 0; t < triangleCount; t++) {
+    const i0 = indices[t * 3] * 2, i1 = indices[t * 3 + 1] * 2, i2 = indices[t * 3 + 2] * 2;
+    const u0 = uvs[i0], v0 = uvs[i0 + 1], u1 = uvs[i1], v1 = uvs[i1 + 1], u2 = uvs[i2], v2 = uvs[i2 + 1];
+    // x - x is 0 for finite x, NaN for NaN and +-Infinity.
+    if (u0 - u0 !== 0 || v0 - v0 !== 0 || u1 - u1 !== 0 || v1 - v1 !== 0 || u2 - u2 !== 0 || v2 - v2 !== 0) continue;
+    const du1 = u1 - u0, dv1 = v1 - v0, du2 = u2 - u0, dv2 = v2 - v0;
+    const det = du1 * dv2 - du2 * dv1;
+    if (!(Math.abs(det) > UV_DEGENERATE_RELATIVE * (du1 * du1 + dv1 * dv1 + du2 * du2 + dv2 * dv2))) continue;
+    let bu0 = u0 < u1 ? u0 : u1, bu1 = u0 < u1 ? u1 : u0;
+    if (u2 < bu0) bu0 = u2; else if (u2 > bu1) bu1 = u2;
+    let bv0 = v0 < v1 ? v0 : v1, bv1 = v0 < v1 ? v1 : v0;
+    if (v2 < bv0) bv0 = v2; else if (v2 > bv1) bv1 = v2;
+    box[t * 4] = bu0; box[t * 4 + 1] = bv0; box[t * 4 + 2] = bu1; box[t * 4 + 3] = bv1;
+    usable[t] = 1;
+    usableCount++;
+    if (bu0 < minU) minU = bu0;
+    if (bv0 < minV) minV = bv0;
+    if (bu1 > maxU) maxU = bu1;
+    if (bv1 > maxV) maxV = bv1;
+    const w = bu1 - bu0, h = bv1 - bv0;
+    extentSum += w > h ? w : h;
+  }
+  if (stats) { stats.cellsU = 0; stats.cellsV = 0; stats.gridTriangles = usableCount; stats.exactTests = 0; }
+  if (usableCount < 2) return findingFromMarks(flags, triangleCount);
+
+  // Grid size: mean extent, coarser while there are too many cells or too many entries.
+  const width = maxU - minU, height = maxV - minV;
+  const maxCells = Math.min(MAX_GRID_CELLS, CELLS_PER_TRIANGLE * usableCount + 16);
+  const maxEntries = ENTRIES_PER_TRIANGLE * usableCount;
+  let cell = extentSum / usableCount;
+  let nu = 1, nv = 1, inv = 1, entryCount = 0;
+  for (;;) {
+    nu = Math.max(1, Math.ceil(width / cell));
+    nv = Math.max(1, Math.ceil(height / cell));
+    if (nu * nv > maxCells) {
+      cell *= Math.max(1.0625, Math.sqrt((nu * nv) / maxCells));
+      continue;
+    }
+    inv = 1 / cell;
+    entryCount = 0;
+    for (let t = 0; t < triangleCount && entryCount <= maxEntries; t++) {
+      if (!usable[t]) continue;
+      const cu0 = cellOf(box[t * 4], minU, inv, nu), cu1 = cellOf(box[t * 4 + 2], minU, inv, nu);
+      const cv0 = cellOf(box[t * 4 + 1], minV, inv, nv), cv1 = cellOf(box[t * 4 + 3], minV, inv, nv);
+      entryCount += (cu1 - cu0 + 1) * (cv1 - cv0 + 1);
+    }
+    // A single cell holds each usable triangle once, so this ends.
+    if (entryCount <= maxEntries || (nu === 1 && nv === 1)) break;
+    cell *= 2;
+  }
+  const cellCount = nu * nv;
+
+  // Cell lists in compressed rows: count, prefix sums, fill.
+  const cellStart = new Uint32Array(cellCount + 1);
+  for (let t = 0; t < triangleCount; t++) {
+    if (!usable[t]) continue;
+    const cu0 = cellOf(box[t * 4], minU, inv, nu), cu1 = cellOf(box[t * 4 + 2], minU, inv, nu);
+    const cv0 = cellOf(box[t * 4 + 1], minV, inv, nv), cv1 = cellOf(box[t * 4 + 3], minV, inv, nv);
+    for (let cv = cv0; cv <= cv1; cv++) for (let cu = cu0; cu <= cu1; cu++) cellStart[cv * nu + cu + 1]++;
+  }
+  for (let c = 0; c < cellCount; c++) cellStart[c + 1] += cellStart[c];
+  const entries = new Uint32Array(cellStart[cellCount]);
+  const cursor = cellStart.slice(0, cellCount);
+  for (let t = 0; t < triangleCount; t++) {
+    if (!usable[t]) continue;
+    const cu0 = cellOf(box[t * 4], minU, inv, nu), cu1 = cellOf(box[t * 4 + 2], minU, inv, nu);
+    const cv0 = cellOf(box[t * 4 + 1], minV, inv, nv), cv1 = cellOf(box[t * 4 + 3], minV, inv, nv);
+    for (let cv = cv0; cv <= cv1; cv++) for (let cu = cu0; cu <= cu1; cu++) entries[cursor[cv * nu + cu]++] = t;
+  }
+
+  // Pairs within each cell; a pair is tested only in the cell of the lower-left corner of
+  // the intersection of its bounding boxes, so once over the whole grid.
+  let exactTests = 0;
+  for (let c = 0; c < cellCount; c++) {
+    const start = cellStart[c], end = cellStart[c + 1];
+    if (end - start < 2) continue;
+    const cu = c % nu, cv = (c - cu) / nu;
+    for (let i = start; i < end - 1; i++) {
+      const a = entries[i];
+      const aMinU = box[a * 4], aMinV = box[a * 4 + 1], aMaxU = box[a * 4 + 2], aMaxV = box[a * 4 + 3];
+      const a0 = indices[a * 3] * 2, a1 = indices[a * 3 + 1] * 2, a2 = indices[a * 3 + 2] * 2;
+      const au0 = uvs[a0], av0 = uvs[a0 + 1], au1 = uvs[a1], av1 = uvs[a1 + 1], au2 = uvs[a2], av2 = uvs[a2 + 1];
+      for (let j = i + 1; j < end; j++) {
+        const b = entries[j];
+        if (flags[a] !== 0 && flags[b] !== 0) continue; // nothing left to learn from this pair
+        const bMinU = box[b * 4], bMinV = box[b * 4 + 1], bMaxU = box[b * 4 + 2], bMaxV = box[b * 4 + 3];
+        // Boxes that only touch cannot overlap with positive area.
+        if (bMinU >= aMaxU || aMinU >= bMaxU || bMinV >= aMaxV || aMinV >= bMaxV) continue;
+        const ru = aMinU > bMinU ? aMinU : bMinU, rv = aMinV > bMinV ? aMinV : bMinV;
+        if (cellOf(ru, minU, inv, nu) !== cu || cellOf(rv, minV, inv, nv) !== cv) continue;
+        const b0 = indices[b * 3] * 2, b1 = indices[b * 3 + 1] * 2, b2 = indices[b * 3 + 2] * 2;
+        const bu0 = uvs[b0], bv0 = uvs[b0 + 1], bu1 = uvs[b1], bv1 = uvs[b1 + 1], bu2 = uvs[b2], bv2 = uvs[b2 + 1];
+        if (
+          hasPoint(au0, av0, bu0, bv0, bu1, bv1, bu2, bv2) &&
+          hasPoint(au1, av1, bu0, bv0, bu1, bv1, bu2, bv2) &&
+          hasPoint(au2, av2, bu0, bv0, bu1, bv1, bu2, bv2)
+        ) continue; // coincident UV triangles: intentional stacking / mirroring
+        exactTests++;
+        if (trianglesOverlap(au0, av0, au1, av1, au2, av2, bu0, bv0, bu1, bv1, bu2, bv2)) {
+          flags[a] = 1;
+          flags[b] = 1;
+        }
+      }
+    }
+  }
+  if (stats) { stats.cellsU = nu; stats.cellsV = nv; stats.exactTests = exactTests; }
+  return findingFromMarks(flags, triangleCount);
+}
+
+/**
+ * Whether two UV triangles overlap with positive area beyond the touching tolerances
+ * (UV_OVERLAP_ABSOLUTE, UV_OVERLAP_RELATIVE): no edge normal of either separates them.
+ * Exported for tests. Preconditions: both triangles are non-degenerate; values finite.
+ */
+export function trianglesOverlap(
+  au0: number, av0: number, au1: number, av1: number, au2: number, av2: number,
+  bu0: number, bv0: number, bu1: number, bv1: number, bu2: number, bv2: number,
+): boolean {
+  return !(
+    separates(au0, av0, au1, av1, au2, av2, bu0, bv0, bu1, bv1, bu2, bv2) ||
+    separates(au1, av1, au2, av2, au0, av0, bu0, bv0, bu1, bv1, bu2, bv2) ||
+    separates(au2, av2, au0, av0, au1, av1, bu0, bv0, bu1, bv1, bu2, bv2) ||
+    separates(bu0, bv0, bu1, bv1, bu2, bv2, au0, av0, au1, av1, au2, av2) ||
+    separates(bu1, bv1, bu2, bv2, bu0, bv0, au0, av0, au1, av1, au2, av2) ||
+    separates(bu2, bv2, bu0, bv0, bu1, bv1, au0, av0, au1, av1, au2, av2)
+  );
+}
+
+/**
+ * Whether the normal of edge p -> q (r being the triangle's third corner) separates the
+ * triangle from the triangle (x0,y0),(x1,y1),(x2,y2): the two projections overlap by no more
+ * than the touching tolerances. Projections are taken relative to p.
+ */
+function separates(
+  pu: number, pv: number, qu: number, qv: number, ru: number, rv: number,
+  x0: number, y0: number, x1: number, y1: number, x2: number, y2: number,
+): boolean {
+  const eu = qu - pu, ev = qv - pv;
+  const nu = -ev, nv = eu; // unnormalised edge normal
+  const dr = nu * (ru - pu) + nv * (rv - pv);
+  const d0 = nu * (x0 - pu) + nv * (y0 - pv);
+  const d1 = nu * (x1 - pu) + nv * (y1 - pv);
+  const d2 = nu * (x2 - pu) + nv * (y2 - pv);
+  const aLo = dr < 0 ? dr : 0, aHi = dr < 0 ? 0 : dr;
+  let bLo = d0 < d1 ? d0 : d1, bHi = d0 < d1 ? d1 : d0;
+  if (d2 < bLo) bLo = d2; else if (d2 > bHi) bHi = d2;
+  const depth = (aHi < bHi ? aHi : bHi) - (aLo > bLo ? aLo : bLo);
+  if (depth <= 0) return true;
+  // Absolute: depth / |n| <= UV_OVERLAP_ABSOLUTE, compared squared to avoid the root.
+  if (depth * depth <= UV_OVERLAP_ABSOLUTE * UV_OVERLAP_ABSOLUTE * (eu * eu + ev * ev)) return true;
+  const aLen = aHi - aLo, bLen = bHi - bLo;
+  return depth <= UV_OVERLAP_RELATIVE * (aLen < bLen ? aLen : bLen);
+}
+
+/** Whether (u, v) equals one of the three points exactly. */
+function hasPoint(
+  u: number, v: number,
+  u0: number, v0: number, u1: number, v1: number, u2: number, v2: number,
+): boolean {
+  return (u === u0 && v === v0) || (u === u1 && v === v1) || (u === u2 && v === v2);
+}
+
+/** Grid cell of coordinate x along one axis: floor((x - origin) * inv), clamped to [0, n - 1]. */
+function cellOf(x: number, origin: number, inv: number, n: number): number {
+  const c = Math.floor((x - origin) * inv);
+  return c < 0 ? 0 : c >= n ? n - 1 : c;
+}
