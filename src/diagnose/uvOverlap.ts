@@ -16,6 +16,12 @@ const MAX_GRID_CELLS = 1 << 22;
 const CELLS_PER_TRIANGLE = 4;
 /** Cell entries per usable triangle before the cells are made coarser (guards against a few huge triangles). */
 const ENTRIES_PER_TRIANGLE = 16;
+/** Triangles sampled to place the grid and scale its cells. */
+const MAX_SAMPLES = 65536;
+/** Fraction of sampled box corners left outside the grid on each side (stray UVs). */
+const TRIM = 0.01;
+/** Extents above this multiple of the median extent count as this multiple when averaging. */
+const EXTENT_CLIP = 16;
 
 /** How the broad phase of findUvOverlaps went (for tests and benchmarks). */
 export interface UvOverlapStats {
@@ -24,6 +30,8 @@ export interface UvOverlapStats {
   cellsV: number;
   /** Triangles entered into the grid (finite, non-degenerate UVs). */
   gridTriangles: number;
+  /** Pairs of triangles met in the grid's cells (the broad phase's own work). */
+  cellPairs: number;
   /** Candidate pairs given to the exact triangle-triangle test. */
   exactTests: number;
 }
@@ -43,7 +51,11 @@ export interface UvOverlapStats {
  * Broad phase: a uniform grid over the UV bounding box of the usable triangles, cell size the
  * mean of their bounding-box extents (max of width and height), made coarser while the grid
  * would exceed 4 cells per triangle (at most 2^22 cells) or the bounding boxes would fill more
- * than 16 cell entries per triangle; each pair is tested once. Narrow phase: the separating
+ * than 16 cell entries per triangle; each pair is tested once. So that stray triangles cannot
+ * wreck the grid, its bounds are the 1% and 99% quantiles of the box corners (from a sample
+ * of at most 65536 triangles; anything beyond falls into the border cells) and extents above
+ * 16 times the median extent are clipped before averaging. This changes only the speed, never
+ * the result. Narrow phase: the separating
  * axis test on the six edge normals, in float64 from the float32 UVs, each projection taken
  * relative to the edge's start so shared vertices project to exactly zero.
  * Returns count = triangles involved in at least one overlap, and the first MAX_LISTED of their
@@ -66,8 +78,7 @@ export function findUvOverlaps(
   // Per-triangle UV bounding boxes (exact: min/max of float32 values) and usability.
   const box = new Float32Array(triangleCount * 4);
   const usable = new Uint8Array(triangleCount);
-  let minU = Infinity, minV = Infinity, maxU = -Infinity, maxV = -Infinity;
-  let extentSum = 0, usableCount = 0;
+  let usableCount = 0;
   for (let t = 0; t < triangleCount; t++) {
     const i0 = indices[t * 3] * 2, i1 = indices[t * 3 + 1] * 2, i2 = indices[t * 3 + 2] * 2;
     const u0 = uvs[i0], v0 = uvs[i0 + 1], u1 = uvs[i1], v1 = uvs[i1 + 1], u2 = uvs[i2], v2 = uvs[i2 + 1];
@@ -83,15 +94,37 @@ export function findUvOverlaps(
     box[t * 4] = bu0; box[t * 4 + 1] = bv0; box[t * 4 + 2] = bu1; box[t * 4 + 3] = bv1;
     usable[t] = 1;
     usableCount++;
-    if (bu0 < minU) minU = bu0;
-    if (bv0 < minV) minV = bv0;
-    if (bu1 > maxU) maxU = bu1;
-    if (bv1 > maxV) maxV = bv1;
-    const w = bu1 - bu0, h = bv1 - bv0;
-    extentSum += w > h ? w : h;
   }
-  if (stats) { stats.cellsU = 0; stats.cellsV = 0; stats.gridTriangles = usableCount; stats.exactTests = 0; }
+  if (stats) { stats.cellsU = 0; stats.cellsV = 0; stats.gridTriangles = usableCount; stats.cellPairs = 0; stats.exactTests = 0; }
   if (usableCount < 2) return findingFromMarks(flags, triangleCount);
+
+  // Robust grid bounds and extent scale from an evenly strided sample of the usable triangles:
+  // the grid spans the TRIM..1-TRIM quantiles of the box corners (coordinates outside clamp
+  // into the border cells, so stray UVs far away cannot stretch the cells), and extents are
+  // clipped at EXTENT_CLIP times the median before averaging.
+  const stride = Math.ceil(usableCount / MAX_SAMPLES);
+  const sampleCount = Math.ceil(usableCount / stride);
+  const sMinU = new Float64Array(sampleCount), sMinV = new Float64Array(sampleCount);
+  const sMaxU = new Float64Array(sampleCount), sMaxV = new Float64Array(sampleCount);
+  const sExtent = new Float64Array(sampleCount);
+  for (let t = 0, k = 0, n = 0; t < triangleCount; t++) {
+    if (!usable[t]) continue;
+    if (k++ % stride !== 0) continue;
+    const w = box[t * 4 + 2] - box[t * 4], h = box[t * 4 + 3] - box[t * 4 + 1];
+    sMinU[n] = box[t * 4]; sMinV[n] = box[t * 4 + 1]; sMaxU[n] = box[t * 4 + 2]; sMaxV[n] = box[t * 4 + 3];
+    sExtent[n++] = w > h ? w : h;
+  }
+  sMinU.sort(); sMinV.sort(); sMaxU.sort(); sMaxV.sort(); sExtent.sort();
+  const lowRank = Math.floor(TRIM * sampleCount), highRank = sampleCount - 1 - lowRank;
+  const minU = sMinU[lowRank], minV = sMinV[lowRank], maxU = sMaxU[highRank], maxV = sMaxV[highRank];
+  const clip = EXTENT_CLIP * sExtent[sampleCount >> 1];
+  let extentSum = 0;
+  for (let t = 0; t < triangleCount; t++) {
+    if (!usable[t]) continue;
+    const w = box[t * 4 + 2] - box[t * 4], h = box[t * 4 + 3] - box[t * 4 + 1];
+    const e = w > h ? w : h;
+    extentSum += e < clip ? e : clip;
+  }
 
   // Grid size: mean extent, coarser while there are too many cells or too many entries.
   const width = maxU - minU, height = maxV - minV;
@@ -140,10 +173,11 @@ export function findUvOverlaps(
 
   // Pairs within each cell; a pair is tested only in the cell of the lower-left corner of
   // the intersection of its bounding boxes, so once over the whole grid.
-  let exactTests = 0;
+  let exactTests = 0, cellPairs = 0;
   for (let c = 0; c < cellCount; c++) {
     const start = cellStart[c], end = cellStart[c + 1];
     if (end - start < 2) continue;
+    cellPairs += ((end - start) * (end - start - 1)) / 2;
     const cu = c % nu, cv = (c - cu) / nu;
     for (let i = start; i < end - 1; i++) {
       const a = entries[i];
@@ -173,7 +207,7 @@ export function findUvOverlaps(
       }
     }
   }
-  if (stats) { stats.cellsU = nu; stats.cellsV = nv; stats.exactTests = exactTests; }
+  if (stats) { stats.cellsU = nu; stats.cellsV = nv; stats.cellPairs = cellPairs; stats.exactTests = exactTests; }
   return findingFromMarks(flags, triangleCount);
 }
 

@@ -20,7 +20,7 @@ import { findUvOverlaps, trianglesOverlap, type UvOverlapStats } from '../../src
 import { setTriangleUvs, unweldedGrid, weldedGrid } from './grids.js';
 
 function newStats(): UvOverlapStats {
-  return { cellsU: 0, cellsV: 0, gridTriangles: 0, exactTests: 0 };
+  return { cellsU: 0, cellsV: 0, gridTriangles: 0, cellPairs: 0, exactTests: 0 };
 }
 
 /** Mesh of independent triangles, 6 uv floats each. */
@@ -180,8 +180,36 @@ describe('findUvOverlaps', () => {
     expect(findUvOverlaps(g.indices, g.uvs, g.triangleCount, null, stats).count).toBe(0);
     expect(stats.gridTriangles).toBe(20000);
     expect(stats.cellsU * stats.cellsV).toBeGreaterThan(1000);
+    expect(stats.cellPairs).toBeLessThan(20 * 20000);
     // Only the two halves of each quad have overlapping bounding boxes.
     expect(stats.exactTests).toBe(10000);
+  });
+
+  it('keeps a fine grid when a few stray triangles lie far away', () => {
+    //  30 x 30 grid in the unit square (1800 triangles) and 10 + 10 small strays far off on
+    //  both sides (up to 1e6 away): without robust bounds the grid would be one cell.
+    const g = unweldedGrid(30);
+    const strays: number[] = [];
+    for (let k = 0; k < 10; k++) {
+      const far = 1000 * 10 ** (k % 4) + k;
+      strays.push(far, far, far + 0.01, far, far, far + 0.01);
+      strays.push(-far, -far, -far + 0.01, -far, -far, -far + 0.01);
+    }
+    const uvs = new Float32Array(g.uvs.length + strays.length);
+    uvs.set(g.uvs, 0);
+    uvs.set(strays, g.uvs.length);
+    const triangleCount = g.triangleCount + 20;
+    const indices = new Uint32Array(triangleCount * 3).map((_, i) => i);
+    const stats = newStats();
+    expect(findUvOverlaps(indices, uvs, triangleCount, null, stats)).toEqual({ count: 0, triangles: [] });
+    expect(stats.cellsU * stats.cellsV).toBeGreaterThan(100);
+    // A handful of triangles per cell: far below the 1.6e6 pairs of one cell holding the grid.
+    expect(stats.cellPairs).toBeLessThan(20 * 1820);
+    expect(stats.exactTests).toBeLessThanOrEqual(1000); // the 900 quad halves and little else
+    // Strays that do overlap are still found, wherever they fall.
+    // Stray 1800 is (1000,1000) (1000.01,1000) (1000,1000.01); move stray 1801 onto part of it.
+    uvs.set([1000.002, 1000.002, 1000.02, 1000.002, 1000.002, 1000.02], g.uvs.length + 6);
+    expect(findUvOverlaps(indices, uvs, triangleCount)).toEqual({ count: 2, triangles: [1800, 1801] });
   });
 
   it('stays correct when a few huge triangles cover a fine grid, and caps the list', () => {
