@@ -55,13 +55,15 @@ export interface UvOverlapStats {
  * wreck the grid, its bounds are the 1% and 99% quantiles of the box corners (from a sample
  * of at most 65536 triangles; anything beyond falls into the border cells) and extents above
  * 16 times the median extent are clipped before averaging. This changes only the speed, never
- * the result. Narrow phase: the separating
- * axis test on the six edge normals, in float64 from the float32 UVs, each projection taken
- * relative to the edge's start so shared vertices project to exactly zero.
+ * the result. Narrow phase: the separating axis test on the six edge normals, in float64 from
+ * the float32 UVs, each projection taken relative to the edge's start so shared vertices
+ * project to exactly zero. Cost: linear for ordinary atlases; many triangles each spanning
+ * much of the atlas make the cells they share quadratic in their number.
  * Returns count = triangles involved in at least one overlap, and the first MAX_LISTED of their
  * indices, ascending. When `marks` is given (length >= triangleCount), marks[t] is set to 1 for
  * each overlapping triangle and 0 otherwise; when `stats` is given it receives the broad-phase
- * figures. Memory: about 21 bytes per triangle plus the grid.
+ * figures. Memory: about 18 bytes per triangle plus the cell lists (4 bytes per cell and per
+ * cell entry).
  * Preconditions: indices hold 3 * triangleCount entries, each < uvs.length / 2.
  */
 export function findUvOverlaps(
