@@ -131,18 +131,18 @@ function extent(l: ElementLayout, count: number, stride: number): number {
 function readSparse(index: number, sparse: any, count: number, viewCount: number): SparseSpec {
   if (sparse === null || typeof sparse !== 'object') badAccessor(index, 'sparse is not an object');
   if (!isIndex(sparse.count) || sparse.count < 1 || sparse.count > count) {
-    badAccessor(index, `sparse.count ${sparse.count} must be between 1 and the accessor count ${count}`);
+    badAccessor(index, `sparse.count ${JSON.stringify(sparse.count)} must be between 1 and the accessor count ${count}`);
   }
   const ind = sparse.indices;
   const val = sparse.values;
   if (!ind || typeof ind !== 'object' || !val || typeof val !== 'object') badAccessor(index, 'sparse needs indices and values');
   for (const [name, o] of [['indices', ind], ['values', val]] as const) {
-    if (!isIndex(o.bufferView) || o.bufferView >= viewCount) badAccessor(index, `sparse.${name}.bufferView ${o.bufferView} does not exist`);
+    if (!isIndex(o.bufferView) || o.bufferView >= viewCount) badAccessor(index, `sparse.${name}.bufferView ${JSON.stringify(o.bufferView)} does not exist`);
     if (o.byteOffset !== undefined && !isIndex(o.byteOffset)) badAccessor(index, `sparse.${name}.byteOffset is not a non-negative integer`);
   }
   const ct = ind.componentType;
   if (ct !== UNSIGNED_BYTE && ct !== UNSIGNED_SHORT && ct !== UNSIGNED_INT) {
-    badAccessor(index, `sparse.indices.componentType ${ct} must be unsigned byte, short or int`);
+    badAccessor(index, `sparse.indices.componentType ${JSON.stringify(ct)} must be unsigned byte, short or int`);
   }
   return {
     count: sparse.count,
@@ -163,9 +163,8 @@ function readAccessorFields(json: any, index: number, viewCount: number): Access
   const a = list[index];
   if (a === null || typeof a !== 'object' || Array.isArray(a)) badAccessor(index, 'is not an object');
   const componentType = a.componentType;
-  if (COMPONENT_BYTES[componentType] === undefined) badAccessor(index, `componentType ${componentType} is not a glTF component type`);
-  const itemSize = TYPE_COMPONENTS[a.type];
-  if (itemSize === undefined || typeof a.type !== 'string') badAccessor(index, `type ${JSON.stringify(a.type)} is not a glTF accessor type`);
+  if (typeof componentType !== 'number' || !Object.hasOwn(COMPONENT_BYTES, componentType)) badAccessor(index, `componentType ${JSON.stringify(componentType)} is not a glTF component type`);
+  if (typeof a.type !== 'string' || !Object.hasOwn(TYPE_COMPONENTS, a.type)) badAccessor(index, `type ${JSON.stringify(a.type)} is not a glTF accessor type`);
   if (!isIndex(a.count) || a.count < 1) badAccessor(index, `count ${JSON.stringify(a.count)} is not a positive integer`);
   const normalized = a.normalized === undefined ? false : a.normalized;
   if (typeof normalized !== 'boolean') badAccessor(index, 'normalized is not a boolean');
@@ -177,13 +176,13 @@ function readAccessorFields(json: any, index: number, viewCount: number): Access
   if (!isIndex(byteOffset)) badAccessor(index, 'byteOffset is not a non-negative integer');
   let bufferView: number | null = null;
   if (a.bufferView !== undefined) {
-    if (!isIndex(a.bufferView) || a.bufferView >= viewCount) badAccessor(index, `bufferView ${a.bufferView} does not exist`);
+    if (!isIndex(a.bufferView) || a.bufferView >= viewCount) badAccessor(index, `bufferView ${JSON.stringify(a.bufferView)} does not exist`);
     bufferView = a.bufferView;
   } else if (byteOffset !== 0) {
     badAccessor(index, 'has a byteOffset but no bufferView');
   }
   const sparse = a.sparse === undefined ? null : readSparse(index, a.sparse, a.count, viewCount);
-  return { index, componentType, type: a.type, itemSize, normalized, count: a.count, bufferView, byteOffset, sparse };
+  return { index, componentType, type: a.type, itemSize: TYPE_COMPONENTS[a.type], normalized, count: a.count, bufferView, byteOffset, sparse };
 }
 
 /** Stride between elements: byteStride for vertex attributes, else tightly packed. */

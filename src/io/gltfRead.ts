@@ -34,6 +34,7 @@ import {
   type DecodeBudget,
   type ViewTable,
 } from './gltfAccessor.js';
+import { accessorRefs, bufferViewRefs, type IndexRef } from './gltfRefs.js';
 import { checkAttributeFormat, formatName } from './gltfSemantics.js';
 import { resolveResourceUri } from './uri.js';
 
@@ -55,6 +56,13 @@ const SAFE_REQUIRED_EXTENSIONS = new Set([
 
 /** Geometry compression extensions (decoding arrives in a later issue). */
 const COMPRESSION_EXTENSIONS = new Set(['KHR_draco_mesh_compression', 'EXT_meshopt_compression', 'KHR_meshopt_compression']);
+
+/**
+ * Deepest JSON nesting accepted. glTF documents nest a few levels (extras a few more); far
+ * deeper input is hostile and would exhaust the stack when the writer copies or serialises it.
+ * Common practice (a resource limit).
+ */
+const MAX_JSON_DEPTH = 512;
 
 /** Everything decoding needs, shared by the helpers below. */
 interface ReadContext {
@@ -99,6 +107,17 @@ function parseGltfJson(bytes: Uint8Array): any {
   }
   if (!isObject(json)) badGltf('the JSON is not an object');
   return json;
+}
+
+/** Refuses JSON nested deeper than MAX_JSON_DEPTH (iterative walk, no recursion). */
+function checkJsonDepth(json: unknown): void {
+  const stack: [unknown, number][] = [[json, 1]];
+  while (stack.length > 0) {
+    const [v, depth] = stack.pop()!;
+    if (v === null || typeof v !== 'object') continue;
+    if (depth > MAX_JSON_DEPTH) throw new TanframeError('bad-json', `the JSON nests deeper than ${MAX_JSON_DEPTH} levels`);
+    for (const child of Object.values(v as object)) if (child !== null && typeof child === 'object') stack.push([child, depth + 1]);
+  }
 }
 
 /** Checks asset.version (2.x) and the shape of the top-level arrays we use. */
@@ -181,7 +200,7 @@ function checkBufferViews(json: any, buffers: Uint8Array[]): ViewTable {
   const table: ViewTable = { bytes: [], strides: [] };
   for (let i = 0; i < list.length; i++) {
     const v = list[i];
-    if (!isIndex(v.buffer) || v.buffer >= buffers.length) badGltf(`bufferView ${i} names buffer ${v.buffer}, which does not exist`);
+    if (!isIndex(v.buffer) || v.buffer >= buffers.length) badGltf(`bufferView ${i} names buffer ${JSON.stringify(v.buffer)}, which does not exist`);
     if (!isIndex(v.byteLength) || v.byteLength < 1) badGltf(`bufferView ${i} byteLength is not a positive integer`);
     const offset = v.byteOffset ?? 0;
     if (!isIndex(offset)) badGltf(`bufferView ${i} byteOffset is not a non-negative integer`);
@@ -220,6 +239,7 @@ function checkMeshes(json: any): void {
       }
       for (const map of [prim.attributes, ...targets]) {
         for (const [sem, acc] of Object.entries(map)) {
+          if (sem === '__proto__') badGltf(`${where} has an attribute named '__proto__', which is not supported`);
           if (!isIndex(acc)) throw new TanframeError('bad-accessor', `${where} ${sem} accessor ${JSON.stringify(acc)} is not an index`);
         }
       }
@@ -228,6 +248,23 @@ function checkMeshes(json: any): void {
       }
     }
   }
+}
+
+/** Throws `code` for the first reference that names no element of a `length`-long array. */
+function checkRefs(refs: IndexRef[], length: number, what: string, code: 'bad-accessor' | 'bad-gltf'): void {
+  for (const r of refs) {
+    const v = r.holder[r.key];
+    if (!isIndex(v) || v >= length) throw new TanframeError(code, `${r.label} names ${what} ${JSON.stringify(v)}, which does not exist`);
+  }
+}
+
+/**
+ * Checks every accessor and buffer-view reference we know of (skins, animations, instancing,
+ * images, Draco primitives, meshes) names an existing element, so the writer can rely on them.
+ */
+function checkReferences(json: any): void {
+  checkRefs(accessorRefs(json, () => false), arrayOf(json, 'accessors').length, 'accessor', 'bad-accessor');
+  checkRefs(bufferViewRefs(json), arrayOf(json, 'bufferViews').length, 'bufferView', 'bad-gltf');
 }
 
 /** Accessor indices that primitives use as vertex attributes (byteStride applies to them). */
@@ -383,12 +420,14 @@ export async function readGltfBytes(bytes: Uint8Array, sourcePath: string): Prom
   if (bytes.length === 0) throw new TanframeError('empty-file', 'the file is empty (0 bytes)');
   const isGlb = looksLikeGlb(bytes) || path.extname(sourcePath).toLowerCase() === '.glb';
   const { json, bin } = isGlb ? parseGlb(bytes) : { json: parseGltfJson(bytes), bin: null };
+  checkJsonDepth(json);
   checkTopLevel(json);
   checkRequiredExtensions(json);
   const baseDir = path.dirname(path.resolve(sourcePath));
   const buffers = await resolveBuffers(json, bin, isGlb, baseDir);
   const views = checkBufferViews(json, buffers);
   checkMeshes(json);
+  checkReferences(json);
   checkAllAccessors(json, views);
   const inputBytes = bytes.byteLength + buffers.reduce((s, b) => s + b.byteLength, 0);
   const limit = DECODE_BUDGET_BASE + DECODE_BUDGET_FACTOR * inputBytes;

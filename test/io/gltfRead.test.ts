@@ -283,6 +283,17 @@ describe('readGltf refuses bad files with the right code', () => {
     await expect(readGltf(await glbFile(glbBytes(json, bin)))).rejects.toMatchObject({ code: 'bad-accessor', message: expect.stringMatching(/needs 60 bytes.*has 48/) });
   });
 
+  it('accessor fields of the wrong JSON type (numeric strings, inherited names)', async () => {
+    for (const [field, value] of [['componentType', '5126'], ['type', 'constructor'], ['type', 'toString'], ['count', '4']]) {
+      // on an application-specific attribute, which no semantic table would catch
+      const prim = quad();
+      prim.attributes._X = { array: new Float32Array(4), type: 'SCALAR' };
+      const { json, bin } = buildGltf([prim]);
+      json.accessors[json.meshes[0].primitives[0].attributes._X][field] = value;
+      await expect(readGltf(await glbFile(glbBytes(json, bin))), `${field}=${value}`).rejects.toMatchObject({ code: 'bad-accessor' });
+    }
+  });
+
   it('accessor index that does not exist', async () => {
     const { json, bin } = buildGltf([quad()]);
     json.meshes[0].primitives[0].attributes.NORMAL = 99;
