@@ -353,11 +353,29 @@ function decodeIndices(ctx: ReadContext, index: number, vertexCount: number, whe
   return out;
 }
 
+/**
+ * A Draco-compressed primitive is readable without a decoder only when its accessors also
+ * carry uncompressed data (the optional-extension fallback); otherwise they would read as zeros.
+ */
+function checkDracoFallback(ctx: ReadContext, prim: any, where: string): void {
+  if (!isObject(prim.extensions?.KHR_draco_mesh_compression)) return;
+  const used: number[] = [...Object.values(prim.attributes as Record<string, number>)];
+  for (const t of prim.targets ?? []) used.push(...(Object.values(t) as number[]));
+  if (prim.indices !== undefined) used.push(prim.indices);
+  for (const i of used) {
+    const acc = ctx.json.accessors[i];
+    if (acc.bufferView === undefined && acc.sparse === undefined) {
+      throw new TanframeError('unsupported-feature', `${where}: KHR_draco_mesh_compression data without an uncompressed fallback is not supported yet`);
+    }
+  }
+}
+
 /** Decodes one primitive (attributes, targets, indices). */
 function decodePrimitive(ctx: ReadContext, m: number, p: number): PrimitiveData {
   const mesh = ctx.json.meshes[m];
   const prim = mesh.primitives[p];
   const where = `mesh ${m} primitive ${p}`;
+  checkDracoFallback(ctx, prim, where);
   const counts = { value: null as number | null };
   const attributes = decodeAttributeMap(ctx, prim.attributes, false, where, counts);
   const targets = (prim.targets ?? []).map((t: Record<string, number>) => decodeAttributeMap(ctx, t, true, where, counts));

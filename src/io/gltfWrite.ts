@@ -203,10 +203,15 @@ function vertexLayoutBytes(a: AttributeData, count: number): { bytes: Uint8Array
   const stride = align4(packed);
   if (stride === dense) return { bytes: src, stride: undefined };
   const out = new Uint8Array(count * stride);
+  const cols = l.cols;
+  const colBytes = l.colBytes;
+  const colStride = l.colStride;
+  let s = 0;
   for (let i = 0; i < count; i++) {
-    for (let c = 0; c < l.cols; c++) {
-      const s = i * dense + c * l.colBytes;
-      out.set(src.subarray(s, s + l.colBytes), i * stride + c * l.colStride);
+    for (let c = 0; c < cols; c++) {
+      const d = i * stride + c * colStride;
+      for (let k = 0; k < colBytes; k++) out[d + k] = src[s + k];
+      s += colBytes;
     }
   }
   return { bytes: out, stride: stride === packed ? undefined : stride };

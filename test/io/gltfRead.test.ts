@@ -383,6 +383,16 @@ describe('readGltf refuses bad files with the right code', () => {
     }
   });
 
+  it('an optional Draco primitive: readable through its fallback, refused without one', async () => {
+    const { json, bin } = buildGltf([quad()], { extensionsUsed: ['KHR_draco_mesh_compression'] });
+    json.bufferViews.push({ buffer: 0, byteOffset: 0, byteLength: 4 });
+    json.meshes[0].primitives[0].extensions = { KHR_draco_mesh_compression: { bufferView: json.bufferViews.length - 1, attributes: { POSITION: 0 } } };
+    const asset = await readGltf(await glbFile(glbBytes(json, bin)));
+    expect(asset.primitives[0].attributes.POSITION.array).toEqual(POS);
+    delete json.accessors[json.meshes[0].primitives[0].attributes.NORMAL].bufferView;
+    await expect(readGltf(await glbFile(glbBytes(json, bin)))).rejects.toMatchObject({ code: 'unsupported-feature', message: expect.stringMatching(/KHR_draco_mesh_compression/) });
+  });
+
   it('glTF 1.0 and a missing asset.version', async () => {
     const { json, bin } = buildGltf([quad()]);
     json.asset.version = '1.0';
