@@ -19,9 +19,11 @@ export const MIKK_NOT_ZERO = 1.1754943508222875e-38;
 
 /**
  * Geometry-degenerate test: a triangle whose |cross(e1,e2)| <= GEOMETRY_DEGENERATE_RELATIVE *
- * (|e1|^2 + |e2|^2) has no usable area (collinear or coincident corners). Common practice.
+ * (|e1|^2 + |e2|^2) has no usable area (collinear or coincident corners). 1e-7 is about
+ * float32 rounding, so points colinear before rounding to float32 are still caught. Common
+ * practice, no single source.
  */
-export const GEOMETRY_DEGENERATE_RELATIVE = 1e-10;
+export const GEOMETRY_DEGENERATE_RELATIVE = 1e-7;
 
 /**
  * Unit-length tolerance for stored NORMAL and TANGENT xyz: | |v| - 1 | beyond this is

@@ -1,0 +1,44 @@
+/**
+ * `tanframe audit`: inspect, report and gate; never writes meshes.
+ */
+import * as path from 'node:path';
+import { Command } from 'commander';
+import { expandInputs } from '../io/inputs.js';
+import type { FileJob } from '../lib/processFile.js';
+import { buildReport } from '../report/json.js';
+import type { FileReport } from '../report/types.js';
+import { reportOptions, sortReports } from './bake.js';
+import { runFiles } from './runFiles.js';
+import { addSharedOptions, emitReport, exitStatus, shardOf, toProcessOptions, toolVersion, type CliIo } from './shared.js';
+
+/** Registers `audit` on `program`; `done` receives the exit status. */
+export function registerAudit(program: Command, io: CliIo, done: (code: number) => void): void {
+  const cmd = program
+    .command('audit')
+    .description('inspect meshes, report findings and fail the build on chosen gates (writes no meshes)')
+    .argument('<inputs...>', 'files (.glb .gltf .obj), folders (searched recursively) or glob patterns');
+  addSharedOptions(cmd);
+  cmd.action(async (inputs: string[], o: Record<string, any>) => {
+    done(await runAudit(inputs, o, io));
+  });
+}
+
+/** The `audit` command's body, callable in-process. Returns the exit status. */
+export async function runAudit(inputs: string[], o: Record<string, any>, io: CliIo): Promise<number> {
+  const started = performance.now();
+  const options = toProcessOptions(o);
+  const expanded = await expandInputs(inputs, io.cwd);
+  const display = (abs: string) => path.relative(io.cwd, abs) || abs;
+  const reports: FileReport[] = expanded.problems.map((p) => ({
+    input: p.input, output: null, status: 'failed' as const, error: { code: 'read-failed', message: p.message },
+    gates: [], primitives: [], warnings: [], seconds: 0,
+  }));
+  const jobs: FileJob[] = shardOf(expanded.files, o.shard).map((f) => ({
+    command: 'audit', input: f.path, output: null, format: null, dryRun: true, displayInput: display(f.path), displayOutput: null,
+  }));
+  reports.push(...(await runFiles(jobs, options, o.jobs ?? 1)));
+  const seconds = (performance.now() - started) / 1000;
+  const report = buildReport('audit', toolVersion(), options.method, reportOptions(o), sortReports(reports), seconds);
+  await emitReport(report, o, io);
+  return exitStatus(report.files);
+}

@@ -1,0 +1,131 @@
+/**
+ * Options shared by `bake` and `audit`, their parsing into ProcessOptions, and the run over a
+ * list of files that both commands share.
+ */
+import * as fs from 'node:fs';
+import * as path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { Command, InvalidArgumentError, Option } from 'commander';
+import { TanframeError } from '../mesh/errors.js';
+import { GATE_NAMES, defaultProcessOptions, type GateName, type ProcessOptions } from '../lib/options.js';
+import { writeFilesAtomic } from '../io/files.js';
+import type { FileReport, Report } from '../report/types.js';
+import { renderSummary } from '../report/summary.js';
+
+/** Where the CLI reads and writes; injectable so tests run it in-process. */
+export interface CliIo {
+  stdout: (s: string) => void;
+  stderr: (s: string) => void;
+  cwd: string;
+  /** stdout is a terminal (colour, progress). */
+  isTTY: boolean;
+  env: Record<string, string | undefined>;
+}
+
+/** The package version, read once from package.json. */
+export function toolVersion(): string {
+  try {
+    const here = path.dirname(fileURLToPath(import.meta.url));
+    const pkg = JSON.parse(fs.readFileSync(path.join(here, '..', '..', 'package.json'), 'utf8'));
+    return String(pkg.version);
+  } catch {
+    return '0.0.0';
+  }
+}
+
+function intArg(min: number) {
+  return (value: string): number => {
+    if (!/^\d+$/.test(value) || Number(value) < min) throw new InvalidArgumentError(`expected an integer >= ${min}`);
+    return Number(value);
+  };
+}
+
+function numberArg(min: number, max: number) {
+  return (value: string): number => {
+    const x = Number(value);
+    if (value.trim() === '' || !Number.isFinite(x) || x < min || x > max) throw new InvalidArgumentError(`expected a number in [${min}, ${max}]`);
+    return x;
+  };
+}
+
+function gateList(value: string): GateName[] {
+  const names = value.split(',').map((s) => s.trim()).filter(Boolean);
+  for (const g of names) {
+    if (!(GATE_NAMES as readonly string[]).includes(g)) {
+      throw new InvalidArgumentError(`unknown gate '${g}' (gates: ${GATE_NAMES.join(', ')})`);
+    }
+  }
+  return names as GateName[];
+}
+
+function shardArg(value: string): { k: number; n: number } {
+  const m = /^(\d+)\/(\d+)$/.exec(value);
+  if (!m || Number(m[2]) < 1 || Number(m[1]) < 1 || Number(m[1]) > Number(m[2])) {
+    throw new InvalidArgumentError('expected k/n with 1 <= k <= n');
+  }
+  return { k: Number(m[1]), n: Number(m[2]) };
+}
+
+/** Adds the options `bake` and `audit` share (DESIGN.md). */
+export function addSharedOptions(cmd: Command): Command {
+  return cmd
+    .addOption(new Option('--method <method>', 'tangent method').choices(['mikktspace', 'lengyel']).default('mikktspace'))
+    .addOption(new Option('--weight <weight>', 'how lengyel sums triangle tangents').choices(['derivative', 'angle', 'area', 'uniform']).default('derivative'))
+    .option('--uv <n>', 'TEXCOORD set to derive frames from (default: the normal texture\'s set, else 0)', intArg(0))
+    .option('--all-primitives', 'also primitives whose material has no normal texture', false)
+    .option('--fail-on <gates>', `comma list of gates: ${GATE_NAMES.join(', ')}`, gateList, [])
+    .option('--max-degenerate-uv <n>', 'degenerate UV triangles tolerated per file before the gate trips', intArg(0), 0)
+    .option('--tolerance <deg>', 'angle beyond which a stored tangent counts as mismatched', numberArg(0, 180), 1)
+    .option('--uv-epsilon <x>', 'relative UV area below which a triangle is degenerate', numberArg(0, 1))
+    .option('--report <file>', 'write the JSON report to this file')
+    .option('--jobs <n>', 'worker threads (default: available cores)', intArg(1))
+    .option('--shard <k/n>', 'process only the k-th of n slices of the sorted input list', shardArg)
+    .option('--json', 'print the JSON report on stdout instead of the summary', false)
+    .option('--quiet', 'print nothing but errors', false)
+    .option('--no-progress', 'never show a progress bar')
+    .option('--debug', 'show stack traces of internal errors', false);
+}
+
+/** Translates parsed shared options into ProcessOptions. */
+export function toProcessOptions(o: Record<string, any>): ProcessOptions {
+  const p = defaultProcessOptions();
+  p.method = o.method;
+  p.weight = o.weight;
+  p.uv = o.uv ?? null;
+  p.allPrimitives = !!o.allPrimitives;
+  p.failOn = o.failOn ?? [];
+  p.maxDegenerateUv = o.maxDegenerateUv ?? 0;
+  p.tolerance = o.tolerance ?? p.tolerance;
+  if (o.uvEpsilon !== undefined) p.uvEpsilon = o.uvEpsilon;
+  return p;
+}
+
+/** The shard of a sorted list: items whose position modulo n is k-1. */
+export function shardOf<T>(items: T[], shard: { k: number; n: number } | undefined): T[] {
+  if (!shard) return items;
+  return items.filter((_, i) => i % shard.n === shard.k - 1);
+}
+
+/** Exit status for a finished run (DESIGN.md): 2 if a file failed, 1 if a gate tripped, else 0. */
+export function exitStatus(files: FileReport[]): number {
+  if (files.some((f) => f.status === 'failed')) return 2;
+  if (files.some((f) => f.gates.length > 0)) return 1;
+  return 0;
+}
+
+/** Prints failures (one line each, on stderr), then the summary or JSON, and writes --report. */
+export async function emitReport(report: Report, o: Record<string, any>, io: CliIo): Promise<void> {
+  for (const f of report.files) {
+    if (f.status === 'failed') io.stderr(`tanframe: ${f.input}: ${f.error?.message ?? 'failed'}\n`);
+  }
+  if (o.report) {
+    const target = path.resolve(io.cwd, o.report);
+    try {
+      await writeFilesAtomic([{ path: target, bytes: new TextEncoder().encode(JSON.stringify(report, null, 2) + '\n') }]);
+    } catch (err) {
+      throw new TanframeError('write-failed', `cannot write the report ${o.report}: ${(err as Error).message}`);
+    }
+  }
+  if (o.json) io.stdout(JSON.stringify(report, null, 2) + '\n');
+  else if (!o.quiet) io.stdout(renderSummary(report, { color: io.isTTY && !io.env.NO_COLOR }));
+}

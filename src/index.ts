@@ -1,0 +1,21 @@
+/**
+ * tanframe's library API. `computeFrames` is the stable contract (DESIGN.md); the file-level
+ * functions are the same ones the CLI uses.
+ */
+export { computeFrames } from './frames/computeFrames.js';
+export type { FrameInput, FrameOptions, FrameResult, FrameStats, FrameMethod, TangentWeight, UvOrigin } from './mesh/types.js';
+export { TanframeError, type ErrorCode } from './mesh/errors.js';
+export type { Asset, AttributeData, PrimitiveData, PrimitiveReplacement } from './mesh/asset.js';
+export { readAsset, processFile, outputFormat, type FileJob } from './lib/processFile.js';
+export { solveAsset, solvePrimitive, type AssetSolve } from './lib/bakeAsset.js';
+export { defaultProcessOptions, GATE_NAMES, type GateName, type ProcessOptions } from './lib/options.js';
+export { trippedGates } from './lib/gates.js';
+export { readGltf } from './io/gltfRead.js';
+export { readObj } from './io/objRead.js';
+export { encodeGltf } from './io/gltfWrite.js';
+export { writeFilesAtomic } from './io/files.js';
+export { expandInputs } from './io/inputs.js';
+export { buildReport, summarize } from './report/json.js';
+export { renderSummary } from './report/summary.js';
+export type { Report, FileReport, PrimitiveReport, ReportSummary, StoredTangentReport, TriangleFinding } from './report/types.js';
+export { main as runCli } from './cli/main.js';

@@ -1,0 +1,187 @@
+/**
+ * The solve step over a whole asset: for each mesh primitive, decide whether it takes part,
+ * expand strips and fans, generate missing normals, compute frames, split vertices and build
+ * the replacement geometry the writer stores. Pure: no file system, no console.
+ */
+import type { Asset, AttributeData, PrimitiveData, PrimitiveReplacement } from '../mesh/asset.js';
+import { FLOAT } from '../mesh/asset.js';
+import { composeSource, gatherAttribute, toFloat32 } from '../mesh/decode.js';
+import { generateNormals } from '../mesh/normals.js';
+import { expandToTriangleList, isTriangleMode } from '../mesh/triangulate.js';
+import { computeFrames } from '../frames/computeFrames.js';
+import type { PrimitiveReport } from '../report/types.js';
+import { diagnosePrimitive } from './diagnosePrimitive.js';
+import { tangentNeedOf } from './material.js';
+import type { ProcessOptions } from './options.js';
+
+/** Result of solving every primitive of an asset. */
+export interface AssetSolve {
+  primitives: PrimitiveReport[];
+  /** Keyed by index into asset.primitives; only primitives whose geometry changes. */
+  replacements: Map<number, PrimitiveReplacement>;
+}
+
+function emptyReport(p: PrimitiveData, options: ProcessOptions): PrimitiveReport {
+  return {
+    mesh: p.mesh,
+    meshName: p.meshName,
+    primitive: p.primitive,
+    material: p.material,
+    uvSet: null,
+    normalMapped: false,
+    method: options.method,
+    action: 'skipped',
+    skipReason: null,
+    triangles: 0,
+    verticesIn: p.attributes.POSITION ? p.attributes.POSITION.array.length / 3 : 0,
+    verticesOut: 0,
+    splitVertices: 0,
+    degenerateUv: { count: 0, triangles: [] },
+    degenerateGeometry: { count: 0, triangles: [] },
+    invalidValues: { count: 0 },
+    badNormals: { count: 0 },
+    mirroredTriangles: 0,
+    uvOverlap: { count: 0, triangles: [] },
+    storedTangents: null,
+    normalsGenerated: null,
+    fallbackTangents: 0,
+  };
+}
+
+function normalizedCopy(src: Float32Array): Float32Array {
+  const out = new Float32Array(src.length);
+  for (let i = 0; i < src.length; i += 3) {
+    const x = src[i], y = src[i + 1], z = src[i + 2];
+    const l = Math.sqrt(x * x + y * y + z * z);
+    if (l > 0 && Number.isFinite(l)) { out[i] = x / l; out[i + 1] = y / l; out[i + 2] = z / l; }
+  }
+  return out;
+}
+
+function floatAttribute(array: Float32Array, itemSize: number): AttributeData {
+  return { array, itemSize, type: itemSize === 1 ? 'SCALAR' : `VEC${itemSize}`, componentType: FLOAT, normalized: false };
+}
+
+/**
+ * Solves one primitive. Returns its report and, when its geometry changes, the replacement.
+ * Degenerate geometry never throws: it is counted in the report.
+ */
+export function solvePrimitive(
+  asset: Asset,
+  p: PrimitiveData,
+  options: ProcessOptions,
+): { report: PrimitiveReport; replacement: PrimitiveReplacement | null } {
+  const report = emptyReport(p, options);
+  const skip = (reason: string) => {
+    report.skipReason = reason;
+    report.verticesOut = report.verticesIn;
+    return { report, replacement: null };
+  };
+  const pos = p.attributes.POSITION;
+  if (!pos) return skip('no-position');
+  if (!isTriangleMode(p.mode)) return skip('not-triangles');
+  const need = tangentNeedOf(asset.json, p.material);
+  const uvSet = options.uv ?? need.texCoord;
+  report.uvSet = uvSet;
+  report.normalMapped = need.needsTangents;
+  if (!need.needsTangents && !options.allPrimitives && asset.container !== 'obj') return skip('no-normal-texture');
+  const uvAttr = p.attributes[`TEXCOORD_${uvSet}`];
+  if (!uvAttr) return skip('no-texcoord');
+  const vertexCount = pos.array.length / 3;
+  const tri = expandToTriangleList(p.mode, p.indices, vertexCount);
+  const triangleCount = tri.length / 3;
+  report.triangles = triangleCount;
+  if (triangleCount === 0) return skip('empty');
+
+  let positions = toFloat32(pos);
+  let uvs = toFloat32(uvAttr);
+  let normals: Float32Array;
+  let indices = tri;
+  let genSource: Uint32Array | null = null;
+  const normalAttr = p.attributes.NORMAL;
+  if (!normalAttr || options.normals !== 'keep') {
+    const mode = options.normals === 'smooth' ? 'smooth' : 'flat';
+    const g = generateNormals(tri, positions, triangleCount, vertexCount, mode, options.smoothAngle);
+    genSource = g.sourceVertex;
+    positions = gatherFloats(positions, 3, genSource);
+    uvs = gatherFloats(uvs, 2, genSource);
+    normals = g.normals;
+    indices = g.indices;
+    report.normalsGenerated = mode;
+  } else {
+    normals = normalizedCopy(toFloat32(normalAttr));
+  }
+
+  const frames = computeFrames(
+    { positions, normals, uvs, indices, faces: p.faces },
+    { method: options.method, weight: options.weight, uvOrigin: 'top-left' },
+  );
+  const source = genSource ? composeSource(genSource, frames.sourceVertex) : frames.sourceVertex;
+  report.verticesOut = source.length;
+  report.splitVertices = genSource ? frames.stats.splitVertices : source.length - vertexCount;
+  report.mirroredTriangles = frames.stats.mirroredTriangles;
+  report.fallbackTangents = frames.stats.fallbackTangents;
+
+  const stored = p.attributes.TANGENT && report.normalsGenerated === null ? toFloat32(p.attributes.TANGENT) : null;
+  const verdict = diagnosePrimitive(report, {
+    indices: tri,
+    positions: toFloat32(pos),
+    normals: normalAttr ? toFloat32(normalAttr) : null,
+    uvs: toFloat32(uvAttr),
+    storedTangents: stored,
+    vertexCount,
+    triangleCount,
+    computedTangents: frames.tangents,
+    computedIndices: frames.indices,
+    sourceVertex: source,
+    uvEpsilon: options.uvEpsilon,
+    toleranceDeg: options.tolerance,
+  });
+
+  if (options.keepExisting && stored && verdict.storedTangentsValid) {
+    report.action = 'kept';
+    report.verticesOut = vertexCount;
+    report.splitVertices = 0;
+    return { report, replacement: null };
+  }
+
+  const attributes: Record<string, AttributeData> = {};
+  for (const name of Object.keys(p.attributes).sort()) {
+    if (name === 'TANGENT') continue;
+    if (name === 'NORMAL' && report.normalsGenerated) continue;
+    attributes[name] = gatherAttribute(p.attributes[name], source);
+  }
+  if (report.normalsGenerated) attributes.NORMAL = floatAttribute(gatherFloats(normals, 3, frames.sourceVertex), 3);
+  attributes.TANGENT = floatAttribute(frames.tangents, 4);
+  const targets = p.targets.map((target) => {
+    const out: Record<string, AttributeData> = {};
+    for (const name of Object.keys(target).sort()) out[name] = gatherAttribute(target[name], source);
+    return out;
+  });
+  report.action = 'baked';
+  return { report, replacement: { attributes, indices: frames.indices, targets } };
+}
+
+/**
+ * Solves every primitive of `asset` in json order. Returns the reports and the replacements
+ * for primitives whose geometry changes.
+ */
+export function solveAsset(asset: Asset, options: ProcessOptions): AssetSolve {
+  const primitives: PrimitiveReport[] = [];
+  const replacements = new Map<number, PrimitiveReplacement>();
+  for (let i = 0; i < asset.primitives.length; i++) {
+    const r = solvePrimitive(asset, asset.primitives[i], options);
+    primitives.push(r.report);
+    if (r.replacement) replacements.set(i, r.replacement);
+  }
+  return { primitives, replacements };
+}
+
+function gatherFloats(src: Float32Array, k: number, source: Uint32Array): Float32Array {
+  const out = new Float32Array(source.length * k);
+  for (let i = 0; i < source.length; i++) {
+    const s = source[i] * k, o = i * k;
+    for (let j = 0; j < k; j++) out[o + j] = src[s + j];
+  }
+  return out;
+}

@@ -1,0 +1,67 @@
+/**
+ * Runs the diagnostics of src/diagnose over one solved primitive and fills its report.
+ */
+import {
+  compareStoredTangents,
+  countInvalidVertices,
+  findBadNormals,
+  findDegenerateGeometry,
+  findDegenerateUvTriangles,
+  findUvOverlaps,
+  isStoredTangentSetValid,
+} from '../diagnose/index.js';
+import type { PrimitiveReport } from '../report/types.js';
+
+/** What the diagnostics read. Arrays are the primitive's decoded input, before any split. */
+export interface DiagnoseInput {
+  indices: Uint32Array;
+  positions: Float32Array;
+  normals: Float32Array | null;
+  uvs: Float32Array;
+  storedTangents: Float32Array | null;
+  vertexCount: number;
+  triangleCount: number;
+  computedTangents: Float32Array;
+  computedIndices: Uint32Array;
+  sourceVertex: Uint32Array;
+  uvEpsilon: number;
+  toleranceDeg: number;
+}
+
+/** Verdicts the caller acts on. */
+export interface DiagnoseVerdict {
+  /** Every stored tangent is finite, unit, orthogonal to its normal, with w = +1 | -1. */
+  storedTangentsValid: boolean;
+}
+
+/**
+ * Fills the finding fields of `report` (degenerate UV and geometry, invalid values, bad
+ * normals, UV overlap, stored-vs-recomputed tangents) from `input`. Returns the verdicts.
+ * Precondition: computedTangents / computedIndices come from solving this same primitive and
+ * sourceVertex maps each output vertex to an input vertex.
+ */
+export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput): DiagnoseVerdict {
+  const { indices, positions, normals, uvs, storedTangents, vertexCount, triangleCount } = input;
+  report.degenerateUv = findDegenerateUvTriangles(indices, uvs, triangleCount, input.uvEpsilon);
+  report.degenerateGeometry = findDegenerateGeometry(indices, positions, triangleCount);
+  report.invalidValues = { count: countInvalidVertices(vertexCount, positions, normals, uvs, storedTangents) };
+  report.badNormals = { count: normals ? findBadNormals(indices, positions, normals, triangleCount, vertexCount).count : 0 };
+  report.uvOverlap = findUvOverlaps(indices, uvs, triangleCount);
+  let valid = false;
+  if (storedTangents) {
+    const c = compareStoredTangents(
+      storedTangents, input.computedTangents, input.sourceVertex, input.computedIndices, normals, vertexCount, input.toleranceDeg,
+    );
+    report.storedTangents = {
+      invalid: c.invalid,
+      meanAngleDeg: c.meanAngleDeg,
+      p95AngleDeg: c.p95AngleDeg,
+      maxAngleDeg: c.maxAngleDeg,
+      signMismatch: c.signMismatch,
+      compared: c.compared,
+      mismatched: c.mismatched,
+    };
+    valid = isStoredTangentSetValid(storedTangents, normals, vertexCount);
+  }
+  return { storedTangentsValid: valid };
+}

@@ -1,0 +1,94 @@
+/**
+ * One file, start to finish: read, solve, diagnose, (bake only) encode and write atomically.
+ * Every failure becomes a `failed` file report with a stable code; nothing is written for a
+ * file that fails.
+ */
+import * as path from 'node:path';
+import type { Asset } from '../mesh/asset.js';
+import { TanframeError } from '../mesh/errors.js';
+import { writeFilesAtomic } from '../io/files.js';
+import { readGltf } from '../io/gltfRead.js';
+import { encodeGltf } from '../io/gltfWrite.js';
+import { readObj } from '../io/objRead.js';
+import type { FileReport } from '../report/types.js';
+import { solveAsset } from './bakeAsset.js';
+import { trippedGates } from './gates.js';
+import type { ProcessOptions } from './options.js';
+
+/** What to do with one file. */
+export interface FileJob {
+  command: 'bake' | 'audit';
+  /** Absolute input path. */
+  input: string;
+  /** Absolute output path (bake), or null (audit, dry run). */
+  output: string | null;
+  /** Output container; null keeps the input's (GLB for OBJ). */
+  format: 'glb' | 'gltf' | null;
+  dryRun: boolean;
+  /** How the report names the input and output (paths as the user gave them). */
+  displayInput: string;
+  displayOutput: string | null;
+}
+
+/** Reads any supported mesh file by its extension. */
+export async function readAsset(file: string): Promise<Asset> {
+  const ext = path.extname(file).toLowerCase();
+  if (ext === '.glb' || ext === '.gltf') return readGltf(file);
+  if (ext === '.obj') return readObj(file);
+  throw new TanframeError('unsupported-format', `unsupported file type '${ext || '(none)'}' (expected .glb, .gltf or .obj)`);
+}
+
+/** The output container for an asset: the requested one, else the input's, GLB for OBJ. */
+export function outputFormat(container: Asset['container'], requested: 'glb' | 'gltf' | null): 'glb' | 'gltf' {
+  if (requested) return requested;
+  return container === 'gltf' ? 'gltf' : 'glb';
+}
+
+/** Turns any thrown value into a report error with a one-line message. */
+export function toReportError(err: unknown): { code: string; message: string } {
+  if (err instanceof TanframeError) return { code: err.code, message: oneLine(err.message) };
+  const message = err instanceof Error ? err.message : String(err);
+  return { code: 'internal', message: oneLine(message) };
+}
+
+function oneLine(s: string): string {
+  return s.replace(/\s*[\r\n]+\s*/g, ' ').trim();
+}
+
+/**
+ * Processes one file and returns its report (never throws for bad input; programming errors
+ * surface as code 'internal').
+ */
+export async function processFile(job: FileJob, options: ProcessOptions): Promise<FileReport> {
+  const started = performance.now();
+  const report: FileReport = {
+    input: job.displayInput,
+    output: null,
+    status: 'ok',
+    error: null,
+    gates: [],
+    primitives: [],
+    warnings: [],
+    seconds: 0,
+  };
+  try {
+    const asset = await readAsset(job.input);
+    report.warnings.push(...asset.warnings);
+    const solved = solveAsset(asset, options);
+    report.primitives = solved.primitives;
+    report.gates = trippedGates(solved.primitives, options);
+    if (job.command === 'bake' && job.output) {
+      const format = outputFormat(asset.container, job.format);
+      const files = encodeGltf(asset, solved.replacements, { format, outPath: job.output });
+      if (!job.dryRun) await writeFilesAtomic(files);
+      report.output = job.dryRun ? null : job.displayOutput;
+    }
+  } catch (err) {
+    report.status = 'failed';
+    report.error = toReportError(err);
+    report.primitives = [];
+    report.gates = [];
+  }
+  report.seconds = (performance.now() - started) / 1000;
+  return report;
+}
