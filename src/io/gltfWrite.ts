@@ -194,7 +194,10 @@ function checkAttributeData(a: AttributeData, what: string): number {
   return a.array.length / a.itemSize;
 }
 
-/** Bytes of a dense array laid out as a vertex attribute: columns and elements 4-byte aligned. */
+/**
+ * Bytes of a dense array laid out as a vertex attribute: columns and elements 4-byte aligned.
+ * The stride is returned (to be declared as byteStride) only when padding was inserted.
+ */
 function vertexLayoutBytes(a: AttributeData, count: number): { bytes: Uint8Array; stride: number | undefined } {
   const src = new Uint8Array(a.array.buffer, a.array.byteOffset, a.array.byteLength);
   const l = elementLayout(a.type, a.componentType);
@@ -214,7 +217,9 @@ function vertexLayoutBytes(a: AttributeData, count: number): { bytes: Uint8Array
       s += colBytes;
     }
   }
-  return { bytes: out, stride: stride === packed ? undefined : stride };
+  // Declared whenever elements are padded: the Khronos validator measures a padded matrix
+  // element without its trailing padding (6 bytes for a 1-byte MAT2) and then requires a stride.
+  return { bytes: out, stride };
 }
 
 /** Per-component min and max of `array` (NaN skipped; 0 when a component has no number). */

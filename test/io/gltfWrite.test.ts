@@ -337,6 +337,32 @@ describe('encodeGltf with replacements', () => {
   });
 });
 
+describe('encodeGltf pads what glTF requires aligned', () => {
+  it('writes 3-byte colours and 1-byte MAT2 columns with 4-byte alignment and reads them back', async () => {
+    const input = await readGltf(await writeRich(dir(), 'glb'));
+    const r = unweldedReplacement(input.primitives[0]);
+    const n = r.indices.length;
+    const rgb = Uint8Array.from({ length: n * 3 }, (_, i) => (i * 37) % 256);
+    const mat = Uint8Array.from({ length: n * 4 }, (_, i) => (i * 11) % 256);
+    r.attributes.COLOR_0 = { array: rgb, itemSize: 3, type: 'VEC3', componentType: 5121, normalized: true };
+    r.attributes._M = { array: mat, itemSize: 4, type: 'MAT2', componentType: 5121, normalized: false };
+    const out = await encodeTo(input, new Map([[0, r]]), 'gltf');
+    await expectValid(out);
+    const back = await readGltf(out);
+    const json = back.json;
+    const prim = json.meshes[0].primitives[0];
+    // Source: glTF 2.0 specification, 3.6.2.4: vertex attribute elements 4-byte aligned; 1-byte
+    // MAT2 columns each start 4-byte aligned (element = 8 bytes). Source: Khronos gltf-validator
+    // (MESH_PRIMITIVE_ACCESSOR_UNALIGNED) wants the stride declared for such padded elements.
+    expect(json.bufferViews[json.accessors[prim.attributes.COLOR_0].bufferView].byteStride).toBe(4);
+    const mView = json.bufferViews[json.accessors[prim.attributes._M].bufferView];
+    expect(mView.byteStride).toBe(8);
+    expect(mView.byteLength).toBe(n * 8);
+    expect(back.primitives[0].attributes.COLOR_0.array).toEqual(rgb);
+    expect(back.primitives[0].attributes._M.array).toEqual(mat);
+  });
+});
+
 describe('encodeGltf and optional compression extensions', () => {
   it('drops KHR_draco_mesh_compression from a replaced primitive, keeps it (and its data) on an untouched one', async () => {
     const b = new GltfBuilder();
