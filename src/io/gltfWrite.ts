@@ -369,6 +369,24 @@ function finishLists(state: EncodeState, binLength: number, binUri: string | nul
   else delete json.accessors;
 }
 
+/**
+ * OBJ assets carry their geometry only in asset.primitives (the synthesized JSON has empty
+ * attribute maps), so every OBJ primitive without a replacement is written from its own data.
+ */
+function withObjDefaults(asset: Asset, replacements: Map<number, PrimitiveReplacement>): Map<number, PrimitiveReplacement> {
+  if (asset.container !== 'obj') return replacements;
+  const all = new Map(replacements);
+  asset.primitives.forEach((p, i) => {
+    if (all.has(i)) return;
+    assert(p.mode === MODE_TRIANGLES, `OBJ primitive ${i} is not a triangle list`);
+    const first = Object.values(p.attributes)[0];
+    const count = first ? first.array.length / first.itemSize : 0;
+    const indices = p.indices ?? Uint32Array.from({ length: count }, (_, k) => k);
+    all.set(i, { attributes: p.attributes, indices, targets: p.targets });
+  });
+  return all;
+}
+
 /** Maps replacement keys (indices into asset.primitives) to "mesh/primitive", sorted by key. */
 function replacementTargets(asset: Asset, replacements: Map<number, PrimitiveReplacement>): [number, number, PrimitiveReplacement][] {
   const keys = [...replacements.keys()].sort((a, b) => a - b);
@@ -385,13 +403,14 @@ function replacementTargets(asset: Asset, replacements: Map<number, PrimitiveRep
  * bytes embedded, except ones of unknown image type, copied beside it); for 'gltf' the .gltf,
  * `<basename>.bin` when there is binary data, then each external image with known bytes at its
  * relative URI beside the output. asset.generator and everything not edited stay as read.
+ * For OBJ assets, primitives without a replacement are written from their decoded data.
  * Preconditions: replacement attribute arrays match their componentType/type, equal counts,
  * indices in range, as many morph targets as the original. Deterministic.
  * Throws 'bad-gltf' for dangling references or empty replacements, 'too-large' past 4 GiB GLB.
  */
 export function encodeGltf(asset: Asset, replacements: Map<number, PrimitiveReplacement>, options: EncodeOptions): OutputFile[] {
   const json = structuredClone(asset.json);
-  const targets = replacementTargets(asset, replacements);
+  const targets = replacementTargets(asset, withObjDefaults(asset, replacements));
   const replaced = new Set(targets.map(([m, p]) => `${m}/${p}`));
   const state: EncodeState = { asset, json, bin: new BinBuilder(), views: [], accessors: [], needsQuantization: false };
   for (const [m, p] of targets) stripExtensions(json.meshes[m].primitives[p], [DRACO]);

@@ -337,6 +337,31 @@ describe('encodeGltf with replacements', () => {
   });
 });
 
+describe('encodeGltf for OBJ assets (geometry only in asset.primitives)', () => {
+  it('writes primitives without a replacement from their decoded data, and replaced ones from the replacement', async () => {
+    const attrs = (): Record<string, AttributeData> => ({
+      POSITION: { array: POS.slice(), itemSize: 3, type: 'VEC3', componentType: 5126, normalized: false },
+      NORMAL: { array: NRM.slice(), itemSize: 3, type: 'VEC3', componentType: 5126, normalized: false },
+    });
+    const prim = (i: number): PrimitiveData => ({
+      mesh: 0, primitive: i, meshName: 'obj', material: null, mode: 4, attributes: attrs(),
+      indices: i === 0 ? Uint32Array.from(IDX) : null, targets: [], faces: null,
+    });
+    // the shape the OBJ reader synthesizes: empty attribute maps, no buffers
+    const asset: Asset = {
+      sourcePath: 'x.obj', container: 'obj', buffers: [], externalImages: [], warnings: [],
+      json: { asset: { version: '2.0' }, scene: 0, scenes: [{ nodes: [0] }], nodes: [{ mesh: 0 }], meshes: [{ name: 'obj', primitives: [{ attributes: {}, mode: 4 }, { attributes: {}, mode: 4 }] }] },
+      primitives: [prim(0), prim(1)],
+    };
+    const r = unweldedReplacement(asset.primitives[0]);
+    const out = await encodeTo(asset, new Map([[0, r]]), 'glb');
+    await expectValid(out);
+    const back = await readGltf(out);
+    expect(describe_(back.primitives[0])).toEqual(describe_({ indices: r.indices, attributes: r.attributes, targets: [] }));
+    expect(describe_(back.primitives[1])).toEqual(describe_(asset.primitives[1]));
+  });
+});
+
 describe('encodeGltf pads what glTF requires aligned', () => {
   it('writes 3-byte colours and 1-byte MAT2 columns with 4-byte alignment and reads them back', async () => {
     const input = await readGltf(await writeRich(dir(), 'glb'));
