@@ -54,8 +54,9 @@ const ARRAY_TYPES: Record<number, Function> = {
   5126: Float32Array,
 };
 
+/** `n` rounded up to a multiple of 4 (arithmetic, so it stays right above 2 GiB). */
 function align4(n: number): number {
-  return (n + 3) & ~3;
+  return n + ((4 - (n % 4)) % 4);
 }
 
 function isObject(v: unknown): v is Record<string, any> {
