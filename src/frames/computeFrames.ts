@@ -38,7 +38,9 @@ export function computeFrames(input: FrameInput, options: FrameOptions = {}): Fr
     for (let i = 0; i < vertexCount; i++) indices[i] = i;
   }
   assert(indices.length % 3 === 0, 'indices must be a multiple of 3');
-  for (let i = 0; i < indices.length; i++) assert(indices[i] < vertexCount, `index ${indices[i]} out of range`);
+  let maxIndex = 0;
+  for (let i = 0; i < indices.length; i++) if (indices[i] > maxIndex) maxIndex = indices[i];
+  assert(indices.length === 0 || maxIndex < vertexCount, 'an index is out of range');
   const triangleCount = indices.length / 3;
   const faces = input.faces ?? null;
   assert(!faces || faces.length === triangleCount, 'faces must hold one entry per triangle');

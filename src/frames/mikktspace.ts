@@ -13,6 +13,8 @@ import { weldVertices } from '../mesh/weld.js';
 import { writeFallbackTangent } from './fallback.js';
 
 const NONE = 0xffffffff;
+/** Squared-length form of the method's zero test (lengths compare to FLT_MIN). */
+const MIKK_NOT_ZERO_SQ = MIKK_NOT_ZERO * MIKK_NOT_ZERO;
 const ORIENT_PRESERVING = 1;
 const GROUP_WITH_ANY = 2;
 const DEGENERATE = 4;
@@ -57,7 +59,9 @@ export function computeMikktspaceCorners(
 
   // 2. Per-triangle derivatives and flags.
   const flags = new Uint8Array(triangleCount);
-  const os = new Float64Array(triangleCount * 3);
+  // Per corner: the triangle's derivative projected on the corner's tangent plane, normalised
+  // and weighted by the projected corner angle (zero for triangles that contribute nothing).
+  const contrib = new Float32Array(cornerCount * 3);
   let degenerateUv = 0, mirrored = 0;
   for (let t = 0; t < triangleCount; t++) {
     const a = wi[t * 3], b = wi[t * 3 + 1], c = wi[t * 3 + 2];
@@ -87,8 +91,12 @@ export function computeMikktspaceCorners(
       if (lenOs > MIKK_NOT_ZERO) { ox *= s / lenOs; oy *= s / lenOs; oz *= s / lenOs; }
       if (lenOs / absArea > MIKK_NOT_ZERO && lenOt / absArea > MIKK_NOT_ZERO) f &= ~GROUP_WITH_ANY;
     }
-    os[t * 3] = ox; os[t * 3 + 1] = oy; os[t * 3 + 2] = oz;
     flags[t] = f;
+    if (!(f & GROUP_WITH_ANY)) {
+      cornerContribution(contrib, t * 3, ox, oy, oz, wi[t * 3 + 2], a, b, positions, normals);
+      cornerContribution(contrib, t * 3 + 1, ox, oy, oz, a, b, c, positions, normals);
+      cornerContribution(contrib, t * 3 + 2, ox, oy, oz, b, c, a, positions, normals);
+    }
   }
 
   // Split quads (same face id on consecutive triangles) share one orientation.
@@ -161,7 +169,7 @@ export function computeMikktspaceCorners(
         if (r !== NONE) stack[sp++] = r;
         if (l !== NONE) stack[sp++] = l;
       }
-      if (!evaluateGroup(out, members, memberCount, vrep, orient !== 0, wi, flags, os, positions, normals)) {
+      if (!evaluateGroup(out, members, memberCount, vrep, orient !== 0, contrib, normals)) {
         fallbackCorners += memberCount;
       }
     }
@@ -252,41 +260,50 @@ function buildNeighbours(wi: Uint32Array, flags: Uint8Array, triangleCount: numb
 }
 
 /**
- * Angle-weighted sum of the projected, normalised derivatives of the group's contributing
- * triangles at welded vertex `v`; writes the frame to every member corner. Returns false when
- * nothing contributed (the members then hold the fallback with the group's sign).
+ * Writes the contribution of corner `c` (vertex p1 between p0 and p2, welded indices) of a
+ * triangle with normalised signed derivative (ox, oy, oz): the derivative projected on the
+ * plane of p1's normal and normalised, times the corner angle between the two edges projected
+ * on the same plane (angle = acos of the clamped cosine).
+ */
+function cornerContribution(
+  contrib: Float32Array, c: number, ox: number, oy: number, oz: number,
+  v0: number, v1: number, v2: number, positions: Float32Array, normals: Float32Array,
+): void {
+  const nx = normals[v1 * 3], ny = normals[v1 * 3 + 1], nz = normals[v1 * 3 + 2];
+  const d = nx * ox + ny * oy + nz * oz;
+  let px = ox - nx * d, py = oy - ny * d, pz = oz - nz * d;
+  const pl = Math.sqrt(px * px + py * py + pz * pz);
+  if (pl > MIKK_NOT_ZERO) { px /= pl; py /= pl; pz /= pl; }
+  const p0 = v0 * 3, p1 = v1 * 3, p2 = v2 * 3;
+  const qx = positions[p1], qy = positions[p1 + 1], qz = positions[p1 + 2];
+  let ax = positions[p0] - qx, ay = positions[p0 + 1] - qy, az = positions[p0 + 2] - qz;
+  let bx = positions[p2] - qx, by = positions[p2 + 1] - qy, bz = positions[p2 + 2] - qz;
+  const da = nx * ax + ny * ay + nz * az;
+  ax -= nx * da; ay -= ny * da; az -= nz * da;
+  const db = nx * bx + ny * by + nz * bz;
+  bx -= nx * db; by -= ny * db; bz -= nz * db;
+  // A zero edge stays unnormalised, as the method does, which gives cos 0.
+  const la2 = ax * ax + ay * ay + az * az, lb2 = bx * bx + by * by + bz * bz;
+  let cos = la2 > MIKK_NOT_ZERO_SQ && lb2 > MIKK_NOT_ZERO_SQ ? (ax * bx + ay * by + az * bz) / Math.sqrt(la2 * lb2) : 0;
+  if (cos > 1) cos = 1; else if (cos < -1) cos = -1;
+  const angle = Math.acos(cos);
+  contrib[c * 3] = angle * px; contrib[c * 3 + 1] = angle * py; contrib[c * 3 + 2] = angle * pz;
+}
+
+/**
+ * Sums the corner contributions of the group's members at welded vertex `v` and writes the
+ * normalised frame to every member corner. Returns false when nothing contributed (the
+ * members then hold the fallback with the group's sign).
  */
 function evaluateGroup(
   out: Float32Array, members: Uint32Array, memberCount: number, v: number, orient: boolean,
-  wi: Uint32Array, flags: Uint8Array, os: Float64Array, positions: Float32Array, normals: Float32Array,
+  contrib: Float32Array, normals: Float32Array,
 ): boolean {
   const nx = normals[v * 3], ny = normals[v * 3 + 1], nz = normals[v * 3 + 2];
   let sx = 0, sy = 0, sz = 0;
   for (let m = 0; m < memberCount; m++) {
-    const c = members[m];
-    const t = (c / 3) | 0;
-    if (flags[t] & GROUP_WITH_ANY) continue;
-    const i = c - t * 3;
-    let ox = os[t * 3], oy = os[t * 3 + 1], oz = os[t * 3 + 2];
-    const d = nx * ox + ny * oy + nz * oz;
-    ox -= nx * d; oy -= ny * d; oz -= nz * d;
-    const ol = Math.sqrt(ox * ox + oy * oy + oz * oz);
-    if (ol > MIKK_NOT_ZERO) { ox /= ol; oy /= ol; oz /= ol; }
-    const p0 = wi[t * 3 + (i > 0 ? i - 1 : 2)], p1 = wi[c], p2 = wi[t * 3 + (i < 2 ? i + 1 : 0)];
-    let ax = positions[p0 * 3] - positions[p1 * 3], ay = positions[p0 * 3 + 1] - positions[p1 * 3 + 1], az = positions[p0 * 3 + 2] - positions[p1 * 3 + 2];
-    let bx = positions[p2 * 3] - positions[p1 * 3], by = positions[p2 * 3 + 1] - positions[p1 * 3 + 1], bz = positions[p2 * 3 + 2] - positions[p1 * 3 + 2];
-    const da = nx * ax + ny * ay + nz * az;
-    ax -= nx * da; ay -= ny * da; az -= nz * da;
-    const la = Math.sqrt(ax * ax + ay * ay + az * az);
-    if (la > MIKK_NOT_ZERO) { ax /= la; ay /= la; az /= la; }
-    const db = nx * bx + ny * by + nz * bz;
-    bx -= nx * db; by -= ny * db; bz -= nz * db;
-    const lb = Math.sqrt(bx * bx + by * by + bz * bz);
-    if (lb > MIKK_NOT_ZERO) { bx /= lb; by /= lb; bz /= lb; }
-    let cos = ax * bx + ay * by + az * bz;
-    if (cos > 1) cos = 1; else if (cos < -1) cos = -1;
-    const angle = Math.acos(cos);
-    sx += angle * ox; sy += angle * oy; sz += angle * oz;
+    const c = members[m] * 3;
+    sx += contrib[c]; sy += contrib[c + 1]; sz += contrib[c + 2];
   }
   const sl = Math.sqrt(sx * sx + sy * sy + sz * sz);
   const w = orient ? 1 : -1;

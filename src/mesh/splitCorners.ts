@@ -31,41 +31,78 @@ export function splitByCornerValues(
 ): CornerSplit {
   const cornerCount = indices.length;
   const bits = new Uint32Array(cornerValues.buffer, cornerValues.byteOffset, cornerCount * stride);
-  const capacity = vertexCount + cornerCount;
-  const outBits = new Uint32Array(capacity * stride);
-  const next = new Uint32Array(capacity).fill(NONE);
+  // Room for the input vertices plus some splits; grows by doubling (splits are usually few).
+  let capacity = vertexCount + Math.min(cornerCount, Math.max(1024, vertexCount >>> 3));
+  let outBits = new Uint32Array(capacity * stride);
+  let next = new Uint32Array(capacity).fill(NONE);
   const used = new Uint8Array(vertexCount);
-  const source = new Uint32Array(capacity);
+  let source = new Uint32Array(capacity);
+  const grow = () => {
+    const cap = Math.min(vertexCount + cornerCount, capacity * 2);
+    const b = new Uint32Array(cap * stride); b.set(outBits); outBits = b;
+    const n = new Uint32Array(cap).fill(NONE); n.set(next); next = n;
+    const s = new Uint32Array(cap); s.set(source); source = s;
+    capacity = cap;
+  };
   const outIndices = new Uint32Array(cornerCount);
   let count = vertexCount;
   for (let v = 0; v < vertexCount; v++) source[v] = v;
-  for (let c = 0; c < cornerCount; c++) {
-    const v = indices[c];
-    const cb = c * stride;
-    if (!used[v]) {
-      used[v] = 1;
-      for (let k = 0; k < stride; k++) outBits[v * stride + k] = bits[cb + k];
-      outIndices[c] = v;
-      continue;
-    }
-    let o = v, last = v;
-    while (o !== NONE) {
-      let same = true;
-      const ob = o * stride;
-      for (let k = 0; k < stride; k++) {
-        if (outBits[ob + k] !== bits[cb + k]) { same = false; break; }
+  if (stride === 4) {
+    // The common case (tangent frames), unrolled.
+    for (let c = 0; c < cornerCount; c++) {
+      const v = indices[c];
+      const b0 = bits[c * 4], b1 = bits[c * 4 + 1], b2 = bits[c * 4 + 2], b3 = bits[c * 4 + 3];
+      if (!used[v]) {
+        used[v] = 1;
+        outBits[v * 4] = b0; outBits[v * 4 + 1] = b1; outBits[v * 4 + 2] = b2; outBits[v * 4 + 3] = b3;
+        outIndices[c] = v;
+        continue;
       }
-      if (same) break;
-      last = o;
-      o = next[o];
+      let o = v, last = v;
+      while (o !== NONE) {
+        if (outBits[o * 4] === b0 && outBits[o * 4 + 1] === b1 && outBits[o * 4 + 2] === b2 && outBits[o * 4 + 3] === b3) break;
+        last = o;
+        o = next[o];
+      }
+      if (o === NONE) {
+        if (count === capacity) grow();
+        o = count++;
+        next[last] = o;
+        source[o] = v;
+        outBits[o * 4] = b0; outBits[o * 4 + 1] = b1; outBits[o * 4 + 2] = b2; outBits[o * 4 + 3] = b3;
+      }
+      outIndices[c] = o;
     }
-    if (o === NONE) {
-      o = count++;
-      next[last] = o;
-      source[o] = v;
-      for (let k = 0; k < stride; k++) outBits[o * stride + k] = bits[cb + k];
+  } else {
+    for (let c = 0; c < cornerCount; c++) {
+      const v = indices[c];
+      const cb = c * stride;
+      if (!used[v]) {
+        used[v] = 1;
+        for (let k = 0; k < stride; k++) outBits[v * stride + k] = bits[cb + k];
+        outIndices[c] = v;
+        continue;
+      }
+      let o = v, last = v;
+      while (o !== NONE) {
+        let same = true;
+        const ob = o * stride;
+        for (let k = 0; k < stride; k++) {
+          if (outBits[ob + k] !== bits[cb + k]) { same = false; break; }
+        }
+        if (same) break;
+        last = o;
+        o = next[o];
+      }
+      if (o === NONE) {
+        if (count === capacity) grow();
+        o = count++;
+        next[last] = o;
+        source[o] = v;
+        for (let k = 0; k < stride; k++) outBits[o * stride + k] = bits[cb + k];
+      }
+      outIndices[c] = o;
     }
-    outIndices[c] = o;
   }
   const values = new Float32Array(outBits.buffer, 0, count * stride).slice();
   return { values, indices: outIndices, sourceVertex: source.slice(0, count), used };
