@@ -62,7 +62,7 @@ export function computeMikktspaceCorners(
   // Per corner: the triangle's derivative projected on the corner's tangent plane, normalised
   // and weighted by the projected corner angle (zero for triangles that contribute nothing).
   const contrib = new Float32Array(cornerCount * 3);
-  let degenerateUv = 0, mirrored = 0;
+  let degenerateUv = 0, mirrored = 0, degenerateTriangles = 0;
   for (let t = 0; t < triangleCount; t++) {
     const a = wi[t * 3], b = wi[t * 3 + 1], c = wi[t * 3 + 2];
     let f = GROUP_WITH_ANY;
@@ -75,6 +75,7 @@ export function computeMikktspaceCorners(
     else if (area2 < 0) mirrored++;
     if (a === b || a === c || b === c) {
       flags[t] = f | DEGENERATE;
+      degenerateTriangles++;
       continue;
     }
     const x0 = positions[a * 3], y0 = positions[a * 3 + 1], z0 = positions[a * 3 + 2];
@@ -122,6 +123,7 @@ export function computeMikktspaceCorners(
   let stack = new Uint32Array(1024);
   let members = new Uint32Array(64);
   let groupCount = 0;
+  let assigned = 0;
   let fallbackCorners = 0;
   for (let f = 0; f < triangleCount; f++) {
     if (flags[f] & GROUP_WITH_ANY) continue;
@@ -131,6 +133,7 @@ export function computeMikktspaceCorners(
       const vrep = wi[f * 3 + i];
       const orient = flags[f] & ORIENT_PRESERVING;
       cornerGroup[f * 3 + i] = g;
+      assigned++;
       let memberCount = 0;
       members[memberCount++] = f * 3 + i;
       let sp = 0;
@@ -154,6 +157,7 @@ export function computeMikktspaceCorners(
         }
         if ((flags[t] & ORIENT_PRESERVING) !== orient) continue;
         cornerGroup[t * 3 + j] = g;
+        assigned++;
         if (memberCount === members.length) {
           const grown = new Uint32Array(members.length * 2);
           grown.set(members);
@@ -175,7 +179,11 @@ export function computeMikktspaceCorners(
     }
   }
 
-  // Corners of non-degenerate triangles that joined no group (isolated "group with any").
+  // Corners of non-degenerate triangles that joined no group (isolated "group with any"),
+  // then degenerate triangles; both passes are skipped when there is nothing to do.
+  if (assigned === (triangleCount - degenerateTriangles) * 3 && degenerateTriangles === 0) {
+    return { degenerateUvTriangles: degenerateUv, mirroredTriangles: mirrored, fallbackCorners, weldedVertices };
+  }
   const firstGood = new Uint32Array(vertexCount).fill(NONE);
   for (let t = 0; t < triangleCount; t++) {
     if (flags[t] & DEGENERATE) continue;
