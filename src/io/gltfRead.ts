@@ -3,7 +3,8 @@
  * primitive decoded into dense typed arrays, external images located.
  * Based on: glTF 2.0 specification, sections 3.6 (binary data storage: buffers, buffer views,
  * accessors), 3.7.2 (mesh primitives, morph targets), 3.8.3 (images), 3.12 (extensions) and
- * 4.4 (GLB); KHR_mesh_quantization.
+ * 4.4 (GLB); KHR_mesh_quantization; KHR_draco_mesh_compression and EXT_meshopt_compression /
+ * KHR_meshopt_compression (decoded, see draco.ts and meshopt.ts).
  *
  * Nothing in the file is trusted before it is checked: every fault becomes a TanframeError
  * with a stable code and a one-line message (the caller prefixes the file name).
@@ -11,7 +12,9 @@
 import * as fsp from 'node:fs/promises';
 import * as path from 'node:path';
 import {
+  BYTE,
   MODE_TRIANGLES,
+  SHORT,
   UNSIGNED_BYTE,
   UNSIGNED_INT,
   UNSIGNED_SHORT,
@@ -20,6 +23,7 @@ import {
   type ExternalImage,
   type PrimitiveData,
 } from '../mesh/asset.js';
+import { allocComponents } from '../mesh/decode.js';
 import { TanframeError } from '../mesh/errors.js';
 import { readInputBytes } from './files.js';
 import { looksLikeGlb, parseGlb } from './glb.js';
@@ -36,11 +40,19 @@ import {
 } from './gltfAccessor.js';
 import { accessorRefs, bufferViewRefs, type IndexRef } from './gltfRefs.js';
 import { checkAttributeFormat, formatName } from './gltfSemantics.js';
+import { decodeDracoPrimitive } from './draco.js';
+import { decodeMeshoptViews, isMeshoptFallback } from './meshopt.js';
 import { resolveResourceUri } from './uri.js';
 
-/** Required extensions that do not change how geometry is stored, so we can process the file. */
+/**
+ * Required extensions we can process: ones that do not change how geometry is stored, plus the
+ * geometry compressions we decode (the output is written uncompressed).
+ */
 const SAFE_REQUIRED_EXTENSIONS = new Set([
   'KHR_mesh_quantization',
+  'KHR_draco_mesh_compression',
+  'EXT_meshopt_compression',
+  'KHR_meshopt_compression',
   'KHR_texture_transform',
   'KHR_texture_basisu',
   'EXT_texture_webp',
@@ -54,8 +66,7 @@ const SAFE_REQUIRED_EXTENSIONS = new Set([
   'MSFT_texture_dds',
 ]);
 
-/** Geometry compression extensions (decoding arrives in a later issue). */
-const COMPRESSION_EXTENSIONS = new Set(['KHR_draco_mesh_compression', 'EXT_meshopt_compression', 'KHR_meshopt_compression']);
+const DRACO = 'KHR_draco_mesh_compression';
 
 /**
  * Deepest JSON nesting accepted. glTF documents nest a few levels (extras a few more); far
@@ -72,6 +83,14 @@ interface ReadContext {
   quantized: boolean;
   /** Decoded vertex-attribute accessors by index (an accessor shared by primitives decodes once). */
   decoded: Map<number, AttributeData>;
+  /** Decoded Draco primitives by "bufferView/attribute map" (primitives sharing a stream decode it once). */
+  draco: Map<string, Promise<DracoDecoded>>;
+}
+
+/** A Draco stream decoded into accessor-typed attributes. */
+interface DracoDecoded {
+  attributes: Record<string, AttributeData>;
+  indices: Uint32Array;
 }
 
 function badGltf(message: string): never {
@@ -135,14 +154,14 @@ function checkTopLevel(json: any): void {
   }
 }
 
-/** Refuses required extensions that change how geometry is stored (or that we do not know). */
+/**
+ * Refuses required extensions we do not know: a required extension may change how geometry
+ * is stored or read, and guessing would corrupt the output.
+ */
 function checkRequiredExtensions(json: any): void {
   for (const name of (json.extensionsRequired ?? []) as string[]) {
-    if (COMPRESSION_EXTENSIONS.has(name)) {
-      throw new TanframeError('unsupported-feature', `${name} (compressed geometry) is not supported yet`);
-    }
     if (!SAFE_REQUIRED_EXTENSIONS.has(name) && !name.startsWith('KHR_materials_')) {
-      throw new TanframeError('unsupported-feature', `the required extension ${name} is not supported yet`);
+      throw new TanframeError('unsupported-feature', `the required extension ${name} is not supported (it may change how geometry is stored; refusing rather than guessing)`);
     }
   }
 }
@@ -159,13 +178,15 @@ async function readResourceFile(file: string, what: string): Promise<Uint8Array 
   }
 }
 
-/** The bytes of buffer `i`: GLB BIN chunk, data: URI or external file (inside `baseDir`). */
-async function bufferBytes(json: any, i: number, bin: Uint8Array | null, isGlb: boolean, baseDir: string): Promise<Uint8Array> {
+/**
+ * The bytes of buffer `i`: GLB BIN chunk, data: URI or external file (inside `baseDir`); null
+ * for a meshopt fallback buffer without data (no uri, or a file that is absent).
+ */
+async function bufferBytes(json: any, i: number, bin: Uint8Array | null, isGlb: boolean, baseDir: string): Promise<Uint8Array | null> {
   const b = json.buffers[i];
+  const fallback = isMeshoptFallback(b);
   if (b.uri === undefined) {
-    if (isObject(b.extensions?.EXT_meshopt_compression) || isObject(b.extensions?.KHR_meshopt_compression)) {
-      throw new TanframeError('unsupported-feature', `buffer ${i} is a compression fallback without data; meshopt compression is not supported yet`);
-    }
+    if (fallback) return null;
     if (isGlb && i === 0) {
       if (!bin) throw new TanframeError('bad-glb', 'buffer 0 has no uri but the GLB has no BIN chunk');
       return bin;
@@ -176,22 +197,40 @@ async function bufferBytes(json: any, i: number, bin: Uint8Array | null, isGlb: 
   const res = resolveResourceUri(b.uri, baseDir);
   if (res.kind === 'data') return res.bytes;
   const bytes = await readResourceFile(res.path, `buffer ${i} '${b.uri}'`);
+  if (!bytes && fallback) return null;
   if (!bytes) throw new TanframeError('missing-resource', `buffer ${i} file '${b.uri}' not found`);
   return bytes;
 }
 
-/** Resolves every buffer and checks its declared byteLength fits the available bytes. */
-async function resolveBuffers(json: any, bin: Uint8Array | null, isGlb: boolean, baseDir: string): Promise<Uint8Array[]> {
+/** Resolved buffers, and which of them are meshopt fallbacks without data (zero-filled). */
+interface ResolvedBuffers {
+  buffers: Uint8Array[];
+  emptyFallbacks: Set<number>;
+}
+
+/**
+ * Resolves every buffer and checks its declared byteLength fits the available bytes. A meshopt
+ * fallback buffer without data becomes zeros of its declared length (charged to the budget);
+ * decodeMeshoptViews fills it.
+ */
+async function resolveBuffers(json: any, bin: Uint8Array | null, isGlb: boolean, baseDir: string, budget: DecodeBudget): Promise<ResolvedBuffers> {
   const list = arrayOf(json, 'buffers');
   const out: Uint8Array[] = [];
+  const emptyFallbacks = new Set<number>();
   for (let i = 0; i < list.length; i++) {
     const declared = list[i].byteLength;
     if (!isIndex(declared) || declared < 1) badGltf(`buffer ${i} byteLength ${JSON.stringify(declared)} is not a positive integer`);
     const bytes = await bufferBytes(json, i, bin, isGlb, baseDir);
+    if (bytes === null) {
+      chargeBudget(budget, declared, `fallback buffer ${i}`);
+      emptyFallbacks.add(i);
+      out.push(new Uint8Array(declared));
+      continue;
+    }
     if (declared > bytes.byteLength) badGltf(`buffer ${i} declares ${declared} bytes but only ${bytes.byteLength} are available`);
     out.push(bytes.subarray(0, declared));
   }
-  return out;
+  return { buffers: out, emptyFallbacks };
 }
 
 /** Checks every buffer view lies inside its buffer and has a legal byteStride. */
@@ -307,17 +346,21 @@ function decodeAttribute(ctx: ReadContext, semantic: string, index: number, isTa
   return data;
 }
 
-/** Decodes an attribute map, checking every accessor has `count` elements (set by the first when null). */
+/**
+ * Decodes an attribute map, checking every accessor has `count` elements (set by the first when
+ * null). Semantics present in `decodedAlready` (Draco-decoded data) take that data instead.
+ */
 function decodeAttributeMap(
   ctx: ReadContext,
   map: Record<string, number>,
   isTarget: boolean,
   where: string,
   counts: { value: number | null },
+  decodedAlready: Record<string, AttributeData> = {},
 ): Record<string, AttributeData> {
   const out: Record<string, AttributeData> = {};
   for (const [semantic, index] of Object.entries(map)) {
-    const data = decodeAttribute(ctx, semantic, index, isTarget, where);
+    const data = Object.hasOwn(decodedAlready, semantic) ? decodedAlready[semantic] : decodeAttribute(ctx, semantic, index, isTarget, where);
     const count = data.array.length / data.itemSize;
     if (counts.value === null) counts.value = count;
     if (count !== counts.value) {
@@ -353,40 +396,92 @@ function decodeIndices(ctx: ReadContext, index: number, vertexCount: number, whe
   return out;
 }
 
-/**
- * A Draco-compressed primitive is readable without a decoder only when its accessors also
- * carry uncompressed data (the optional-extension fallback); otherwise they would read as zeros.
- */
-function checkDracoFallback(ctx: ReadContext, prim: any, where: string): void {
-  if (!isObject(prim.extensions?.KHR_draco_mesh_compression)) return;
-  const used: number[] = [...Object.values(prim.attributes as Record<string, number>)];
-  for (const t of prim.targets ?? []) used.push(...(Object.values(t) as number[]));
-  if (prim.indices !== undefined) used.push(prim.indices);
-  for (const i of used) {
-    const acc = ctx.json.accessors[i];
-    if (acc.bufferView === undefined && acc.sparse === undefined) {
-      throw new TanframeError('unsupported-feature', `${where}: KHR_draco_mesh_compression data without an uncompressed fallback is not supported yet`);
-    }
+/** The checked KHR_draco_mesh_compression object of a primitive, or null when it has none. */
+function dracoExtensionOf(ctx: ReadContext, prim: any, where: string): { bufferView: number; attributes: Record<string, number> } | null {
+  const ext = prim.extensions?.[DRACO];
+  if (ext === undefined) return null;
+  if (!isObject(ext)) badGltf(`${where}: ${DRACO} is not an object`);
+  if (!isIndex(ext.bufferView) || ext.bufferView >= ctx.views.bytes.length) badGltf(`${where}: ${DRACO} bufferView ${JSON.stringify(ext.bufferView)} does not exist`);
+  if (!isObject(ext.attributes)) badGltf(`${where}: ${DRACO} attributes is not an object`);
+  for (const [semantic, id] of Object.entries(ext.attributes)) {
+    if (!isIndex(id)) badGltf(`${where}: ${DRACO} attribute ${semantic} id ${JSON.stringify(id)} is not a non-negative integer`);
+    // Source: KHR_draco_mesh_compression specification: the extension's attributes are a subset of the primitive's.
+    if (!Object.hasOwn(prim.attributes, semantic)) badGltf(`${where}: ${DRACO} attribute ${semantic} is not an attribute of the primitive`);
   }
+  return { bufferView: ext.bufferView, attributes: ext.attributes };
 }
 
-/** Decodes one primitive (attributes, targets, indices). */
-function decodePrimitive(ctx: ReadContext, m: number, p: number): PrimitiveData {
+/** Copies Draco-decoded values into an array of the accessor's component type (normalized floats quantized back). */
+function toAccessorType(values: ArrayLike<number>, spec: AccessorSpec): AttributeData['array'] {
+  const out = allocComponents(spec.componentType, values.length);
+  if (out instanceof Float32Array || !(values instanceof Float32Array) || !spec.normalized) {
+    for (let i = 0; i < values.length; i++) out[i] = values[i];
+    return out;
+  }
+  const max = spec.componentType === BYTE ? 127 : spec.componentType === UNSIGNED_BYTE ? 255 : spec.componentType === SHORT ? 32767 : 65535;
+  for (let i = 0; i < values.length; i++) out[i] = Math.round(values[i] * max);
+  return out;
+}
+
+/** Decodes (once per stream and attribute map) the Draco data of a primitive into accessor-typed attributes. */
+function decodeDraco(ctx: ReadContext, prim: any, ext: { bufferView: number; attributes: Record<string, number> }, where: string): Promise<DracoDecoded> {
+  const semantics = Object.keys(ext.attributes).sort();
+  const key = `${ext.bufferView}|${semantics.map((s) => `${s}=${ext.attributes[s]}=${prim.attributes[s]}`).join(',')}`;
+  let pending = ctx.draco.get(key);
+  if (!pending) {
+    pending = (async () => {
+      const mesh = await decodeDracoPrimitive(ctx.views.bytes[ext.bufferView], ext.attributes, where);
+      const attributes: Record<string, AttributeData> = {};
+      for (const semantic of semantics) {
+        const index = prim.attributes[semantic];
+        const spec = checkAccessor(ctx.json, index, ctx.views, true);
+        const reason = checkAttributeFormat(semantic, spec.type, spec.componentType, spec.normalized, false, ctx.quantized);
+        if (reason) throw new TanframeError('bad-accessor', `${where}: accessor ${index}: ${reason}`);
+        const d = mesh.attributes[semantic];
+        if (d.itemSize !== spec.itemSize || d.array.length !== spec.count * spec.itemSize) {
+          badGltf(`${where}: ${DRACO} attribute ${semantic} decodes to ${d.array.length / d.itemSize} x ${d.itemSize} values but accessor ${index} declares ${spec.count} x ${spec.itemSize}`);
+        }
+        chargeBudget(ctx.budget, d.array.byteLength, `${where} ${DRACO} ${semantic}`);
+        attributes[semantic] = { array: toAccessorType(d.array, spec), itemSize: spec.itemSize, type: spec.type, componentType: spec.componentType, normalized: spec.normalized };
+      }
+      chargeBudget(ctx.budget, mesh.indices.byteLength, `${where} ${DRACO} indices`);
+      return { attributes, indices: mesh.indices };
+    })();
+    ctx.draco.set(key, pending);
+  }
+  return pending;
+}
+
+/**
+ * Decodes one primitive (attributes, targets, indices). A Draco-compressed primitive takes its
+ * compressed attributes and its faces (a triangle list, so mode becomes TRIANGLES) from the
+ * Draco stream; other attributes and morph targets come from their accessors.
+ */
+async function decodePrimitive(ctx: ReadContext, m: number, p: number): Promise<PrimitiveData> {
   const mesh = ctx.json.meshes[m];
   const prim = mesh.primitives[p];
   const where = `mesh ${m} primitive ${p}`;
-  checkDracoFallback(ctx, prim, where);
+  const ext = dracoExtensionOf(ctx, prim, where);
+  const draco = ext ? await decodeDraco(ctx, prim, ext, where) : null;
   const counts = { value: null as number | null };
-  const attributes = decodeAttributeMap(ctx, prim.attributes, false, where, counts);
+  const attributes = decodeAttributeMap(ctx, prim.attributes, false, where, counts, draco?.attributes);
   const targets = (prim.targets ?? []).map((t: Record<string, number>) => decodeAttributeMap(ctx, t, true, where, counts));
   const vertexCount = counts.value ?? 0;
-  const indices = prim.indices === undefined ? null : decodeIndices(ctx, prim.indices, vertexCount, where);
+  let indices: Uint32Array | null;
+  if (draco) {
+    for (let i = 0; i < draco.indices.length; i++) {
+      if (draco.indices[i] >= vertexCount) throw new TanframeError('bad-index', `${where}: ${DRACO} index ${draco.indices[i]} is out of range (${vertexCount} vertices)`);
+    }
+    indices = draco.indices;
+  } else {
+    indices = prim.indices === undefined ? null : decodeIndices(ctx, prim.indices, vertexCount, where);
+  }
   return {
     mesh: m,
     primitive: p,
     meshName: typeof mesh.name === 'string' ? mesh.name : null,
     material: prim.material ?? null,
-    mode: prim.mode ?? MODE_TRIANGLES,
+    mode: draco ? MODE_TRIANGLES : (prim.mode ?? MODE_TRIANGLES),
     attributes,
     indices,
     targets,
@@ -395,11 +490,11 @@ function decodePrimitive(ctx: ReadContext, m: number, p: number): PrimitiveData 
 }
 
 /** Decodes every primitive of every mesh, in json order. */
-function decodeAllPrimitives(ctx: ReadContext): PrimitiveData[] {
+async function decodeAllPrimitives(ctx: ReadContext): Promise<PrimitiveData[]> {
   const out: PrimitiveData[] = [];
   const meshes = arrayOf(ctx.json, 'meshes');
   for (let m = 0; m < meshes.length; m++) {
-    for (let p = 0; p < meshes[m].primitives.length; p++) out.push(decodePrimitive(ctx, m, p));
+    for (let p = 0; p < meshes[m].primitives.length; p++) out.push(await decodePrimitive(ctx, m, p));
   }
   return out;
 }
@@ -442,18 +537,25 @@ export async function readGltfBytes(bytes: Uint8Array, sourcePath: string): Prom
   checkTopLevel(json);
   checkRequiredExtensions(json);
   const baseDir = path.dirname(path.resolve(sourcePath));
-  const buffers = await resolveBuffers(json, bin, isGlb, baseDir);
+  const firstLimit = DECODE_BUDGET_BASE + DECODE_BUDGET_FACTOR * bytes.byteLength;
+  const budget: DecodeBudget = { remaining: firstLimit, limit: firstLimit };
+  const resolved = await resolveBuffers(json, bin, isGlb, baseDir, budget);
+  let extra = 0;
+  resolved.buffers.forEach((b, i) => { if (!resolved.emptyFallbacks.has(i)) extra += DECODE_BUDGET_FACTOR * b.byteLength; });
+  budget.limit += extra;
+  budget.remaining += extra;
+  const meshopt = await decodeMeshoptViews(json, resolved.buffers, resolved.emptyFallbacks, budget);
+  const buffers = meshopt.buffers;
   const views = checkBufferViews(json, buffers);
   checkMeshes(json);
   checkReferences(json);
   checkAllAccessors(json, views);
-  const inputBytes = bytes.byteLength + buffers.reduce((s, b) => s + b.byteLength, 0);
-  const limit = DECODE_BUDGET_BASE + DECODE_BUDGET_FACTOR * inputBytes;
-  const ctx: ReadContext = { json, views, budget: { remaining: limit, limit }, quantized: usesQuantization(json), decoded: new Map() };
-  const primitives = decodeAllPrimitives(ctx);
+  const ctx: ReadContext = { json, views, budget, quantized: usesQuantization(json), decoded: new Map(), draco: new Map() };
+  const primitives = await decodeAllPrimitives(ctx);
   const warnings: string[] = [];
   const externalImages = await resolveImages(json, baseDir, warnings);
-  return { sourcePath, container: isGlb ? 'glb' : 'gltf', json, buffers, externalImages, primitives, warnings };
+  const decompressed = [...(ctx.draco.size > 0 ? [DRACO] : []), ...meshopt.decoded];
+  return { sourcePath, container: isGlb ? 'glb' : 'gltf', json, buffers, externalImages, primitives, warnings, decompressed };
 }
 
 /**

@@ -9,10 +9,15 @@
  * is preserved verbatim. Accessors still referenced are kept, others dropped, and all
  * references renumbered. All binary data goes into one new buffer: kept buffer views are
  * copied, new accessors get their own tightly packed views; every view starts 4-byte
- * aligned. The output is a pure function of the inputs.
+ * aligned. Replacement arrays shared between primitives (the same AttributeData or index
+ * array object) are written once and their accessor shared. Compressed geometry is written
+ * uncompressed: Draco primitives from their decoded data, meshopt views from the bytes the
+ * reader decoded into them. Every written POSITION accessor (kept or new) has a correct
+ * min/max. The output is a pure function of the inputs.
  */
 import * as path from 'node:path';
 import {
+  FLOAT,
   MODE_TRIANGLES,
   UNSIGNED_INT,
   UNSIGNED_SHORT,
@@ -95,6 +100,10 @@ interface EncodeState {
   accessors: any[];
   /** True when a new accessor uses a format only KHR_mesh_quantization allows. */
   needsQuantization: boolean;
+  /** Accessors already written for a replacement attribute array (shared replacements write once). */
+  writtenAttributes: Map<AttributeData, number>;
+  /** Accessors already written for a replacement index array. */
+  writtenIndices: Map<Uint32Array, number>;
 }
 
 /** The bytes of original buffer view `i` (the reader checked its range). */
@@ -115,11 +124,50 @@ function stripExtensions(obj: any, names: string[]): void {
   if (Object.keys(obj.extensions).length === 0) delete obj.extensions;
 }
 
+/**
+ * Decoded POSITION data (base and morph targets) of the primitives kept as they are, by
+ * original accessor index.
+ */
+function keptPositions(asset: Asset, replaced: Set<string>): Map<number, AttributeData> {
+  const out = new Map<number, AttributeData>();
+  for (const p of asset.primitives) {
+    if (replaced.has(`${p.mesh}/${p.primitive}`)) continue;
+    const prim = asset.json.meshes?.[p.mesh]?.primitives?.[p.primitive];
+    if (!isObject(prim)) continue;
+    const maps: [unknown, Record<string, AttributeData> | undefined][] = [[prim.attributes, p.attributes]];
+    const targets: unknown[] = Array.isArray(prim.targets) ? prim.targets : [];
+    targets.forEach((t, i) => maps.push([t, p.targets[i]]));
+    for (const [map, data] of maps) {
+      if (isObject(map) && typeof map.POSITION === 'number' && data?.POSITION) out.set(map.POSITION, data.POSITION);
+    }
+  }
+  return out;
+}
+
+/**
+ * Makes a kept POSITION accessor's min/max match its decoded values (glTF 2.0, 3.6.2.5: over
+ * the values after sparse substitution). Declared values that already match (compared after
+ * rounding to float32, the storage precision) are left as written.
+ */
+function fixBounds(accessor: any, data: AttributeData): void {
+  const b = bounds(data.array, data.itemSize);
+  const float = data.componentType === FLOAT;
+  const same = (declared: unknown, actual: number[]) =>
+    Array.isArray(declared) && declared.length === actual.length &&
+    declared.every((x, c) => typeof x === 'number' && (float ? Math.fround(x) : x) === actual[c]);
+  if (!same(accessor.min, b.min) || !same(accessor.max, b.max)) {
+    accessor.min = b.min;
+    accessor.max = b.max;
+  }
+}
+
 /** Keeps referenced accessors (outside replaced primitives), renumbering every reference. */
 function keepAccessors(state: EncodeState, replaced: Set<string>): void {
   const json = state.json;
-  const refs = accessorRefs(json, (m, p) => replaced.has(`${m}/${p}`));
+  const positions = keptPositions(state.asset, replaced);
   const all: any[] = Array.isArray(json.accessors) ? json.accessors : [];
+  for (const [index, data] of positions) if (isObject(all[index])) fixBounds(all[index], data);
+  const refs = accessorRefs(json, (m, p) => replaced.has(`${m}/${p}`));
   const kept = keepReferenced(refs, all.length, 'accessor');
   state.accessors = kept.map((i) => all[i]);
   json.accessors = state.accessors;
@@ -240,8 +288,14 @@ function bounds(array: ComponentArray, itemSize: number): { min: number[]; max: 
   return { min, max };
 }
 
-/** Appends an accessor (and its view) for one vertex attribute; returns its index. */
+/** Appends an accessor (and its view) for one vertex attribute, or reuses the one written for `a`; returns its index. */
 function addAttributeAccessor(state: EncodeState, semantic: string, a: AttributeData, isTarget: boolean, what: string): number {
+  const done = state.writtenAttributes.get(a);
+  if (done !== undefined) {
+    const acc = state.accessors[done];
+    if (semantic === 'POSITION' && acc.min === undefined) Object.assign(acc, bounds(a.array, a.itemSize));
+    return done;
+  }
   const count = checkAttributeData(a, what);
   if (count === 0) throw new TanframeError('bad-gltf', `${what} has no vertices to write`);
   const { bytes, stride } = vertexLayoutBytes(a, count);
@@ -257,11 +311,14 @@ function addAttributeAccessor(state: EncodeState, semantic: string, a: Attribute
   }
   if (needsQuantization(semantic, a.type, a.componentType, a.normalized, isTarget)) state.needsQuantization = true;
   state.accessors.push(accessor);
+  state.writtenAttributes.set(a, state.accessors.length - 1);
   return state.accessors.length - 1;
 }
 
-/** Appends the index accessor: unsigned short when every index < 65535, else unsigned int. */
+/** Appends the index accessor (unsigned short when every index < 65535, else unsigned int), or reuses the one written for `indices`. */
 function addIndexAccessor(state: EncodeState, indices: Uint32Array, vertexCount: number, what: string): number {
+  const done = state.writtenIndices.get(indices);
+  if (done !== undefined) return done;
   if (indices.length === 0) throw new TanframeError('bad-gltf', `${what} has no triangles to write`);
   let max = 0;
   for (let i = 0; i < indices.length; i++) if (indices[i] > max) max = indices[i];
@@ -276,6 +333,7 @@ function addIndexAccessor(state: EncodeState, indices: Uint32Array, vertexCount:
     count: indices.length,
     type: 'SCALAR',
   });
+  state.writtenIndices.set(indices, state.accessors.length - 1);
   return state.accessors.length - 1;
 }
 
@@ -370,16 +428,23 @@ function finishLists(state: EncodeState, binLength: number, binUri: string | nul
   else delete json.accessors;
 }
 
+/** True when the JSON primitive of `p` carries Draco-compressed data. */
+function isDracoPrimitive(asset: Asset, p: { mesh: number; primitive: number }): boolean {
+  return isObject(asset.json.meshes?.[p.mesh]?.primitives?.[p.primitive]?.extensions?.[DRACO]);
+}
+
 /**
- * OBJ assets carry their geometry only in asset.primitives (the synthesized JSON has empty
- * attribute maps), so every OBJ primitive without a replacement is written from its own data.
+ * Primitives whose geometry exists only as decoded data are written from it when they have no
+ * replacement: every OBJ primitive (the synthesized JSON has empty attribute maps) and every
+ * Draco-compressed glTF primitive (its accessors have no uncompressed data, or data the
+ * extension overrides). Their decoded data is a triangle list.
  */
-function withObjDefaults(asset: Asset, replacements: Map<number, PrimitiveReplacement>): Map<number, PrimitiveReplacement> {
-  if (asset.container !== 'obj') return replacements;
+function withDecodedDefaults(asset: Asset, replacements: Map<number, PrimitiveReplacement>): Map<number, PrimitiveReplacement> {
   const all = new Map(replacements);
   asset.primitives.forEach((p, i) => {
     if (all.has(i)) return;
-    assert(p.mode === MODE_TRIANGLES, `OBJ primitive ${i} is not a triangle list`);
+    if (asset.container !== 'obj' && !isDracoPrimitive(asset, p)) return;
+    assert(p.mode === MODE_TRIANGLES, `decoded primitive ${i} is not a triangle list`);
     const first = Object.values(p.attributes)[0];
     const count = first ? first.array.length / first.itemSize : 0;
     const indices = p.indices ?? Uint32Array.from({ length: count }, (_, k) => k);
@@ -404,16 +469,20 @@ function replacementTargets(asset: Asset, replacements: Map<number, PrimitiveRep
  * bytes embedded, except ones of unknown image type, copied beside it); for 'gltf' the .gltf,
  * `<basename>.bin` when there is binary data, then each external image with known bytes at its
  * relative URI beside the output. asset.generator and everything not edited stay as read.
- * For OBJ assets, primitives without a replacement are written from their decoded data.
+ * OBJ primitives and Draco-compressed primitives without a replacement are written from
+ * their decoded data; meshopt-compressed views are written with the bytes the reader decoded.
  * Preconditions: replacement attribute arrays match their componentType/type, equal counts,
  * indices in range, as many morph targets as the original. Deterministic.
  * Throws 'bad-gltf' for dangling references or empty replacements, 'too-large' past 4 GiB GLB.
  */
 export function encodeGltf(asset: Asset, replacements: Map<number, PrimitiveReplacement>, options: EncodeOptions): OutputFile[] {
   const json = structuredClone(asset.json);
-  const targets = replacementTargets(asset, withObjDefaults(asset, replacements));
+  const targets = replacementTargets(asset, withDecodedDefaults(asset, replacements));
   const replaced = new Set(targets.map(([m, p]) => `${m}/${p}`));
-  const state: EncodeState = { asset, json, bin: new BinBuilder(), views: [], accessors: [], needsQuantization: false };
+  const state: EncodeState = {
+    asset, json, bin: new BinBuilder(), views: [], accessors: [], needsQuantization: false,
+    writtenAttributes: new Map(), writtenIndices: new Map(),
+  };
   for (const [m, p] of targets) stripExtensions(json.meshes[m].primitives[p], [DRACO]);
   keepAccessors(state, replaced);
   keepBufferViews(state);

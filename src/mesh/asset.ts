@@ -86,6 +86,11 @@ export interface Asset {
   primitives: PrimitiveData[];
   /** Non-fatal findings worth telling the user (missing image, ...), one line each. */
   warnings: string[];
+  /**
+   * Geometry-compression extensions the reader decoded (KHR_draco_mesh_compression,
+   * EXT_meshopt_compression, KHR_meshopt_compression); absent or empty when none.
+   */
+  decompressed?: string[];
 }
 
 /** New geometry for one baked primitive: the writer stores it in place of the original. */

@@ -388,35 +388,6 @@ describe('encodeGltf pads what glTF requires aligned', () => {
   });
 });
 
-describe('encodeGltf and optional compression extensions', () => {
-  it('drops KHR_draco_mesh_compression from a replaced primitive, keeps it (and its data) on an untouched one', async () => {
-    const b = new GltfBuilder();
-    const quad: BuildPrimitive = {
-      attributes: { POSITION: { array: POS, type: 'VEC3' }, NORMAL: { array: NRM, type: 'VEC3' } },
-      indices: IDX,
-    };
-    b.addPrimitive(quad);
-    b.addPrimitive(quad);
-    const draco = new Uint8Array([1, 2, 3, 4, 5]);
-    const dv = b.addView(draco);
-    for (const prim of b.json.meshes[0].primitives) prim.extensions = { KHR_draco_mesh_compression: { bufferView: dv, attributes: { POSITION: 0 } } };
-    const { json, bin } = b.build({ extensionsUsed: ['KHR_draco_mesh_compression'] });
-    const input = await readGltf(await writeGlb(dir(), 'd', json, bin));
-
-    const one = await readGltf(await encodeTo(input, new Map([[0, unweldedReplacement(input.primitives[0])]]), 'glb'));
-    expect(one.json.meshes[0].primitives[0].extensions).toBeUndefined();
-    const kept = one.json.meshes[0].primitives[1].extensions.KHR_draco_mesh_compression;
-    const view = one.json.bufferViews[kept.bufferView];
-    expect([...one.buffers[0].subarray(view.byteOffset, view.byteOffset + view.byteLength)]).toEqual([...draco]);
-    expect(one.json.extensionsUsed).toEqual(['KHR_draco_mesh_compression']);
-
-    const both = new Map(input.primitives.map((p, i) => [i, unweldedReplacement(p)] as const));
-    const all = await readGltf(await encodeTo(input, both, 'glb'));
-    expect(all.json.extensionsUsed).toBeUndefined();
-    expect(all.json.bufferViews.every((v: any) => v.byteLength !== draco.length)).toBe(true);
-  });
-});
-
 describe('encodeGltf containers and images', () => {
   it('GLB: JSON chunk padded with spaces, BIN chunk and gaps zero, lengths consistent', async () => {
     const input = await readGltf(await writeRich(dir(), 'gltf'));
