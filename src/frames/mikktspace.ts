@@ -8,13 +8,11 @@
  * reference code (edge pairing order, orientation adoption of "group with any" triangles,
  * quad orientation forcing) follow our memory of the published reference implementation.
  */
-import { MIKK_NOT_ZERO, UV_DEGENERATE_RELATIVE } from '../mesh/tolerances.js';
+import { MIKK_NOT_ZERO, PROJECTED_ZERO, UV_DEGENERATE_RELATIVE } from '../mesh/tolerances.js';
 import { weldVertices } from '../mesh/weld.js';
 import { writeFallbackTangent } from './fallback.js';
 
 const NONE = 0xffffffff;
-/** Squared-length form of the method's zero test (lengths compare to FLT_MIN). */
-const MIKK_NOT_ZERO_SQ = MIKK_NOT_ZERO * MIKK_NOT_ZERO;
 const ORIENT_PRESERVING = 1;
 const GROUP_WITH_ANY = 2;
 const DEGENERATE = 4;
@@ -94,9 +92,18 @@ export function computeMikktspaceCorners(
     }
     flags[t] = f;
     if (!(f & GROUP_WITH_ANY)) {
-      cornerContribution(contrib, t * 3, ox, oy, oz, wi[t * 3 + 2], a, b, positions, normals);
-      cornerContribution(contrib, t * 3 + 1, ox, oy, oz, a, b, c, positions, normals);
-      cornerContribution(contrib, t * 3 + 2, ox, oy, oz, b, c, a, positions, normals);
+      // Edges: e01 = d1, e02 = d2, e12 = d2 - d1. Corner 0 sees (e02, e01), corner 1
+      // (-e01, e12), corner 2 (-e12, -e02); dot products and squared lengths are shared.
+      const e12x = d2x - d1x, e12y = d2y - d1y, e12z = d2z - d1z;
+      const l01 = d1x * d1x + d1y * d1y + d1z * d1z;
+      const l02 = d2x * d2x + d2y * d2y + d2z * d2z;
+      const l12 = e12x * e12x + e12y * e12y + e12z * e12z;
+      const dot0 = d2x * d1x + d2y * d1y + d2z * d1z;
+      const dot1 = -(d1x * e12x + d1y * e12y + d1z * e12z);
+      const dot2 = e12x * d2x + e12y * d2y + e12z * d2z;
+      cornerContribution(contrib, t * 3, ox, oy, oz, normals, a, d2x, d2y, d2z, d1x, d1y, d1z, l02, l01, dot0);
+      cornerContribution(contrib, t * 3 + 1, ox, oy, oz, normals, b, -d1x, -d1y, -d1z, e12x, e12y, e12z, l01, l12, dot1);
+      cornerContribution(contrib, t * 3 + 2, ox, oy, oz, normals, c, -e12x, -e12y, -e12z, -d2x, -d2y, -d2z, l12, l02, dot2);
     }
   }
 
@@ -268,31 +275,24 @@ function buildNeighbours(wi: Uint32Array, flags: Uint8Array, triangleCount: numb
 }
 
 /**
- * Writes the contribution of corner `c` (vertex p1 between p0 and p2, welded indices) of a
- * triangle with normalised signed derivative (ox, oy, oz): the derivative projected on the
- * plane of p1's normal and normalised, times the corner angle between the two edges projected
- * on the same plane (angle = acos of the clamped cosine).
+ * Writes the contribution of corner `c` at welded vertex `v` of a triangle with normalised
+ * signed derivative (ox, oy, oz): the derivative projected on the plane of v's normal n and
+ * normalised, times the angle between the corner's two edges a and b projected on the same
+ * plane. With unit n the projections need only n.a and n.b: |a'|^2 = |a|^2 - (n.a)^2 and
+ * a'.b' = a.b - (n.a)(n.b). A projected edge of zero length gives cos 0, as in the method.
  */
 function cornerContribution(
-  contrib: Float32Array, c: number, ox: number, oy: number, oz: number,
-  v0: number, v1: number, v2: number, positions: Float32Array, normals: Float32Array,
+  contrib: Float32Array, c: number, ox: number, oy: number, oz: number, normals: Float32Array, v: number,
+  ax: number, ay: number, az: number, bx: number, by: number, bz: number, aa: number, bb: number, ab: number,
 ): void {
-  const nx = normals[v1 * 3], ny = normals[v1 * 3 + 1], nz = normals[v1 * 3 + 2];
+  const nx = normals[v * 3], ny = normals[v * 3 + 1], nz = normals[v * 3 + 2];
   const d = nx * ox + ny * oy + nz * oz;
   let px = ox - nx * d, py = oy - ny * d, pz = oz - nz * d;
   const pl = Math.sqrt(px * px + py * py + pz * pz);
   if (pl > MIKK_NOT_ZERO) { px /= pl; py /= pl; pz /= pl; }
-  const p0 = v0 * 3, p1 = v1 * 3, p2 = v2 * 3;
-  const qx = positions[p1], qy = positions[p1 + 1], qz = positions[p1 + 2];
-  let ax = positions[p0] - qx, ay = positions[p0 + 1] - qy, az = positions[p0 + 2] - qz;
-  let bx = positions[p2] - qx, by = positions[p2 + 1] - qy, bz = positions[p2 + 2] - qz;
-  const da = nx * ax + ny * ay + nz * az;
-  ax -= nx * da; ay -= ny * da; az -= nz * da;
-  const db = nx * bx + ny * by + nz * bz;
-  bx -= nx * db; by -= ny * db; bz -= nz * db;
-  // A zero edge stays unnormalised, as the method does, which gives cos 0.
-  const la2 = ax * ax + ay * ay + az * az, lb2 = bx * bx + by * by + bz * bz;
-  let cos = la2 > MIKK_NOT_ZERO_SQ && lb2 > MIKK_NOT_ZERO_SQ ? (ax * bx + ay * by + az * bz) / Math.sqrt(la2 * lb2) : 0;
+  const na = nx * ax + ny * ay + nz * az, nb = nx * bx + ny * by + nz * bz;
+  const la2 = aa - na * na, lb2 = bb - nb * nb;
+  let cos = la2 > PROJECTED_ZERO * aa && lb2 > PROJECTED_ZERO * bb ? (ab - na * nb) / Math.sqrt(la2 * lb2) : 0;
   if (cos > 1) cos = 1; else if (cos < -1) cos = -1;
   const angle = Math.acos(cos);
   contrib[c * 3] = angle * px; contrib[c * 3 + 1] = angle * py; contrib[c * 3 + 2] = angle * pz;

@@ -18,6 +18,13 @@ export const UV_DEGENERATE_RELATIVE = 1e-7;
 export const MIKK_NOT_ZERO = 1.1754943508222875e-38;
 
 /**
+ * An edge projected on a vertex's tangent plane counts as zero when its squared length is at
+ * most this fraction of the edge's own (the edge lies along the normal, up to float64
+ * rounding of |a|^2 - (n.a)^2). Common practice.
+ */
+export const PROJECTED_ZERO = 1e-12;
+
+/**
  * Geometry-degenerate test: a triangle whose |cross(e1,e2)| <= GEOMETRY_DEGENERATE_RELATIVE *
  * (|e1|^2 + |e2|^2) has no usable area (collinear or coincident corners). 1e-7 is about
  * float32 rounding, so points colinear before rounding to float32 are still caught. Common
@@ -60,3 +67,15 @@ export const UV_OVERLAP_ABSOLUTE = 1e-6;
  * where a vertex lies on another triangle's edge). Common practice, no single source.
  */
 export const UV_OVERLAP_RELATIVE = 1e-4;
+
+/**
+ * Normal-map conversion: a texel's interpolated frame [t, b, N] whose determinant is at most
+ * this (in absolute value; unit vertex frames give about 1) cannot be inverted, and object to
+ * tangent space falls back to the transpose for that texel (counted). This happens only where
+ * the interpolated handedness passes through zero between vertices of opposite sign. Common
+ * practice, no single source.
+ */
+export const TEXEL_FRAME_MIN_DET = 1e-6;
+
+/** Normal-map conversion: a texel vector shorter than this has no direction and gets the fallback (counted). */
+export const TEXEL_ZERO_LENGTH = 1e-9;
