@@ -42,9 +42,9 @@ function mulberry32(seed) {
 }
 
 /**
- * Noisy height field of n x n quads, cut into UV islands of `island` x `island` quads; every
- * other island is mirrored in u. Island borders duplicate their vertices (UV seams), as a
- * scan's unwrap would.
+ * Noisy height field of n x n quads, cut into UV islands of `island` x `island` quads packed
+ * into one atlas; every other island is mirrored in u. Island borders duplicate their
+ * vertices (UV seams), as a scan's unwrap would.
  */
 export function noisySurface(n, island = 16, seed = 7) {
   const rnd = mulberry32(seed);
@@ -72,9 +72,10 @@ export function noisySurface(n, island = 16, seed = 7) {
           const nx = -hx * n * 0.5, ny = -hy * n * 0.5, nl = Math.hypot(nx, ny, 1);
           positions[v * 3] = i / n; positions[v * 3 + 1] = j / n; positions[v * 3 + 2] = height(i, j);
           normals[v * 3] = nx / nl; normals[v * 3 + 1] = ny / nl; normals[v * 3 + 2] = 1 / nl;
+          // Islands packed side by side in one atlas (cell 1/islands, 5% margin), none stacked.
           const u = x / island;
-          uvs[v * 2] = (bi % 8) / 8 + (mirrored ? 1 - u : u) / 8.5;
-          uvs[v * 2 + 1] = (bj % 8) / 8 + (y / island) / 8.5;
+          uvs[v * 2] = (bi + 0.05 + 0.9 * (mirrored ? 1 - u : u)) / islands;
+          uvs[v * 2 + 1] = (bj + 0.05 + 0.9 * (y / island)) / islands;
         }
       }
       for (let y = 0; y < island; y++) {
