@@ -9,8 +9,11 @@ import { composeSource, gatherAttribute, toFloat32 } from '../mesh/decode.js';
 import { generateNormals } from '../mesh/normals.js';
 import { expandToTriangleList, isTriangleMode } from '../mesh/triangulate.js';
 import { computeFrames } from '../frames/computeFrames.js';
+import { countMirrorSeamSplits, markMirroredTriangles } from '../diagnose/index.js';
 import type { PrimitiveReport } from '../report/types.js';
+import type { UvPicture } from '../report/uvPicture.js';
 import { diagnosePrimitive } from './diagnosePrimitive.js';
+import { buildUvPicture, hasFindings } from './pictures.js';
 import { tangentNeedOf } from './material.js';
 import type { ProcessOptions } from './options.js';
 
@@ -19,6 +22,8 @@ export interface AssetSolve {
   primitives: PrimitiveReport[];
   /** Keyed by index into asset.primitives; only primitives whose geometry changes. */
   replacements: Map<number, PrimitiveReplacement>;
+  /** UV picture data of the primitives with findings, when asked for (else empty). */
+  pictures: UvPicture[];
 }
 
 function emptyReport(p: PrimitiveData, options: ProcessOptions): PrimitiveReport {
@@ -36,6 +41,7 @@ function emptyReport(p: PrimitiveData, options: ProcessOptions): PrimitiveReport
     verticesIn: p.attributes.POSITION ? p.attributes.POSITION.array.length / 3 : 0,
     verticesOut: 0,
     splitVertices: 0,
+    mirrorSeamSplits: 0,
     degenerateUv: { count: 0, triangles: [] },
     degenerateGeometry: { count: 0, triangles: [] },
     invalidValues: { count: 0 },
@@ -63,19 +69,21 @@ function floatAttribute(array: Float32Array, itemSize: number): AttributeData {
 }
 
 /**
- * Solves one primitive. Returns its report and, when its geometry changes, the replacement.
+ * Solves one primitive. Returns its report, when its geometry changes the replacement, and
+ * with `pictures` true and findings to show (hasFindings) its UV picture data (else null).
  * Degenerate geometry never throws: it is counted in the report.
  */
 export function solvePrimitive(
   asset: Asset,
   p: PrimitiveData,
   options: ProcessOptions,
-): { report: PrimitiveReport; replacement: PrimitiveReplacement | null } {
+  pictures = false,
+): { report: PrimitiveReport; replacement: PrimitiveReplacement | null; picture: UvPicture | null } {
   const report = emptyReport(p, options);
   const skip = (reason: string) => {
     report.skipReason = reason;
     report.verticesOut = report.verticesIn;
-    return { report, replacement: null };
+    return { report, replacement: null, picture: null };
   };
   const pos = p.attributes.POSITION;
   if (!pos) return skip('no-position');
@@ -119,15 +127,18 @@ export function solvePrimitive(
   const source = genSource ? composeSource(genSource, frames.sourceVertex) : frames.sourceVertex;
   report.verticesOut = source.length;
   report.splitVertices = genSource ? frames.stats.splitVertices : source.length - vertexCount;
+  report.mirrorSeamSplits = countMirrorSeamSplits(frames.sourceVertex, frames.tangents, positions.length / 3);
   report.mirroredTriangles = frames.stats.mirroredTriangles;
   report.fallbackTangents = frames.stats.fallbackTangents;
 
   const stored = p.attributes.TANGENT && report.normalsGenerated === null ? toFloat32(p.attributes.TANGENT) : null;
+  const marks = pictures ? { degenerateUv: new Uint8Array(triangleCount), overlap: new Uint8Array(triangleCount) } : null;
+  const inputUvs = toFloat32(uvAttr);
   const verdict = diagnosePrimitive(report, {
     indices: tri,
     positions: toFloat32(pos),
     normals: normalAttr ? toFloat32(normalAttr) : null,
-    uvs: toFloat32(uvAttr),
+    uvs: inputUvs,
     storedTangents: stored,
     vertexCount,
     triangleCount,
@@ -136,13 +147,25 @@ export function solvePrimitive(
     sourceVertex: source,
     uvEpsilon: options.uvEpsilon,
     toleranceDeg: options.tolerance,
+    marks,
   });
+  let picture: UvPicture | null = null;
+  if (marks && hasFindings(report)) {
+    // Mirroring as src/frames counts it (glTF v downward, so vSign = -1; the default epsilon).
+    const mirrored = new Uint8Array(triangleCount);
+    markMirroredTriangles(mirrored, tri, inputUvs, triangleCount, -1);
+    picture = buildUvPicture(
+      { mesh: p.mesh, meshName: p.meshName, primitive: p.primitive, uvSet },
+      tri, inputUvs, triangleCount, marks.degenerateUv, mirrored, marks.overlap,
+    );
+  }
 
   if (options.keepExisting && stored && verdict.storedTangentsValid) {
     report.action = 'kept';
     report.verticesOut = vertexCount;
     report.splitVertices = 0;
-    return { report, replacement: null };
+    report.mirrorSeamSplits = 0;
+    return { report, replacement: null, picture };
   }
 
   const attributes: Record<string, AttributeData> = {};
@@ -159,22 +182,25 @@ export function solvePrimitive(
     return out;
   });
   report.action = 'baked';
-  return { report, replacement: { attributes, indices: frames.indices, targets } };
+  return { report, replacement: { attributes, indices: frames.indices, targets }, picture };
 }
 
 /**
- * Solves every primitive of `asset` in json order. Returns the reports and the replacements
- * for primitives whose geometry changes.
+ * Solves every primitive of `asset` in json order. Returns the reports, the replacements
+ * for primitives whose geometry changes and, with `pictures` true, the UV picture data of
+ * the primitives with findings.
  */
-export function solveAsset(asset: Asset, options: ProcessOptions): AssetSolve {
+export function solveAsset(asset: Asset, options: ProcessOptions, pictures = false): AssetSolve {
   const primitives: PrimitiveReport[] = [];
   const replacements = new Map<number, PrimitiveReplacement>();
+  const shown: UvPicture[] = [];
   for (let i = 0; i < asset.primitives.length; i++) {
-    const r = solvePrimitive(asset, asset.primitives[i], options);
+    const r = solvePrimitive(asset, asset.primitives[i], options, pictures);
     primitives.push(r.report);
     if (r.replacement) replacements.set(i, r.replacement);
+    if (r.picture) shown.push(r.picture);
   }
-  return { primitives, replacements };
+  return { primitives, replacements, pictures: shown };
 }
 
 function gatherFloats(src: Float32Array, k: number, source: Uint32Array): Float32Array {

@@ -26,6 +26,11 @@ export interface DiagnoseInput {
   sourceVertex: Uint32Array;
   uvEpsilon: number;
   toleranceDeg: number;
+  /**
+   * Per-triangle marks to fill for pictures (1 flagged, 0 not; triangleCount entries each),
+   * or null/absent when no picture is wanted.
+   */
+  marks?: { degenerateUv: Uint8Array; overlap: Uint8Array } | null;
 }
 
 /** Verdicts the caller acts on. */
@@ -42,11 +47,12 @@ export interface DiagnoseVerdict {
  */
 export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput): DiagnoseVerdict {
   const { indices, positions, normals, uvs, storedTangents, vertexCount, triangleCount } = input;
-  report.degenerateUv = findDegenerateUvTriangles(indices, uvs, triangleCount, input.uvEpsilon);
+  const marks = input.marks ?? null;
+  report.degenerateUv = findDegenerateUvTriangles(indices, uvs, triangleCount, input.uvEpsilon, marks ? marks.degenerateUv : null);
   report.degenerateGeometry = findDegenerateGeometry(indices, positions, triangleCount);
   report.invalidValues = { count: countInvalidVertices(vertexCount, positions, normals, uvs, storedTangents) };
   report.badNormals = { count: normals ? findBadNormals(indices, positions, normals, triangleCount, vertexCount).count : 0 };
-  report.uvOverlap = findUvOverlaps(indices, uvs, triangleCount);
+  report.uvOverlap = findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null);
   let valid = false;
   if (storedTangents) {
     const c = compareStoredTangents(

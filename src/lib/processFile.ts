@@ -9,9 +9,12 @@ import { TanframeError } from '../mesh/errors.js';
 import { writeFilesAtomic } from '../io/files.js';
 import { readGltf } from '../io/gltfRead.js';
 import { encodeGltf } from '../io/gltfWrite.js';
+import type { ReadLimits } from '../io/limits.js';
 import { readObj } from '../io/objRead.js';
 import type { FileReport } from '../report/types.js';
+import type { UvPicture } from '../report/uvPicture.js';
 import { solveAsset } from './bakeAsset.js';
+import { guardOutputs } from './outputGuard.js';
 import { trippedGates } from './gates.js';
 import type { ProcessOptions } from './options.js';
 
@@ -28,13 +31,21 @@ export interface FileJob {
   /** How the report names the input and output (paths as the user gave them). */
   displayInput: string;
   displayOutput: string | null;
+  /** Also return UV picture data for primitives with findings (--uv-maps, --html). */
+  pictures?: boolean;
 }
 
-/** Reads any supported mesh file by its extension. */
-export async function readAsset(file: string): Promise<Asset> {
+/** A file's report and, when the job asked for them, its UV pictures (never in the JSON report). */
+export interface FileOutcome {
+  report: FileReport;
+  pictures: UvPicture[];
+}
+
+/** Reads any supported mesh file by its extension, within `limits` (default limits when omitted). */
+export async function readAsset(file: string, limits: ReadLimits = {}): Promise<Asset> {
   const ext = path.extname(file).toLowerCase();
-  if (ext === '.glb' || ext === '.gltf') return readGltf(file);
-  if (ext === '.obj') return readObj(file);
+  if (ext === '.glb' || ext === '.gltf') return readGltf(file, limits);
+  if (ext === '.obj') return readObj(file, limits);
   throw new TanframeError('unsupported-format', `unsupported file type '${ext || '(none)'}' (expected .glb, .gltf or .obj)`);
 }
 
@@ -60,6 +71,14 @@ function oneLine(s: string): string {
  * surface as code 'internal').
  */
 export async function processFile(job: FileJob, options: ProcessOptions): Promise<FileReport> {
+  return (await processFileOutcome(job, options)).report;
+}
+
+/**
+ * Processes one file and returns its report and, when `job.pictures` is set, the UV picture
+ * data of its primitives with findings (none for a failed file). Never throws for bad input.
+ */
+export async function processFileOutcome(job: FileJob, options: ProcessOptions): Promise<FileOutcome> {
   const started = performance.now();
   const report: FileReport = {
     input: job.displayInput,
@@ -71,15 +90,18 @@ export async function processFile(job: FileJob, options: ProcessOptions): Promis
     warnings: [],
     seconds: 0,
   };
+  let pictures: UvPicture[] = [];
   try {
-    const asset = await readAsset(job.input);
+    const asset = await readAsset(job.input, { maxTriangles: options.maxTriangles });
     report.warnings.push(...asset.warnings);
-    const solved = solveAsset(asset, options);
+    const solved = solveAsset(asset, options, !!job.pictures);
     report.primitives = solved.primitives;
+    pictures = solved.pictures;
+    for (const p of pictures) p.input = job.displayInput;
     report.gates = trippedGates(solved.primitives, options);
     if (job.command === 'bake' && job.output) {
       const format = outputFormat(asset.container, job.format);
-      const files = encodeGltf(asset, solved.replacements, { format, outPath: job.output });
+      const files = await guardOutputs(encodeGltf(asset, solved.replacements, { format, outPath: job.output }), job.output, job.input, asset);
       if (!job.dryRun) await writeFilesAtomic(files);
       report.output = job.dryRun ? null : job.displayOutput;
     }
@@ -88,7 +110,8 @@ export async function processFile(job: FileJob, options: ProcessOptions): Promis
     report.error = toReportError(err);
     report.primitives = [];
     report.gates = [];
+    pictures = [];
   }
   report.seconds = (performance.now() - started) / 1000;
-  return report;
+  return { report, pictures };
 }

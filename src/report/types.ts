@@ -41,6 +41,11 @@ export interface PrimitiveReport {
   verticesIn: number;
   verticesOut: number;
   splitVertices: number;
+  /**
+   * Of `splitVertices`, those split along a mirror seam: the copy's handedness w differs from
+   * the w of the vertex it was split from (countMirrorSeamSplits). 0 when frames were kept.
+   */
+  mirrorSeamSplits: number;
   degenerateUv: TriangleFinding;
   degenerateGeometry: TriangleFinding;
   invalidValues: { count: number };
