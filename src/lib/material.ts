@@ -3,12 +3,16 @@
  * the KHR_texture_transform, KHR_materials_clearcoat and KHR_materials_anisotropy extensions.
  */
 
+import { uvTransformOf, type UvTransform } from '../mesh/uvTransform.js';
+
 /** Which texture-coordinate set a material's tangent frames derive from, if any. */
 export interface TangentNeed {
   /** The material samples a map that is read through the tangent frame. */
   needsTangents: boolean;
   /** The TEXCOORD set of that map (KHR_texture_transform's texCoord override applied). */
   texCoord: number;
+  /** That map's KHR_texture_transform (null when none or the identity). */
+  transform: UvTransform | null;
 }
 
 function texCoordOf(info: any): number {
@@ -20,21 +24,21 @@ function texCoordOf(info: any): number {
 
 /**
  * Tells whether material `index` of `json` needs tangents (a normal texture, a clearcoat
- * normal texture, or anisotropy) and which UV set its normal map uses. A missing material
- * needs none.
+ * normal texture, or anisotropy), which UV set its map uses and the map's texture transform.
+ * A missing material needs none.
  */
 export function tangentNeedOf(json: any, index: number | null): TangentNeed {
-  if (index === null || index === undefined) return { needsTangents: false, texCoord: 0 };
+  const none: TangentNeed = { needsTangents: false, texCoord: 0, transform: null };
+  if (index === null || index === undefined) return none;
   const m = json?.materials?.[index];
-  if (!m || typeof m !== 'object') return { needsTangents: false, texCoord: 0 };
-  if (m.normalTexture && typeof m.normalTexture === 'object') {
-    return { needsTangents: true, texCoord: texCoordOf(m.normalTexture) };
-  }
+  if (!m || typeof m !== 'object') return none;
+  const from = (info: any): TangentNeed => ({ needsTangents: true, texCoord: texCoordOf(info), transform: uvTransformOf(info) });
+  if (m.normalTexture && typeof m.normalTexture === 'object') return from(m.normalTexture);
   const clearcoat = m.extensions?.KHR_materials_clearcoat?.clearcoatNormalTexture;
-  if (clearcoat && typeof clearcoat === 'object') return { needsTangents: true, texCoord: texCoordOf(clearcoat) };
+  if (clearcoat && typeof clearcoat === 'object') return from(clearcoat);
   const aniso = m.extensions?.KHR_materials_anisotropy;
   if (aniso && typeof aniso === 'object') {
-    return { needsTangents: true, texCoord: aniso.anisotropyTexture ? texCoordOf(aniso.anisotropyTexture) : 0 };
+    return aniso.anisotropyTexture && typeof aniso.anisotropyTexture === 'object' ? from(aniso.anisotropyTexture) : { needsTangents: true, texCoord: 0, transform: null };
   }
-  return { needsTangents: false, texCoord: 0 };
+  return none;
 }

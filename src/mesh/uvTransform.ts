@@ -1,0 +1,61 @@
+/**
+ * Based on: KHR_texture_transform extension specification (ratified): the sampled coordinates
+ * are uv' = T(offset) * R(rotation) * S(scale) * (u, v, 1), with the GLSL rotation matrix
+ * mat3(cos r, -sin r, 0, sin r, cos r, 0, 0, 0, 1) (column-major), so
+ *   u' =  cos(r) * sx * u + sin(r) * sy * v + ox
+ *   v' = -sin(r) * sx * u + cos(r) * sy * v + oy
+ */
+
+/** A KHR_texture_transform: offset, rotation (radians), scale; defaults 0, 0, 1. */
+export interface UvTransform {
+  offset: [number, number];
+  rotation: number;
+  scale: [number, number];
+}
+
+function pair(v: unknown, fallback: [number, number]): [number, number] {
+  if (Array.isArray(v) && v.length === 2 && v.every((x) => typeof x === 'number' && Number.isFinite(x))) return [v[0], v[1]];
+  return fallback;
+}
+
+/**
+ * The KHR_texture_transform of a textureInfo object, or null when it has none or it leaves
+ * the coordinates unchanged. Malformed fields take their defaults.
+ */
+export function uvTransformOf(textureInfo: any): UvTransform | null {
+  const ext = textureInfo?.extensions?.KHR_texture_transform;
+  if (!ext || typeof ext !== 'object') return null;
+  const offset = pair(ext.offset, [0, 0]);
+  const scale = pair(ext.scale, [1, 1]);
+  const rotation = typeof ext.rotation === 'number' && Number.isFinite(ext.rotation) ? ext.rotation : 0;
+  if (offset[0] === 0 && offset[1] === 0 && scale[0] === 1 && scale[1] === 1 && rotation === 0) return null;
+  return { offset, rotation, scale };
+}
+
+/**
+ * True when the transform changes tangent frames: a rotation or a negative scale. An offset
+ * moves the map and a positive scale (even a non-uniform one) stretches it along u and v, so
+ * the directions of increasing u and v, hence the frames, stay the same.
+ */
+export function changesFrames(t: UvTransform | null): boolean {
+  if (!t) return false;
+  return t.rotation !== 0 || t.scale[0] < 0 || t.scale[1] < 0;
+}
+
+/**
+ * Writes the transformed coordinates of `count` uv pairs of `uvs` into `out` (may be `uvs`).
+ * Computed in float64, stored as float32. Preconditions: both hold 2 * count floats.
+ */
+export function applyUvTransform(out: Float32Array, uvs: Float32Array, count: number, t: UvTransform): void {
+  const c = Math.cos(t.rotation);
+  const s = Math.sin(t.rotation);
+  const sx = t.scale[0];
+  const sy = t.scale[1];
+  const a = c * sx, b = s * sy, d = -s * sx, e = c * sy;
+  const ox = t.offset[0], oy = t.offset[1];
+  for (let i = 0; i < count; i++) {
+    const u = uvs[2 * i], v = uvs[2 * i + 1];
+    out[2 * i] = a * u + b * v + ox;
+    out[2 * i + 1] = d * u + e * v + oy;
+  }
+}
