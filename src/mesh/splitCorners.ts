@@ -5,6 +5,14 @@
 
 const NONE = 0xffffffff;
 
+/** A copy of `a` in a longer array, the new tail filled with `fill`. */
+function grown(a: Uint32Array<ArrayBuffer>, length: number, fill: number): Uint32Array<ArrayBuffer> {
+  const b = new Uint32Array(length);
+  if (fill !== 0) b.fill(fill, a.length);
+  b.set(a);
+  return b;
+}
+
 /** Output of `splitByCornerValues`. */
 export interface CornerSplit {
   /** `stride` values per output vertex (zero for input vertices no triangle uses). */
@@ -37,13 +45,7 @@ export function splitByCornerValues(
   let next = new Uint32Array(capacity).fill(NONE);
   const used = new Uint8Array(vertexCount);
   let source = new Uint32Array(capacity);
-  const grow = () => {
-    const cap = Math.min(vertexCount + cornerCount, capacity * 2);
-    const b = new Uint32Array(cap * stride); b.set(outBits); outBits = b;
-    const n = new Uint32Array(cap).fill(NONE); n.set(next); next = n;
-    const s = new Uint32Array(cap); s.set(source); source = s;
-    capacity = cap;
-  };
+
   const outIndices = new Uint32Array(cornerCount);
   let count = vertexCount;
   for (let v = 0; v < vertexCount; v++) source[v] = v;
@@ -65,7 +67,12 @@ export function splitByCornerValues(
         o = next[o];
       }
       if (o === NONE) {
-        if (count === capacity) grow();
+        if (count === capacity) {
+          capacity = Math.min(vertexCount + cornerCount, capacity * 2);
+          outBits = grown(outBits, capacity * stride, 0);
+          next = grown(next, capacity, NONE);
+          source = grown(source, capacity, 0);
+        }
         o = count++;
         next[last] = o;
         source[o] = v;
@@ -95,7 +102,12 @@ export function splitByCornerValues(
         o = next[o];
       }
       if (o === NONE) {
-        if (count === capacity) grow();
+        if (count === capacity) {
+          capacity = Math.min(vertexCount + cornerCount, capacity * 2);
+          outBits = grown(outBits, capacity * stride, 0);
+          next = grown(next, capacity, NONE);
+          source = grown(source, capacity, 0);
+        }
         o = count++;
         next[last] = o;
         source[o] = v;
