@@ -124,6 +124,7 @@ export function packedElementBytes(type: string, componentType: number): number 
 
 /** Bytes `count` elements need at `stride` (the last element may omit trailing column padding). */
 function extent(l: ElementLayout, count: number, stride: number): number {
+  if (count === 0) return 0;
   return stride * (count - 1) + (l.cols - 1) * l.colStride + l.colBytes;
 }
 
@@ -165,7 +166,9 @@ function readAccessorFields(json: any, index: number, viewCount: number): Access
   const componentType = a.componentType;
   if (typeof componentType !== 'number' || !Object.hasOwn(COMPONENT_BYTES, componentType)) badAccessor(index, `componentType ${JSON.stringify(componentType)} is not a glTF component type`);
   if (typeof a.type !== 'string' || !Object.hasOwn(TYPE_COMPONENTS, a.type)) badAccessor(index, `type ${JSON.stringify(a.type)} is not a glTF accessor type`);
-  if (!isIndex(a.count) || a.count < 1) badAccessor(index, `count ${JSON.stringify(a.count)} is not a positive integer`);
+  // glTF requires count >= 1, but exporters write count 0 for empty meshes; such an accessor
+  // holds no data and reads as empty (an empty primitive is skipped and reported, not refused).
+  if (!isIndex(a.count)) badAccessor(index, `count ${JSON.stringify(a.count)} is not a non-negative integer`);
   const normalized = a.normalized === undefined ? false : a.normalized;
   if (typeof normalized !== 'boolean') badAccessor(index, 'normalized is not a boolean');
   // Source: glTF 2.0 specification, accessor.normalized: MUST NOT be true for FLOAT or UNSIGNED_INT.

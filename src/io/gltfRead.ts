@@ -42,6 +42,7 @@ import { accessorRefs, bufferViewRefs, type IndexRef } from './gltfRefs.js';
 import { checkAttributeFormat, formatName } from './gltfSemantics.js';
 import { decodeDracoPrimitive } from './draco.js';
 import { decodeMeshoptViews, isMeshoptFallback } from './meshopt.js';
+import { checkTriangleLimit, declaredGltfTriangles, type ReadLimits } from './limits.js';
 import { resolveResourceUri } from './uri.js';
 
 /**
@@ -527,9 +528,10 @@ function usesQuantization(json: any): boolean {
  * Decodes glTF or GLB bytes into an Asset. `sourcePath` names the file (its folder resolves
  * external URIs; '.glb' or the 'glTF' magic selects the GLB container). Throws TanframeError:
  * 'empty-file', 'bad-glb', 'bad-json', 'bad-gltf', 'bad-accessor', 'bad-index', 'bad-uri',
- * 'missing-resource', 'read-failed', 'unsupported-format', 'unsupported-feature', 'too-large'.
+ * 'missing-resource', 'read-failed', 'unsupported-format', 'unsupported-feature', 'too-large'
+ * (also when the primitives declare more triangles than `limits` allow, checked before decoding).
  */
-export async function readGltfBytes(bytes: Uint8Array, sourcePath: string): Promise<Asset> {
+export async function readGltfBytes(bytes: Uint8Array, sourcePath: string, limits: ReadLimits = {}): Promise<Asset> {
   if (bytes.length === 0) throw new TanframeError('empty-file', 'the file is empty (0 bytes)');
   const isGlb = looksLikeGlb(bytes) || path.extname(sourcePath).toLowerCase() === '.glb';
   const { json, bin } = isGlb ? parseGlb(bytes) : { json: parseGltfJson(bytes), bin: null };
@@ -550,6 +552,7 @@ export async function readGltfBytes(bytes: Uint8Array, sourcePath: string): Prom
   checkMeshes(json);
   checkReferences(json);
   checkAllAccessors(json, views);
+  checkTriangleLimit(declaredGltfTriangles(json), bytes.byteLength + buffers.reduce((s, b) => s + b.byteLength, 0), limits);
   const ctx: ReadContext = { json, views, budget, quantized: usesQuantization(json), decoded: new Map(), draco: new Map() };
   const primitives = await decodeAllPrimitives(ctx);
   const warnings: string[] = [];
@@ -562,6 +565,6 @@ export async function readGltfBytes(bytes: Uint8Array, sourcePath: string): Prom
  * Reads a .gltf or .glb file into an Asset (see readGltfBytes). Decoded attribute arrays
  * may be shared between primitives that share an accessor: treat them as read-only.
  */
-export async function readGltf(filePath: string): Promise<Asset> {
-  return readGltfBytes(await readInputBytes(filePath), filePath);
+export async function readGltf(filePath: string, limits: ReadLimits = {}): Promise<Asset> {
+  return readGltfBytes(await readInputBytes(filePath), filePath, limits);
 }

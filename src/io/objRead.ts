@@ -22,6 +22,7 @@ import {
 } from '../mesh/asset.js';
 import { TanframeError } from '../mesh/errors.js';
 import { parseMtl, parseObjFloat, type MtlMaterial, type MtlTexture } from './mtlRead.js';
+import { DEFAULT_MAX_TRIANGLES, checkTriangleLimit, type ReadLimits } from './limits.js';
 import { resolveResourceUri } from './uri.js';
 
 /** Growable float64 storage used while parsing (no per-element objects). */
@@ -53,6 +54,8 @@ class GrowI32 {
 }
 
 const INT_RE = /^[+-]?\d+$/;
+/** Largest face index magnitude accepted (corner indices are stored as int32). */
+const MAX_OBJ_INDEX = 0x7fffffff;
 const WS_RE = /\s+/;
 
 /** What the OBJ text holds, flat. Indices are 0-based absolute; -1 = absent. */
@@ -75,15 +78,23 @@ interface ObjText {
   pointElements: number;
 }
 
+/** Text quoted in a message, cut to a readable length (a hostile line can be megabytes long). */
+function clip(text: string): string {
+  return text.length > 40 ? `${text.slice(0, 37)}...` : text;
+}
+
 function badObj(line: number, reason: string): TanframeError {
   return new TanframeError('bad-obj', `line ${line}: ${reason}`);
 }
 
 /** Parses one face-corner index (1-based, or negative relative to `count`); returns 0-based. */
 function parseIndex(tok: string, count: number, what: string, line: number): number {
-  if (!INT_RE.test(tok)) throw badObj(line, `malformed ${what} index '${tok}' in face`);
+  if (!INT_RE.test(tok)) throw badObj(line, `malformed ${what} index '${clip(tok)}' in face`);
   const k = Number(tok);
   if (k === 0) throw badObj(line, `${what} index 0 in face (OBJ indices start at 1)`);
+  // Corners are stored as int32: a larger index could never name a vertex, and converting it
+  // would wrap around to a small, valid-looking one.
+  if (k > MAX_OBJ_INDEX || k < -MAX_OBJ_INDEX) throw badObj(line, `${what} index ${clip(tok)} out of range`);
   if (k > 0) return k - 1; // checked against the final counts after the whole file is read
   const abs = count + k;
   if (abs < 0) throw badObj(line, `relative ${what} index ${k} out of range (${count} defined so far)`);
@@ -107,7 +118,10 @@ function splitMtllib(rest: string): string[] {
   return rest === '' ? [] : [rest];
 }
 
-function parseObjText(text: string): ObjText {
+/** Parses OBJ text; refuses with 'too-large' once the faces hold more than `limits` allow. */
+function parseObjText(text: string, limits: ReadLimits): ObjText {
+  const maxTriangles = limits.maxTriangles ?? DEFAULT_MAX_TRIANGLES;
+  let triangles = 0;
   const r: ObjText = {
     positions: new GrowF64(),
     colors: new GrowF64(),
@@ -161,7 +175,7 @@ function parseObjText(text: string): ObjText {
       case 'v': {
         const toks = rest.split(WS_RE);
         const n = parseNumbers(toks, 0, nums, 3, 7);
-        if (n < 0 || toks.length > 7) throw badObj(startLine, `malformed vertex 'v ${rest}'`);
+        if (n < 0 || toks.length > 7) throw badObj(startLine, `malformed vertex 'v ${clip(rest)}'`);
         r.positions.push(nums[0]!);
         r.positions.push(nums[1]!);
         r.positions.push(nums[2]!);
@@ -182,7 +196,7 @@ function parseObjText(text: string): ObjText {
       case 'vt': {
         const toks = rest.split(WS_RE);
         const n = parseNumbers(toks, 0, nums, 1, 3);
-        if (n < 0 || toks.length > 3) throw badObj(startLine, `malformed texture coordinate 'vt ${rest}'`);
+        if (n < 0 || toks.length > 3) throw badObj(startLine, `malformed texture coordinate 'vt ${clip(rest)}'`);
         r.uvs.push(nums[0]!);
         r.uvs.push(n > 1 ? nums[1]! : 0); // Source: OBJ format, vt v defaults to 0
         break;
@@ -190,7 +204,7 @@ function parseObjText(text: string): ObjText {
       case 'vn': {
         const toks = rest.split(WS_RE);
         const n = parseNumbers(toks, 0, nums, 3, 3);
-        if (n < 0 || toks.length > 3) throw badObj(startLine, `malformed normal 'vn ${rest}'`);
+        if (n < 0 || toks.length > 3) throw badObj(startLine, `malformed normal 'vn ${clip(rest)}'`);
         r.normals.push(nums[0]!);
         r.normals.push(nums[1]!);
         r.normals.push(nums[2]!);
@@ -208,7 +222,7 @@ function parseObjText(text: string): ObjText {
         r.faceStart.push(r.cornerV.n);
         for (let i = 0; i < toks.length; i++) {
           const parts = toks[i]!.split('/');
-          if (parts.length > 3 || parts[0] === '') throw badObj(startLine, `malformed face corner '${toks[i]}'`);
+          if (parts.length > 3 || parts[0] === '') throw badObj(startLine, `malformed face corner '${clip(toks[i]!)}'`);
           r.cornerV.push(parseIndex(parts[0]!, nv, 'vertex', startLine));
           r.cornerT.push(parts.length > 1 && parts[1] !== '' ? parseIndex(parts[1]!, nt, 'texture', startLine) : -1);
           r.cornerN.push(parts.length > 2 && parts[2] !== '' ? parseIndex(parts[2]!, nn, 'normal', startLine) : -1);
@@ -224,6 +238,8 @@ function parseObjText(text: string): ObjText {
         }
         r.faceGroup.push(currentGroup);
         r.faceLine.push(startLine);
+        triangles += toks.length - 2;
+        if (triangles > maxTriangles) checkTriangleLimit(triangles, text.length, limits);
         break;
       }
       case 'usemtl':
@@ -510,9 +526,10 @@ function errnoReason(e: unknown): string {
  * and points ignored, undefined materials, partially present vt / vn.
  * Throws TanframeError: 'read-failed' / 'empty-file' for the file itself, 'bad-obj' (with the
  * line number) for malformed statements, index 0, out-of-range indices, faces with fewer than
- * three corners or no faces at all; 'bad-uri' when an .mtl or image name escapes the folder.
+ * three corners or no faces at all; 'bad-uri' when an .mtl or image name escapes the folder;
+ * 'too-large' when the faces hold more triangles than `limits` allow (checked while parsing).
  */
-export async function readObj(path: string): Promise<Asset> {
+export async function readObj(path: string, limits: ReadLimits = {}): Promise<Asset> {
   let bytes: Uint8Array;
   try {
     bytes = await readFile(path);
@@ -521,7 +538,7 @@ export async function readObj(path: string): Promise<Asset> {
   }
   if (bytes.length === 0) throw new TanframeError('empty-file', 'empty file');
   const text = new TextDecoder('utf-8').decode(bytes); // drops a leading BOM
-  const o = parseObjText(text);
+  const o = parseObjText(text, limits);
   const faceCount = o.faceGroup.n;
   if (faceCount === 0) throw new TanframeError('bad-obj', 'no faces');
 

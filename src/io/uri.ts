@@ -111,8 +111,12 @@ export function uriToRelativePath(uri: string): string {
   return kept.join('/');
 }
 
-/** Real path of the deepest existing ancestor of `p` (inclusive) joined with the rest. */
-function realPathOfNearestExisting(p: string): string {
+/**
+ * Real path of the deepest existing ancestor of `p` (inclusive) joined with the rest, so a
+ * path that does not exist yet still resolves the symbolic links on its way. May throw a
+ * file-system error other than ENOENT / ENOTDIR (EACCES, ELOOP).
+ */
+export function realPathOfNearestExisting(p: string): string {
   let head = p;
   const tail: string[] = [];
   for (;;) {
@@ -129,10 +133,11 @@ function realPathOfNearestExisting(p: string): string {
   }
 }
 
-/** True when `child` is `parent` or lies inside it. */
-function isInside(parent: string, child: string): boolean {
+/** True when absolute path `child` is `parent` or lies inside it (lexically). */
+export function isInside(parent: string, child: string): boolean {
   const rel = path.relative(parent, child);
-  return rel === '' || (!rel.startsWith('..') && !path.isAbsolute(rel));
+  // '..' alone or as the first segment climbs out; a name that merely starts with '..' does not.
+  return rel === '' || (rel !== '..' && !rel.startsWith(`..${path.sep}`) && !path.isAbsolute(rel));
 }
 
 /**

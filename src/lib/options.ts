@@ -2,6 +2,7 @@
  * Options shared by the library's file processing and the CLI commands.
  */
 import type { FrameMethod, TangentWeight } from '../mesh/types.js';
+import { DEFAULT_MAX_TRIANGLES } from '../io/limits.js';
 import { DEFAULT_SMOOTH_ANGLE_DEG, DEFAULT_TANGENT_MISMATCH_DEG, UV_DEGENERATE_RELATIVE } from '../mesh/tolerances.js';
 
 /** Gate names `--fail-on` accepts (DESIGN.md). */
@@ -32,6 +33,8 @@ export interface ProcessOptions {
   /** Degrees beyond which a stored tangent counts as mismatched. */
   tolerance: number;
   uvEpsilon: number;
+  /** Most triangles one file may hold; larger files fail with 'too-large' before decoding. */
+  maxTriangles: number;
 }
 
 /** The defaults DESIGN.md gives. */
@@ -49,5 +52,6 @@ export function defaultProcessOptions(): ProcessOptions {
     maxDegenerateUv: 0,
     tolerance: DEFAULT_TANGENT_MISMATCH_DEG,
     uvEpsilon: UV_DEGENERATE_RELATIVE,
+    maxTriangles: DEFAULT_MAX_TRIANGLES,
   };
 }

@@ -1,0 +1,88 @@
+/**
+ * The last check before a bake writes: every file it is about to write lands inside the
+ * output's folder (symbolic links included), no two share a path, and none replaces a file
+ * the input was read from unless the bake is in place.
+ * Based on: DESIGN.md, Guarantees (outputs never outside -o; an input is never modified
+ * unless --in-place); POSIX path resolution (realpath). Common practice.
+ */
+import * as fsp from 'node:fs/promises';
+import * as path from 'node:path';
+import type { Asset } from '../mesh/asset.js';
+import { TanframeError } from '../mesh/errors.js';
+import type { OutputFile } from '../io/files.js';
+import { isInside, realPathOfNearestExisting, resolveResourceUri } from '../io/uri.js';
+
+/** Real path of `p` through its deepest existing ancestor, or `p` itself when that fails. */
+function realOrSelf(p: string): string {
+  try {
+    return realPathOfNearestExisting(p);
+  } catch {
+    return p;
+  }
+}
+
+/** Every file the asset was read from: the input itself, external buffers and images (real paths). */
+function inputFiles(asset: Asset, input: string): Set<string> {
+  const out = new Set<string>([realOrSelf(path.resolve(input))]);
+  const baseDir = path.dirname(path.resolve(input));
+  if (asset.container !== 'obj' && Array.isArray(asset.json?.buffers)) {
+    for (const b of asset.json.buffers) {
+      if (typeof b?.uri !== 'string' || /^data:/i.test(b.uri)) continue;
+      try {
+        const r = resolveResourceUri(b.uri, baseDir);
+        if (r.kind === 'file') out.add(realOrSelf(r.path));
+      } catch {
+        // The reader accepted the asset, so this does not happen; nothing to protect otherwise.
+      }
+    }
+  }
+  for (const img of asset.externalImages) out.add(realOrSelf(img.path));
+  return out;
+}
+
+/** True when the file at `p` holds exactly `bytes`. */
+async function holds(p: string, bytes: Uint8Array): Promise<boolean> {
+  try {
+    const current = await fsp.readFile(p);
+    return current.byteLength === bytes.byteLength && Buffer.compare(current, bytes) === 0;
+  } catch {
+    return false;
+  }
+}
+
+/**
+ * Checks the files of one bake before they are written and returns those to write.
+ * `output` is the main output path, `input` the input file; the bake is in place when they
+ * are the same path. Every file must lie inside the main output's folder, lexically and
+ * after resolving symbolic links ('bad-uri' otherwise); two files may not share a path
+ * ('usage'). A file whose path is one the asset was read from (the input, its .bin, its
+ * images) is dropped when it already holds the same bytes (an image copied onto itself);
+ * with other bytes it is refused ('usage') unless the bake is in place, so an input is
+ * never modified otherwise.
+ */
+export async function guardOutputs(files: OutputFile[], output: string, input: string, asset: Asset): Promise<OutputFile[]> {
+  const main = path.resolve(output);
+  const root = path.dirname(main);
+  const realRoot = realOrSelf(root);
+  const inPlace = main === path.resolve(input);
+  const protectedFiles = inputFiles(asset, input);
+  const seen = new Set<string>();
+  const kept: OutputFile[] = [];
+  for (const file of files) {
+    const abs = path.resolve(file.path);
+    const shown = path.relative(root, abs) || path.basename(abs);
+    if (!isInside(root, abs)) throw new TanframeError('bad-uri', `the output file '${shown}' would land outside the output folder`);
+    const real = realOrSelf(abs);
+    if (!isInside(realRoot, real)) {
+      throw new TanframeError('bad-uri', `the output file '${shown}' would land outside the output folder through a symbolic link`);
+    }
+    if (seen.has(real)) throw new TanframeError('usage', `two output files would share the path '${shown}'`);
+    seen.add(real);
+    if (protectedFiles.has(real)) {
+      if (await holds(real, file.bytes)) continue;
+      if (!inPlace) throw new TanframeError('usage', `the output file '${shown}' would overwrite a file the input is read from; choose another output folder or name`);
+    }
+    kept.push(file);
+  }
+  return kept;
+}

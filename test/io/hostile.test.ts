@@ -1,0 +1,174 @@
+/**
+ * Reader behaviour on hostile input, one test per fault found while hardening the readers
+ * (fixture corpus and fuzzing), plus the size limits checked before decoding.
+ */
+import * as fs from 'node:fs';
+import * as os from 'node:os';
+import * as path from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+import { readGltfBytes } from '../../src/io/gltfRead.js';
+import { DEFAULT_MAX_TRIANGLES, TRIANGLE_ALLOWANCE, TRIANGLES_PER_INPUT_BYTE, checkTriangleLimit } from '../../src/io/limits.js';
+import { readObj } from '../../src/io/objRead.js';
+import { isInside } from '../../src/io/uri.js';
+import { TanframeError } from '../../src/mesh/errors.js';
+import { buildGltf, glbBytes, writeGltf, type BuildPrimitive } from '../helpers/gltfBuilder.js';
+
+const root = fs.mkdtempSync(path.join(os.tmpdir(), 'tanframe-hostile-'));
+let counter = 0;
+afterAll(() => fs.rmSync(root, { recursive: true, force: true }));
+
+function writeObj(text: string): string {
+  const dir = path.join(root, `obj${counter++}`);
+  fs.mkdirSync(dir, { recursive: true });
+  const file = path.join(dir, 'model.obj');
+  fs.writeFileSync(file, text);
+  return file;
+}
+
+/** The TanframeError `p` rejects with (fails when it resolves or throws something else). */
+async function refusal(p: Promise<unknown>): Promise<TanframeError> {
+  try {
+    await p;
+  } catch (err) {
+    expect(err).toBeInstanceOf(TanframeError);
+    return err as TanframeError;
+  }
+  throw new Error('expected a refusal');
+}
+
+// A quad, two triangles:
+//   3 ---- 2
+//   |    / |
+//   0 ---- 1
+function quad(): BuildPrimitive {
+  return {
+    attributes: {
+      POSITION: { array: new Float32Array([0, 0, 0, 1, 0, 0, 1, 1, 0, 0, 1, 0]), type: 'VEC3' },
+      TEXCOORD_0: { array: new Float32Array([0, 1, 1, 1, 1, 0, 0, 0]), type: 'VEC2' },
+    },
+    indices: new Uint16Array([0, 1, 2, 0, 2, 3]),
+  };
+}
+
+const OBJ_QUAD = 'v 0 0 0\nv 1 0 0\nv 1 1 0\nv 0 1 0\n';
+
+describe('OBJ face indices beyond int32', () => {
+  // Found by the fixture corpus: 99999999999999999999999 was converted to int32 when stored
+  // and wrapped around to a small index, so the face read as a valid one.
+  it('refuses an index too large for any vertex instead of wrapping it', async () => {
+    const e = await refusal(readObj(writeObj(`${OBJ_QUAD}f 1 2 99999999999999999999999\n`)));
+    expect(e.code).toBe('bad-obj');
+    expect(e.message).toMatch(/line 5: vertex index .* out of range/);
+  });
+
+  it('refuses 2^32 + 1, which wraps to 1 in 32 bits', async () => {
+    const e = await refusal(readObj(writeObj(`${OBJ_QUAD}f 1 2 4294967297\n`)));
+    expect(e.code).toBe('bad-obj');
+  });
+
+  it('refuses a hugely negative relative index', async () => {
+    const e = await refusal(readObj(writeObj(`${OBJ_QUAD}f 1 2 -4294967295\n`)));
+    expect(e.code).toBe('bad-obj');
+  });
+
+  it('keeps the message short when the offending token is megabytes long', async () => {
+    const e = await refusal(readObj(writeObj(`${OBJ_QUAD}f 1 2 3x${'9'.repeat(1_000_000)}\n`)));
+    expect(e.code).toBe('bad-obj');
+    expect(e.message.length).toBeLessThan(200);
+    expect(e.message).not.toMatch(/\n/);
+  });
+});
+
+describe('accessors with count 0', () => {
+  it('read as an empty primitive instead of failing the file', async () => {
+    // glTF 2.0 specification, accessor.count: minimum 1; exporters still write 0 for empty
+    // meshes, and the file's other meshes must not be lost because of it.
+    const { json, bin } = buildGltf([quad()]);
+    json.accessors[json.meshes[0].primitives[0].indices].count = 0;
+    const asset = await readGltfBytes(glbBytes(json, bin), 'x.glb');
+    expect(asset.primitives[0].indices!.length).toBe(0);
+  });
+
+  it('still refuses indices that point past the vertices of an empty attribute', async () => {
+    const { json, bin } = buildGltf([quad()]);
+    for (const a of json.accessors) if (a.type !== 'SCALAR') a.count = 0;
+    delete json.accessors[0].min;
+    delete json.accessors[0].max;
+    expect((await refusal(readGltfBytes(glbBytes(json, bin), 'x.glb'))).code).toBe('bad-index');
+  });
+});
+
+describe('URIs whose names start with two dots', () => {
+  // Found while writing the fixture corpus: "..data.bin" is an ordinary name inside the
+  // folder, but the containment check took any relative path starting with ".." as an escape.
+  it('isInside tells a name starting with .. from a parent folder', () => {
+    expect(isInside('/a/b', '/a/b/..data.bin')).toBe(true);
+    expect(isInside('/a/b', '/a/b/c/..')).toBe(true);
+    expect(isInside('/a/b', '/a')).toBe(false);
+    expect(isInside('/a/b', '/a/bc')).toBe(false);
+  });
+
+  it('reads a buffer file named ..data.bin', async () => {
+    const { json, bin } = buildGltf([quad()]);
+    const dir = path.join(root, `dots${counter++}`);
+    const file = await writeGltf(dir, 'x', json, bin);
+    fs.renameSync(path.join(dir, 'x.bin'), path.join(dir, '..data.bin'));
+    const text = JSON.parse(fs.readFileSync(file, 'utf8'));
+    text.buffers[0].uri = '..data.bin';
+    fs.writeFileSync(file, JSON.stringify(text));
+    const asset = await readGltfBytes(new Uint8Array(fs.readFileSync(file)), file);
+    expect(asset.primitives[0].indices!.length).toBe(6);
+  });
+});
+
+describe('triangle limits, checked before decoding', () => {
+  it('refuses a glTF holding more triangles than maxTriangles', async () => {
+    const { json, bin } = buildGltf([quad()]);
+    const e = await refusal(readGltfBytes(glbBytes(json, bin), 'x.glb', { maxTriangles: 1 }));
+    expect(e.code).toBe('too-large');
+    expect(e.message).toMatch(/2 triangles, more than the limit of 1/);
+    await expect(readGltfBytes(glbBytes(json, bin), 'x.glb', { maxTriangles: 2 })).resolves.toBeDefined();
+  });
+
+  it('counts strips and fans by their own rule', async () => {
+    // Source: glTF 2.0 specification, 3.7.2.1: a strip or fan of n indices holds n - 2 triangles.
+    const p = quad();
+    p.indices = new Uint16Array([0, 1, 3, 2]);
+    p.mode = 5;
+    const { json, bin } = buildGltf([p]);
+    await expect(readGltfBytes(glbBytes(json, bin), 'x.glb', { maxTriangles: 2 })).resolves.toBeDefined();
+    expect((await refusal(readGltfBytes(glbBytes(json, bin), 'x.glb', { maxTriangles: 1 }))).code).toBe('too-large');
+  });
+
+  it('refuses an OBJ whose faces hold more triangles than maxTriangles', async () => {
+    const file = writeObj(`${OBJ_QUAD}f 1 2 3 4\n`);
+    const e = await refusal(readObj(file, { maxTriangles: 1 }));
+    expect(e.code).toBe('too-large');
+    await expect(readObj(file, { maxTriangles: 2 })).resolves.toBeDefined();
+  });
+
+  it('refuses a tiny file whose triangles could only come from expanding zeros', async () => {
+    // A non-indexed POSITION accessor without a buffer view reads as zeros; ~3 million of
+    // them from a few hundred bytes would decode within the byte budget (37 MB) but make
+    // a million triangles to solve.
+    const vertices = 3 * (TRIANGLE_ALLOWANCE + 50_000);
+    const json = {
+      asset: { version: '2.0' },
+      accessors: [{ componentType: 5126, count: vertices, type: 'VEC3' }],
+      meshes: [{ primitives: [{ attributes: { POSITION: 0 } }] }],
+    };
+    const bytes = new TextEncoder().encode(JSON.stringify(json));
+    const e = await refusal(readGltfBytes(bytes, 'zeros.gltf'));
+    expect(e.code).toBe('too-large');
+    expect(e.message).toMatch(/holds only \d+ bytes/);
+  });
+
+  it('checkTriangleLimit: the default cap and the per-byte allowance', () => {
+    expect(() => checkTriangleLimit(DEFAULT_MAX_TRIANGLES, 1e12)).not.toThrow();
+    expect(() => checkTriangleLimit(DEFAULT_MAX_TRIANGLES + 1, 1e12)).toThrow(/--max-triangles/);
+    expect(() => checkTriangleLimit(TRIANGLE_ALLOWANCE, 0)).not.toThrow();
+    expect(() => checkTriangleLimit(TRIANGLE_ALLOWANCE + 1, 0)).toThrow(TanframeError);
+    expect(() => checkTriangleLimit(TRIANGLE_ALLOWANCE + TRIANGLES_PER_INPUT_BYTE * 100, 100)).not.toThrow();
+    expect(() => checkTriangleLimit(TRIANGLE_ALLOWANCE + TRIANGLES_PER_INPUT_BYTE * 100 + 1, 100)).toThrow(TanframeError);
+  });
+});
