@@ -8,7 +8,8 @@ import type { FileJob } from '../lib/processFile.js';
 import { buildReport } from '../report/json.js';
 import type { FileReport } from '../report/types.js';
 import { reportOptions, sortReports } from './bake.js';
-import { runFiles } from './runFiles.js';
+import { runBatch } from './batch.js';
+import { writeReportFiles } from './outputs.js';
 import { addSharedOptions, emitReport, exitStatus, shardOf, toProcessOptions, toolVersion, type CliIo } from './shared.js';
 
 /** Registers `audit` on `program`; `done` receives the exit status. */
@@ -36,9 +37,11 @@ export async function runAudit(inputs: string[], o: Record<string, any>, io: Cli
   const jobs: FileJob[] = shardOf(expanded.files, o.shard).map((f) => ({
     command: 'audit', input: f.path, output: null, format: null, dryRun: true, displayInput: display(f.path), displayOutput: null,
   }));
-  reports.push(...(await runFiles(jobs, options, o.jobs ?? 1)));
+  const batch = await runBatch(jobs, options, o, io);
+  reports.push(...batch.reports);
   const seconds = (performance.now() - started) / 1000;
   const report = buildReport('audit', toolVersion(), options.method, reportOptions(o), sortReports(reports), seconds);
+  await writeReportFiles(report, o, io, batch.pictures);
   await emitReport(report, o, io);
   return exitStatus(report.files);
 }

@@ -10,7 +10,8 @@ import type { FileJob } from '../lib/processFile.js';
 import { buildReport } from '../report/json.js';
 import type { FileReport } from '../report/types.js';
 import { addSharedOptions, emitReport, exitStatus, shardOf, toProcessOptions, toolVersion, type CliIo } from './shared.js';
-import { runFiles } from './runFiles.js';
+import { runBatch } from './batch.js';
+import { writeReportFiles } from './outputs.js';
 
 function swapExtension(p: string, format: 'glb' | 'gltf' | null): string {
   const ext = path.extname(p).toLowerCase();
@@ -95,9 +96,11 @@ export async function runBake(inputs: string[], o: Record<string, any>, io: CliI
       displayInput: display(f.path), displayOutput: output ? display(output) : null,
     });
   }
-  reports.push(...(await runFiles(jobs, options, o.jobs ?? 1)));
+  const batch = await runBatch(jobs, options, o, io);
+  reports.push(...batch.reports);
   const seconds = (performance.now() - started) / 1000;
   const report = buildReport('bake', toolVersion(), options.method, reportOptions(o), sortReports(reports), seconds);
+  await writeReportFiles(report, o, io, batch.pictures);
   await emitReport(report, o, io);
   return exitStatus(report.files);
 }

@@ -16,6 +16,7 @@ export function processIo(): CliIo {
     cwd: process.cwd(),
     isTTY: !!process.stdout.isTTY,
     env: process.env,
+    stderrIsTTY: !!process.stderr.isTTY,
   };
 }
 

@@ -1,25 +1,54 @@
 /**
- * Runs a list of file jobs and collects their reports in input order.
+ * Runs a list of file jobs, in-process or on the worker pool, and collects their reports in
+ * input order.
  */
-import { processFile, type FileJob } from '../lib/processFile.js';
+import { processFileOutcome, type FileJob, type FileOutcome } from '../lib/processFile.js';
 import type { ProcessOptions } from '../lib/options.js';
 import type { FileReport } from '../report/types.js';
+import type { UvPicture } from '../report/uvPicture.js';
+import { defaultWorkerScript, runInWorkers } from './pool.js';
+
+/** How to run a batch. */
+export interface RunSettings {
+  /** Worker threads; 1 runs every file on this thread, one after the other (no worker). */
+  threads: number;
+  /** The worker script (default: defaultWorkerScript()). */
+  workerScript?: URL;
+  /** Receives each file's pictures, in job order (whatever order the files finish in). */
+  onPictures?: (index: number, pictures: UvPicture[]) => void;
+  /** Called after each file, in completion order, with the count done so far. */
+  onProgress?: (done: number, total: number, input: string) => void;
+}
 
 /**
- * Processes `jobs` with up to `jobsInFlight` files at once on this thread (IO overlaps; the
- * solve itself runs one file at a time). Reports come back in the order of `jobs`.
+ * Processes `jobs` and returns their reports in the order of `jobs`. With one thread, or one
+ * job, files run here one after the other; otherwise on min(threads, jobs) worker threads.
+ * A number as `settings` is the thread count.
  */
-export async function runFiles(jobs: FileJob[], options: ProcessOptions, jobsInFlight: number): Promise<FileReport[]> {
-  const out: FileReport[] = new Array(jobs.length);
-  let next = 0;
-  const lanes = Math.max(1, Math.min(jobsInFlight, jobs.length));
-  const lane = async () => {
-    for (;;) {
-      const i = next++;
-      if (i >= jobs.length) return;
-      out[i] = await processFile(jobs[i], options);
+export async function runFiles(jobs: FileJob[], options: ProcessOptions, settings: RunSettings | number): Promise<FileReport[]> {
+  const s: RunSettings = typeof settings === 'number' ? { threads: settings } : settings;
+  const reports: FileReport[] = new Array(jobs.length);
+  // Pictures wait here until every earlier job has given its own, then go out in job order.
+  const waiting: (UvPicture[] | undefined)[] = new Array(jobs.length);
+  let released = 0;
+  let done = 0;
+  const take = (index: number, outcome: FileOutcome) => {
+    reports[index] = outcome.report;
+    done++;
+    s.onProgress?.(done, jobs.length, outcome.report.input);
+    if (!s.onPictures) return;
+    waiting[index] = outcome.pictures;
+    while (released < jobs.length && waiting[released] !== undefined) {
+      const pictures = waiting[released]!;
+      waiting[released] = undefined;
+      s.onPictures(released, pictures);
+      released++;
     }
   };
-  await Promise.all(Array.from({ length: lanes }, lane));
-  return out;
+  if (s.threads <= 1 || jobs.length <= 1) {
+    for (let i = 0; i < jobs.length; i++) take(i, await processFileOutcome(jobs[i], options));
+  } else {
+    await runInWorkers(jobs, options, s.threads, s.workerScript ?? defaultWorkerScript(), take);
+  }
+  return reports;
 }

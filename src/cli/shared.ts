@@ -9,6 +9,7 @@ import { Command, InvalidArgumentError, Option } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
 import { GATE_NAMES, defaultProcessOptions, type GateName, type ProcessOptions } from '../lib/options.js';
 import { writeFilesAtomic } from '../io/files.js';
+import { DEFAULT_MAX_TRIANGLES } from '../io/limits.js';
 import type { FileReport, Report } from '../report/types.js';
 import { renderSummary } from '../report/summary.js';
 
@@ -17,10 +18,21 @@ export interface CliIo {
   stdout: (s: string) => void;
   stderr: (s: string) => void;
   cwd: string;
-  /** stdout is a terminal (colour, progress). */
+  /** stdout is a terminal (colour). */
   isTTY: boolean;
   env: Record<string, string | undefined>;
+  /** stderr is a terminal (progress bar); false when absent. */
+  stderrIsTTY?: boolean;
+  /** Script the batch's worker threads start from (default: the compiled worker beside the CLI). */
+  workerScript?: URL;
 }
+
+/**
+ * Default `--file-timeout` in seconds: generous enough for the largest file the default
+ * --max-triangles admits on a slow machine, short enough that one hung file cannot stall a
+ * CI job for long. A choice of ours.
+ */
+export const DEFAULT_FILE_TIMEOUT_S = 300;
 
 /** The package version, read once from package.json. */
 export function toolVersion(): string {
@@ -77,12 +89,17 @@ export function addSharedOptions(cmd: Command): Command {
     .option('--max-degenerate-uv <n>', 'degenerate UV triangles tolerated per file before the gate trips', intArg(0), 0)
     .option('--tolerance <deg>', 'angle beyond which a stored tangent counts as mismatched', numberArg(0, 180), 1)
     .option('--uv-epsilon <x>', 'relative UV area below which a triangle is degenerate', numberArg(0, 1))
+    .option('--max-triangles <n>', `most triangles one file may hold, checked before decoding (default ${DEFAULT_MAX_TRIANGLES})`, intArg(1))
+    .option('--file-timeout <s>', `seconds one file may take in a batch before it fails with 'timeout' (0: no limit; default ${DEFAULT_FILE_TIMEOUT_S})`, numberArg(0, 1e9))
     .option('--report <file>', 'write the JSON report to this file')
-    .option('--jobs <n>', 'worker threads (default: available cores)', intArg(1))
+    .option('--junit <file>', 'write a JUnit XML file: one test case per input file')
+    .option('--html <file>', 'write one self-contained HTML page: summary, per-file tables, UV pictures')
+    .option('--uv-maps <dir>', 'write one SVG picture of the UV layout per primitive with findings')
+    .option('--jobs <n>', 'worker threads (default: available cores; 1 runs in-process)', intArg(1))
     .option('--shard <k/n>', 'process only the k-th of n slices of the sorted input list', shardArg)
     .option('--json', 'print the JSON report on stdout instead of the summary', false)
-    .option('--quiet', 'print nothing but errors', false)
-    .option('--no-progress', 'never show a progress bar')
+    .option('--quiet', 'print nothing but errors (no summary, no progress)', false)
+    .option('--no-progress', 'never show the progress bar (shown only when stderr is a terminal outside CI)')
     .option('--debug', 'show stack traces of internal errors', false);
 }
 
@@ -97,6 +114,7 @@ export function toProcessOptions(o: Record<string, any>): ProcessOptions {
   p.maxDegenerateUv = o.maxDegenerateUv ?? 0;
   p.tolerance = o.tolerance ?? p.tolerance;
   if (o.uvEpsilon !== undefined) p.uvEpsilon = o.uvEpsilon;
+  if (o.maxTriangles !== undefined) p.maxTriangles = o.maxTriangles;
   return p;
 }
 

@@ -1,70 +1,179 @@
 /**
- * The human summary printed after `bake` and `audit`: one line per file, worst first, and a
- * closing total. Colour only when the caller says the stream is a terminal and NO_COLOR is
- * unset.
+ * The human summary printed after `bake` and `audit`: files worst first, each with a compact
+ * table of its primitives' findings (worst first), then a closing total. Colour only when the
+ * caller says the stream is a terminal and NO_COLOR is unset.
  */
-import type { FileReport, Report } from './types.js';
+import type { FileReport, PrimitiveReport, Report } from './types.js';
 
 /** Styling switch for the summary. */
 export interface SummaryStyle {
   color: boolean;
 }
 
-const paint = (on: boolean, code: string, s: string) => (on ? `\u001b[${code}m${s}\u001b[0m` : s);
+/** Files without findings listed one per line before the rest are only counted. */
+export const SUMMARY_CLEAN_FILES = 20;
+/** Primitive rows shown per file before the rest are only counted. */
+export const SUMMARY_PRIMITIVE_ROWS = 12;
+
+const paint = (on: boolean, code: string, s: string) => (on && s !== '' ? `\u001b[${code}m${s}\u001b[0m` : s);
 
 function n(x: number): string {
   return x.toLocaleString('en-US');
 }
 
-function severity(f: FileReport): number {
+function storedMismatch(p: PrimitiveReport): number {
+  const s = p.storedTangents;
+  return s ? s.invalid + s.mismatched : 0;
+}
+
+/** Findings of one primitive, summed (the order of rows and files); 0 when skipped. */
+export function primitiveWeight(p: PrimitiveReport): number {
+  if (p.action === 'skipped') return 0;
+  return p.degenerateUv.count + p.degenerateGeometry.count + p.invalidValues.count + p.badNormals.count + p.uvOverlap.count + storedMismatch(p);
+}
+
+/** Findings of a file's primitives, summed. */
+export function fileWeight(f: FileReport): number {
+  let w = 0;
+  for (const p of f.primitives) w += primitiveWeight(p);
+  return w;
+}
+
+/** 3 failed, 2 a gate tripped, 1 findings, 0 clean. */
+export function severity(f: FileReport): number {
   if (f.status === 'failed') return 3;
   if (f.gates.length) return 2;
-  if (f.primitives.some((p) => p.degenerateUv.count > 0 || p.invalidValues.count > 0)) return 1;
+  if (fileWeight(f) > 0) return 1;
   return 0;
 }
 
-function fileLine(f: FileReport, style: SummaryStyle): string {
+const COLUMNS = ['primitive', 'triangles', 'vertices', 'splits', 'mirrored', 'UV degen', 'geo degen', 'invalid', 'normals', 'overlap', 'stored tangents'];
+/** Report gate that each finding column belongs to (for colouring), by column index. */
+const COLUMN_GATE: Record<number, string> = { 5: 'degenerate-uv', 6: 'degenerate-geometry', 7: 'invalid-values', 8: 'bad-normals', 9: 'uv-overlap', 10: 'tangent-mismatch' };
+
+function storedCell(p: PrimitiveReport): string {
+  const s = p.storedTangents;
+  if (!s) return p.normalMapped ? 'missing' : '-';
+  const parts = [`mean ${s.meanAngleDeg.toFixed(3)}\u00b0 max ${s.maxAngleDeg.toFixed(2)}\u00b0`];
+  if (s.mismatched) parts.push(`${n(s.mismatched)} off`);
+  if (s.signMismatch) parts.push(`${n(s.signMismatch)} sign`);
+  if (s.invalid) parts.push(`${n(s.invalid)} invalid`);
+  return parts.join(', ');
+}
+
+function primitiveCells(p: PrimitiveReport): string[] {
+  const name = p.meshName ? ` ${p.meshName.length > 20 ? p.meshName.slice(0, 19) + '\u2026' : p.meshName}` : '';
+  return [
+    `m${p.mesh}p${p.primitive}${name}`,
+    n(p.triangles),
+    `${n(p.verticesIn)}>${n(p.verticesOut)}`,
+    p.mirrorSeamSplits ? `${n(p.splitVertices)} (${n(p.mirrorSeamSplits)} seam)` : n(p.splitVertices),
+    n(p.mirroredTriangles),
+    n(p.degenerateUv.count),
+    n(p.degenerateGeometry.count),
+    n(p.invalidValues.count),
+    n(p.badNormals.count),
+    n(p.uvOverlap.count),
+    storedCell(p),
+  ];
+}
+
+/** Lays out rows as aligned columns (text left, numbers right); colours cells afterwards. */
+function table(rows: string[][], f: FileReport, style: SummaryStyle, indent: string): string[] {
+  const widths = COLUMNS.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i].length)));
+  const left = (i: number) => i === 0 || i === COLUMNS.length - 1;
+  const pad = (s: string, i: number) => (left(i) ? s.padEnd(widths[i]) : s.padStart(widths[i]));
+  const out = [indent + COLUMNS.map((h, i) => paint(style.color, '2', pad(h, i))).join('  ').trimEnd()];
+  for (const r of rows) {
+    const cells = r.map((cell, i) => {
+      const text = pad(cell, i);
+      const gate = COLUMN_GATE[i];
+      const nonZero = i === 10 ? cell !== '-' && /off|sign|invalid|missing/.test(cell) : gate !== undefined && cell !== '0';
+      if (!nonZero) return text;
+      const tripped = f.gates.includes(gate) || (i === 10 && cell === 'missing' && f.gates.includes('missing-tangents'));
+      return paint(style.color, tripped ? '31;1' : '33', text);
+    });
+    out.push((indent + cells.join('  ')).trimEnd());
+  }
+  return out;
+}
+
+function skippedLine(f: FileReport): string | null {
+  const reasons = new Map<string, number>();
+  for (const p of f.primitives) {
+    if (p.action !== 'skipped') continue;
+    const r = p.skipReason ?? 'skipped';
+    reasons.set(r, (reasons.get(r) ?? 0) + 1);
+  }
+  if (reasons.size === 0) return null;
+  const total = [...reasons.values()].reduce((a, b) => a + b, 0);
+  const list = [...reasons.entries()].sort((a, b) => (a[0] < b[0] ? -1 : 1)).map(([r, k]) => `${r} ${k}`).join(', ');
+  return `${total} primitive${total === 1 ? '' : 's'} skipped (${list})`;
+}
+
+function fileBlock(f: FileReport, style: SummaryStyle): string[] {
+  const target = f.output ? ` -> ${f.output}` : '';
   if (f.status === 'failed') {
-    return `  ${paint(style.color, '31;1', 'FAILED ')} ${f.input}: ${f.error?.message ?? 'failed'} [${f.error?.code ?? 'internal'}]`;
+    return [`${paint(style.color, '31;1', 'failed   ')}${f.input}: ${f.error?.message ?? 'failed'} [${f.error?.code ?? 'internal'}]`];
   }
   const done = f.primitives.filter((p) => p.action !== 'skipped');
+  const tag = f.gates.length ? paint(style.color, '31;1', 'gated    ') : fileWeight(f) > 0 ? paint(style.color, '33;1', 'findings ') : paint(style.color, '32', 'ok       ');
+  const head = `${tag}${f.input}${target}`;
+  const lines = [f.gates.length ? `${head}  ${paint(style.color, '31', `[${f.gates.join(', ')}]`)}` : head];
+  const rows = primitivesWorstFirst(done);
+  if (rows.length) {
+    lines.push(...table(rows.slice(0, SUMMARY_PRIMITIVE_ROWS).map(primitiveCells), f, style, '         '));
+    if (rows.length > SUMMARY_PRIMITIVE_ROWS) lines.push(`         ... ${n(rows.length - SUMMARY_PRIMITIVE_ROWS)} more primitives (full list in --report / --html)`);
+  }
+  const skipped = skippedLine(f);
+  if (skipped) lines.push(`         ${skipped}`);
+  for (const w of f.warnings) lines.push(`         warning: ${w}`);
+  return lines;
+}
+
+function cleanLine(f: FileReport, style: SummaryStyle): string {
+  const done = f.primitives.filter((p) => p.action !== 'skipped');
   const tri = done.reduce((a, p) => a + p.triangles, 0);
-  const vin = done.reduce((a, p) => a + p.verticesIn, 0);
-  const vout = done.reduce((a, p) => a + p.verticesOut, 0);
-  const mirrored = done.reduce((a, p) => a + p.mirroredTriangles, 0);
-  const degenerate = done.reduce((a, p) => a + p.degenerateUv.count, 0);
-  const skipped = f.primitives.length - done.length;
-  const tag = f.gates.length ? paint(style.color, '33;1', 'GATED  ') : paint(style.color, '32', 'ok     ');
-  const parts = [
-    `${done.length} of ${f.primitives.length} primitives`,
-    `${n(tri)} triangles`,
-    `vertices ${n(vin)} -> ${n(vout)}`,
-    `mirrored ${n(mirrored)}`,
-    `degenerate UV ${degenerate > 0 ? paint(style.color, '33', n(degenerate)) : '0'}`,
-  ];
-  if (skipped) parts.push(`${skipped} skipped`);
-  if (f.gates.length) parts.push(`gates: ${f.gates.join(', ')}`);
-  parts.push(`${(f.seconds * 1000).toFixed(0)} ms`);
   const target = f.output ? ` -> ${f.output}` : '';
-  return `  ${tag} ${f.input}${target}\n           ${parts.join(' | ')}`;
+  const extra = f.warnings.length ? `, ${f.warnings.length} warning${f.warnings.length === 1 ? '' : 's'}` : '';
+  return `${paint(style.color, '32', 'ok       ')}${f.input}${target}  (${done.length} of ${f.primitives.length} primitives, ${n(tri)} triangles, no findings${extra})`;
+}
+
+/** Files worst first: by severity, then by findings, then by name. */
+export function filesWorstFirst(files: FileReport[]): FileReport[] {
+  return [...files].sort(
+    (a, b) => severity(b) - severity(a) || fileWeight(b) - fileWeight(a) || (a.input < b.input ? -1 : a.input > b.input ? 1 : 0),
+  );
+}
+
+/** Primitives worst first: by findings, then mesh and primitive index. */
+export function primitivesWorstFirst(primitives: PrimitiveReport[]): PrimitiveReport[] {
+  return [...primitives].sort((a, b) => primitiveWeight(b) - primitiveWeight(a) || a.mesh - b.mesh || a.primitive - b.primitive);
 }
 
 /** Renders the summary of `report` as text (ends with a newline). */
 export function renderSummary(report: Report, style: SummaryStyle): string {
-  const files = [...report.files].sort((a, b) => severity(b) - severity(a) || (a.input < b.input ? -1 : a.input > b.input ? 1 : 0));
-  const lines = [`tanframe ${report.command} (${report.method})`];
-  for (const f of files) {
-    lines.push(fileLine(f, style));
-    for (const w of f.warnings) lines.push(`           warning: ${w}`);
-  }
+  const files = filesWorstFirst(report.files);
   const s = report.summary;
+  const lines = [`tanframe ${report.command} (${report.method}): ${n(s.files)} file${s.files === 1 ? '' : 's'}`];
+  let clean = 0;
+  for (const f of files) {
+    if (severity(f) === 0) {
+      clean++;
+      if (clean <= SUMMARY_CLEAN_FILES) lines.push(cleanLine(f, style));
+      continue;
+    }
+    lines.push(...fileBlock(f, style));
+  }
+  if (clean > SUMMARY_CLEAN_FILES) lines.push(`         ... ${n(clean - SUMMARY_CLEAN_FILES)} more files without findings`);
+  const gated = report.files.filter((f) => f.gates.length > 0).length;
   const totals = [
-    `${s.files} file${s.files === 1 ? '' : 's'}: ${s.ok} ok, ${s.failed} failed`,
+    `${n(s.files)} file${s.files === 1 ? '' : 's'}: ${n(s.ok)} ok, ${n(s.failed)} failed, ${n(gated)} gated`,
     `${n(s.triangles)} triangles`,
     `${n(s.degenerateUv)} degenerate UV`,
     `${s.seconds.toFixed(2)} s`,
   ];
   lines.push(`total: ${totals.join(' | ')}`);
-  if (s.gatesTripped.length) lines.push(paint(style.color, '33;1', `gates tripped: ${s.gatesTripped.join(', ')}`));
+  if (s.gatesTripped.length) lines.push(paint(style.color, '31;1', `gates tripped: ${s.gatesTripped.join(', ')}`));
   return lines.join('\n') + '\n';
 }

@@ -10,16 +10,35 @@ export interface CliRun {
   stderr: string;
 }
 
+/**
+ * Worker threads started by in-process runs load the TypeScript sources through this entry,
+ * so they run the same code as the test (see tsWorker.mjs).
+ */
+export const TS_WORKER = new URL('./tsWorker.mjs', import.meta.url);
+
+/** Extra stream facts for a run (defaults: neither stream is a terminal). */
+export interface CliRunOptions {
+  stdoutIsTTY?: boolean;
+  stderrIsTTY?: boolean;
+}
+
 /** Runs `tanframe <argv...>` in `cwd` without spawning a process. */
-export async function runCli(argv: string[], cwd: string, env: Record<string, string | undefined> = {}): Promise<CliRun> {
+export async function runCli(
+  argv: string[],
+  cwd: string,
+  env: Record<string, string | undefined> = {},
+  streams: CliRunOptions = {},
+): Promise<CliRun> {
   let stdout = '';
   let stderr = '';
   const code = await main(argv, {
     stdout: (s) => { stdout += s; },
     stderr: (s) => { stderr += s; },
     cwd,
-    isTTY: false,
+    isTTY: !!streams.stdoutIsTTY,
     env,
+    stderrIsTTY: !!streams.stderrIsTTY,
+    workerScript: TS_WORKER,
   });
   return { code, stdout, stderr };
 }

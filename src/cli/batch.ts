@@ -1,0 +1,45 @@
+/**
+ * The batch both `bake` and `audit` run: jobs on the worker pool (or in-process), the
+ * progress bar, and the pictures streamed to --uv-maps / --html as files finish.
+ */
+import * as os from 'node:os';
+import type { FileJob } from '../lib/processFile.js';
+import type { ProcessOptions } from '../lib/options.js';
+import type { FileReport } from '../report/types.js';
+import { PictureOutputs } from './outputs.js';
+import { ProgressBar, progressWanted } from './progress.js';
+import { runFiles } from './runFiles.js';
+import type { CliIo } from './shared.js';
+
+/** Worker threads for `--jobs` (default: the cores this process may use). */
+export function threadCount(o: Record<string, any>): number {
+  return o.jobs ?? os.availableParallelism();
+}
+
+/**
+ * Runs `jobs` and returns their reports in job order, with the pictures (when --uv-maps or
+ * --html asks for them) written or kept for the page.
+ */
+export async function runBatch(
+  jobs: FileJob[],
+  options: ProcessOptions,
+  o: Record<string, any>,
+  io: CliIo,
+): Promise<{ reports: FileReport[]; pictures: PictureOutputs }> {
+  const pictures = new PictureOutputs(o, io);
+  const withPictures = pictures.wanted ? jobs.map((j) => ({ ...j, pictures: true })) : jobs;
+  const bar = progressWanted(!!io.stderrIsTTY, io.env, o) && jobs.length > 0 ? new ProgressBar(io.stderr, jobs.length) : null;
+  let reports: FileReport[];
+  try {
+    reports = await runFiles(withPictures, options, {
+      threads: threadCount(o),
+      workerScript: io.workerScript,
+      onPictures: pictures.wanted ? (_i, list) => pictures.take(list) : undefined,
+      onProgress: bar ? (done, _total, input) => bar.update(done, input) : undefined,
+    });
+  } finally {
+    bar?.finish();
+  }
+  await pictures.finish(o);
+  return { reports, pictures };
+}

@@ -1,0 +1,371 @@
+// End-to-end runs of `tanframe audit` (and the exit statuses of `bake`) in-process, on generated
+// grids with planted defects (test/helpers/gridAsset.ts), the bundled demo and a Khronos sample.
+import * as fs from 'node:fs';
+import * as os from 'node:os';
+import * as path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { runCli } from '../helpers/cli.js';
+import { GltfBuilder, writeGlb } from '../helpers/gltfBuilder.js';
+import { cornerUv, gridAsset, setCornerUv, writeGridGlb, type GridAsset } from '../helpers/gridAsset.js';
+import { shardOf } from '../../src/cli/shared.js';
+
+const repo = path.resolve(__dirname, '../..');
+const demo = path.join(repo, 'examples/harbor-props');
+let tmp = '';
+let grids = '';
+const N = 8; // 8 x 8 quads: 128 triangles, 384 vertices
+
+/** The planted degenerate-UV triangles, one of each kind. */
+const IDENTICAL = 5, COLINEAR = 37, COINCIDENT = 90;
+
+function plantDegenerate(g: GridAsset): void {
+  // identical: all three corners at corner 0's UV.
+  const a = cornerUv(g, IDENTICAL, 0);
+  setCornerUv(g, IDENTICAL, 1, a);
+  setCornerUv(g, IDENTICAL, 2, a);
+  // colinear: corner 2 moved to the middle of the edge from corner 0 to corner 1.
+  const p = cornerUv(g, COLINEAR, 0), q = cornerUv(g, COLINEAR, 1);
+  setCornerUv(g, COLINEAR, 2, [(p[0] + q[0]) / 2, (p[1] + q[1]) / 2]);
+  // coincident: corner 1 on top of corner 0.
+  setCornerUv(g, COINCIDENT, 1, cornerUv(g, COINCIDENT, 0));
+}
+
+/** Triangle 21 shrunk to half size about the centroid of triangle 20, inside it: one overlapping pair. */
+function plantOverlap(g: GridAsset): void {
+  const c = [0, 1, 2].map((k) => cornerUv(g, 20, k));
+  const cu = (c[0][0] + c[1][0] + c[2][0]) / 3, cv = (c[0][1] + c[1][1] + c[2][1]) / 3;
+  for (let k = 0; k < 3; k++) setCornerUv(g, 21, k, [cu + 0.5 * (c[k][0] - cu), cv + 0.5 * (c[k][1] - cv)]);
+}
+
+/**
+ * A welded 4 x 4 grid whose right half mirrors the left in u (u = x/4 left of x = 2, 1 - x/4
+ * right of it; v = 1 - y/4): the 5 vertices on the line x = 2 are shared by both sides.
+ *   y ^
+ *   4 +--+--+--+--+
+ *     |  |  |  |  |     left half: u grows with x (w = +1); right half: u falls (w = -1)
+ *   0 +--+--+--+--+--> x
+ *     0     2     4
+ */
+async function writeMirroredGrid(dir: string): Promise<string> {
+  const n = 4, side = n + 1;
+  const positions = new Float32Array(side * side * 3), normals = new Float32Array(side * side * 3), uvs = new Float32Array(side * side * 2);
+  for (let j = 0; j <= n; j++) {
+    for (let i = 0; i <= n; i++) {
+      const v = j * side + i;
+      positions[v * 3] = i; positions[v * 3 + 1] = j; normals[v * 3 + 2] = 1;
+      uvs[v * 2] = i <= n / 2 ? i / n : 1 - i / n;
+      uvs[v * 2 + 1] = 1 - j / n;
+    }
+  }
+  const indices: number[] = [];
+  for (let j = 0; j < n; j++) {
+    for (let i = 0; i < n; i++) {
+      const a = j * side + i;
+      indices.push(a, a + 1, a + side + 1, a, a + side + 1, a + side);
+    }
+  }
+  const b = new GltfBuilder();
+  b.addPrimitive({
+    attributes: { POSITION: { array: positions, type: 'VEC3' }, NORMAL: { array: normals, type: 'VEC3' }, TEXCOORD_0: { array: uvs, type: 'VEC2' } },
+    indices: Uint32Array.from(indices),
+  });
+  const { json, bin } = b.build();
+  return writeGlb(dir, 'mirrored', json, bin);
+}
+
+beforeAll(async () => {
+  tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'tanframe-audit-'));
+  grids = path.join(tmp, 'grids');
+  await writeGridGlb(grids, 'clean', gridAsset(N));
+  const degenerate = gridAsset(N);
+  plantDegenerate(degenerate);
+  await writeGridGlb(grids, 'degenerate-uv', degenerate);
+  const overlap = gridAsset(N);
+  plantOverlap(overlap);
+  await writeGridGlb(grids, 'overlap', overlap);
+  const nan = gridAsset(N);
+  nan.positions[(40 * 3 + 1) * 3] = NaN; // x of corner 1 of triangle 40
+  nan.normals[(70 * 3) * 3 + 2] = NaN; // z of the normal of corner 0 of triangle 70
+  await writeGridGlb(grids, 'nan', nan);
+  const flipped = gridAsset(N);
+  for (let k = 0; k < 3; k++) flipped.normals[(44 * 3 + k) * 3 + 2] = -1; // triangle 44 faces away
+  await writeGridGlb(grids, 'flipped-normals', flipped);
+  await writeGridGlb(grids, 'tangents-exact', gridAsset(N, true));
+  const wrong = gridAsset(N, true);
+  const r = (30 * Math.PI) / 180;
+  wrong.tangents![(10 * 3) * 4] = Math.cos(r); // corner 0 of triangle 10: rotated 30 degrees about the normal
+  wrong.tangents![(10 * 3) * 4 + 1] = Math.sin(r);
+  wrong.tangents![(50 * 3 + 1) * 4 + 3] = -1; // corner 1 of triangle 50: the other handedness
+  await writeGridGlb(grids, 'tangents-wrong', wrong);
+});
+afterAll(() => {
+  fs.rmSync(tmp, { recursive: true, force: true });
+});
+
+async function audit(args: string[]): Promise<{ code: number; report: any; stderr: string }> {
+  const r = await runCli(['audit', ...args, '--json'], tmp);
+  return { code: r.code, report: JSON.parse(r.stdout), stderr: r.stderr };
+}
+
+const grid = (name: string) => path.join(grids, `${name}.glb`);
+
+function noOtherFindings(p: any, except: string[]): void {
+  const all: Record<string, number> = {
+    degenerateUv: p.degenerateUv.count, degenerateGeometry: p.degenerateGeometry.count, invalidValues: p.invalidValues.count,
+    badNormals: p.badNormals.count, uvOverlap: p.uvOverlap.count, mirroredTriangles: p.mirroredTriangles,
+  };
+  for (const [k, v] of Object.entries(all)) if (!except.includes(k)) expect(v, k).toBe(0);
+}
+
+describe('audit finds planted defects exactly', () => {
+  it('degenerateUvTrianglesOfEachKindTripTheGateAndAreListed', async () => {
+    const r = await audit([grid('degenerate-uv'), '--fail-on', 'degenerate-uv']);
+    expect(r.code).toBe(1);
+    const f = r.report.files[0];
+    expect(f.gates).toEqual(['degenerate-uv']);
+    const p = f.primitives[0];
+    expect(p.action).toBe('baked');
+    expect(p.triangles).toBe(2 * N * N);
+    expect(p.degenerateUv).toEqual({ count: 3, triangles: [IDENTICAL, COLINEAR, COINCIDENT] });
+    noOtherFindings(p, ['degenerateUv']);
+    console.log(`planted degenerate UV triangles ${[IDENTICAL, COLINEAR, COINCIDENT].join(', ')}; audit lists ${p.degenerateUv.triangles.join(', ')}`);
+  });
+
+  it('theRepairedGridPasses', async () => {
+    const r = await audit([grid('clean'), '--fail-on', 'degenerate-uv']);
+    expect(r.code).toBe(0);
+    expect(r.report.files[0].gates).toEqual([]);
+    expect(r.report.files[0].primitives[0].degenerateUv).toEqual({ count: 0, triangles: [] });
+    noOtherFindings(r.report.files[0].primitives[0], []);
+  });
+
+  it('maxDegenerateUvToleratesUpToItsCount', async () => {
+    expect((await audit([grid('degenerate-uv'), '--fail-on', 'degenerate-uv', '--max-degenerate-uv', '3'])).code).toBe(0);
+    expect((await audit([grid('degenerate-uv'), '--fail-on', 'degenerate-uv', '--max-degenerate-uv', '2'])).code).toBe(1);
+  });
+
+  it('uvEpsilonDecidesWhenASliverIsDegenerate', async () => {
+    // Triangle 60's corner 2 pulled toward the edge from corner 0 to corner 1 until
+    // |det| / (|e1|^2 + |e2|^2) is about 1e-5: above the default 1e-7, below 1e-4.
+    const g = gridAsset(N);
+    const a = cornerUv(g, 60, 0), b = cornerUv(g, 60, 1), c = cornerUv(g, 60, 2);
+    const s = 2e-5;
+    setCornerUv(g, 60, 2, [(a[0] + b[0]) / 2 + s * (c[0] - (a[0] + b[0]) / 2), (a[1] + b[1]) / 2 + s * (c[1] - (a[1] + b[1]) / 2)]);
+    const file = await writeGridGlb(path.join(tmp, 'sliver'), 'sliver', g);
+    const byDefault = await audit([file, '--fail-on', 'degenerate-uv']);
+    expect(byDefault.code).toBe(0);
+    expect(byDefault.report.files[0].primitives[0].degenerateUv.count).toBe(0);
+    const strict = await audit([file, '--fail-on', 'degenerate-uv', '--uv-epsilon', '1e-4']);
+    expect(strict.code).toBe(1);
+    expect(strict.report.files[0].primitives[0].degenerateUv.triangles).toEqual([60]);
+    expect(strict.report.options.uvEpsilon).toBe(1e-4);
+  });
+
+  it('overlappingUvTrianglesAreFoundExactly', async () => {
+    const r = await audit([grid('overlap'), '--fail-on', 'uv-overlap']);
+    expect(r.code).toBe(1);
+    expect(r.report.files[0].gates).toEqual(['uv-overlap']);
+    const p = r.report.files[0].primitives[0];
+    expect(p.uvOverlap).toEqual({ count: 2, triangles: [20, 21] });
+    noOtherFindings(p, ['uvOverlap']);
+    expect((await audit([grid('clean'), '--fail-on', 'uv-overlap'])).code).toBe(0);
+  });
+
+  it('nanValuesAreCountedPerVertex', async () => {
+    const r = await audit([grid('nan'), '--fail-on', 'invalid-values']);
+    expect(r.code).toBe(1);
+    expect(r.report.files[0].gates).toEqual(['invalid-values']);
+    const p = r.report.files[0].primitives[0];
+    // One vertex with a NaN position, one with a NaN normal.
+    expect(p.invalidValues.count).toBe(2);
+    // The triangle holding the NaN position has no usable area (documented in findDegenerateGeometry);
+    // the NaN normal is not unit (documented in findBadNormals).
+    expect(p.degenerateGeometry).toEqual({ count: 1, triangles: [40] });
+    expect(p.badNormals.count).toBe(1);
+    expect(p.degenerateUv.count).toBe(0);
+    expect((await audit([grid('clean'), '--fail-on', 'invalid-values'])).code).toBe(0);
+  });
+
+  it('flippedNormalsAreFoundExactly', async () => {
+    const r = await audit([grid('flipped-normals'), '--fail-on', 'bad-normals']);
+    expect(r.code).toBe(1);
+    expect(r.report.files[0].gates).toEqual(['bad-normals']);
+    const p = r.report.files[0].primitives[0];
+    expect(p.badNormals.count).toBe(3); // the three corners of triangle 44 (each its own vertex)
+    noOtherFindings(p, ['badNormals']);
+    expect((await audit([grid('clean'), '--fail-on', 'bad-normals'])).code).toBe(0);
+  });
+
+  it('wrongStoredTangentsAreFoundExactly', async () => {
+    const exact = await audit([grid('tangents-exact'), '--fail-on', 'tangent-mismatch']);
+    expect(exact.code).toBe(0);
+    const e = exact.report.files[0].primitives[0].storedTangents;
+    expect(e.compared).toBe(3 * 2 * N * N);
+    expect(e.mismatched).toBe(0);
+    expect(e.signMismatch).toBe(0);
+    expect(e.maxAngleDeg).toBeLessThan(1e-3);
+
+    const r = await audit([grid('tangents-wrong'), '--fail-on', 'tangent-mismatch']);
+    expect(r.code).toBe(1);
+    expect(r.report.files[0].gates).toEqual(['tangent-mismatch']);
+    const s = r.report.files[0].primitives[0].storedTangents;
+    expect(s.invalid).toBe(0);
+    expect(s.signMismatch).toBe(1);
+    expect(s.mismatched).toBe(2);
+    expect(s.maxAngleDeg).toBeCloseTo(30, 3);
+  });
+
+  it('missingTangentsOnANormalMappedPrimitiveTripTheirGate', async () => {
+    const r = await audit([grid('clean'), '--fail-on', 'missing-tangents']);
+    expect(r.code).toBe(1);
+    expect(r.report.files[0].primitives[0].normalMapped).toBe(true);
+    expect(r.report.files[0].primitives[0].storedTangents).toBeNull();
+    expect((await audit([grid('tangents-exact'), '--fail-on', 'missing-tangents'])).code).toBe(0);
+  });
+
+  it('mirrorSeamSplitsCountTheVerticesSplitOnTheMirrorLine', async () => {
+    // Source: MikkTSpace grouping (METHODS.md, item 4): a vertex on a UV mirror line gets one
+    // frame per side, so each of the 5 shared vertices on x = 2 is split once, with the other w.
+    const file = await writeMirroredGrid(path.join(tmp, 'mirror'));
+    const r = await audit([file, '--all-primitives']);
+    expect(r.code).toBe(0);
+    const p = r.report.files[0].primitives[0];
+    expect(p.mirroredTriangles).toBe(16);
+    expect(p.splitVertices).toBe(5);
+    expect(p.mirrorSeamSplits).toBe(5);
+  });
+});
+
+const ntmt = path.resolve(repo, '../shared/datasets/gltf-samples/NormalTangentMirrorTest/glTF-Binary/NormalTangentMirrorTest.glb');
+const ntmtPresent = fs.existsSync(ntmt);
+if (!ntmtPresent) console.warn(`SKIPPED: ${ntmt} is absent (shared datasets not installed); the NormalTangentMirrorTest audit did not run`);
+
+describe.skipIf(!ntmtPresent)('NormalTangentMirrorTest (Khronos sample, CC-BY 4.0)', () => {
+  it('storedTangentsAuditAsMatchingTheStandardMethod', async () => {
+    // Source: Khronos glTF sample asset NormalTangentMirrorTest; its tangents were exported with
+    // the standard method (MikkTSpace), which glTF 2.0 names for generated tangents.
+    const r = await audit([ntmt, '--fail-on', 'tangent-mismatch,invalid-values']);
+    expect(r.code).toBe(0);
+    const p = r.report.files[0].primitives[0];
+    const s = p.storedTangents;
+    console.log(
+      `NormalTangentMirrorTest audit: ${s.compared} corners compared; mean ${s.meanAngleDeg.toFixed(5)} deg, ` +
+        `p95 ${s.p95AngleDeg.toFixed(5)} deg, max ${s.maxAngleDeg.toFixed(5)} deg; ${s.signMismatch} sign mismatches; ` +
+        `${p.mirroredTriangles} mirrored triangles`,
+    );
+    expect(s.compared).toBeGreaterThan(15000);
+    expect(s.invalid).toBe(0);
+    expect(s.signMismatch).toBe(0);
+    expect(s.mismatched).toBe(0);
+    expect(s.maxAngleDeg).toBeLessThanOrEqual(1); // the default --tolerance
+    expect(p.mirroredTriangles).toBeGreaterThan(0); // the sample's point: mirrored UVs
+  });
+});
+
+describe('batch', () => {
+  const strip = (text: string) => JSON.stringify(JSON.parse(text), (k, v) => (k === 'seconds' ? undefined : v));
+
+  it('theJsonReportIsTheSameForOneAndTwoWorkers', async () => {
+    const args = ['audit', grids, demo, '--fail-on', 'degenerate-uv,uv-overlap', '--json'];
+    const one = await runCli([...args, '--jobs', '1'], tmp);
+    const two = await runCli([...args, '--jobs', '2'], tmp);
+    expect(one.code).toBe(1);
+    expect(two.code).toBe(1);
+    const parsed = JSON.parse(two.stdout);
+    expect(parsed.files.length).toBe(13); // 7 grids + 6 demo files
+    expect(parsed.files.map((f: any) => f.input)).toEqual([...parsed.files.map((f: any) => f.input)].sort());
+    expect(strip(two.stdout)).toBe(strip(one.stdout));
+    // Timings are present (and only there).
+    expect(typeof parsed.summary.seconds).toBe('number');
+    expect(parsed.files.every((f: any) => typeof f.seconds === 'number')).toBe(true);
+  });
+
+  it('shardSlicesPartitionTheInputs', async () => {
+    // The pure slicer: every position lands in exactly one slice.
+    const items = Array.from({ length: 17 }, (_, i) => i);
+    for (const n of [1, 2, 3, 5, 17, 20]) {
+      const slices = Array.from({ length: n }, (_, k) => shardOf(items, { k: k + 1, n }));
+      expect(slices.flat().sort((a, b) => a - b)).toEqual(items);
+    }
+    // Through the CLI, over 13 files in 3 slices.
+    const whole = JSON.parse((await runCli(['audit', grids, demo, '--json', '--jobs', '1'], tmp)).stdout).files.map((f: any) => f.input);
+    const seen: string[] = [];
+    for (let k = 1; k <= 3; k++) {
+      const r = await runCli(['audit', grids, demo, '--json', '--shard', `${k}/3`], tmp);
+      expect(r.code).toBe(0);
+      const inputs = JSON.parse(r.stdout).files.map((f: any) => f.input);
+      expect(inputs.length).toBeGreaterThan(0);
+      for (const i of inputs) expect(seen, `${i} in two slices`).not.toContain(i);
+      seen.push(...inputs);
+    }
+    expect(seen.sort()).toEqual([...whole].sort());
+    expect(whole.length).toBe(13);
+  });
+
+  it('aFileThatCannotBeReadFailsAloneWithExit2', async () => {
+    const dir = path.join(tmp, 'mixed');
+    fs.mkdirSync(dir, { recursive: true });
+    fs.copyFileSync(grid('degenerate-uv'), path.join(dir, 'a.glb'));
+    fs.writeFileSync(path.join(dir, 'b.glb'), fs.readFileSync(grid('clean')).subarray(0, 60));
+    fs.copyFileSync(grid('clean'), path.join(dir, 'c.glb'));
+    const r = await runCli(['audit', dir, '--fail-on', 'degenerate-uv', '--json', '--jobs', '2'], tmp);
+    expect(r.code).toBe(2); // a failed file wins over a tripped gate
+    const report = JSON.parse(r.stdout);
+    expect(report.files.map((f: any) => f.status)).toEqual(['ok', 'failed', 'ok']);
+    expect(report.files[0].gates).toEqual(['degenerate-uv']);
+    expect(report.files[1].error.code).toBe('bad-glb');
+    expect(r.stderr.trim().split('\n')).toEqual([expect.stringMatching(/^tanframe: .*b\.glb: /)]);
+  });
+});
+
+describe('exit status (DESIGN.md: 0 done, 1 gate tripped, 2 usage or unreadable input)', () => {
+  it('audit', async () => {
+    expect((await runCli(['audit', grid('clean'), '--fail-on', 'degenerate-uv'], tmp)).code).toBe(0);
+    expect((await runCli(['audit', grid('degenerate-uv'), '--fail-on', 'degenerate-uv'], tmp)).code).toBe(1);
+    expect((await runCli(['audit', grid('degenerate-uv')], tmp)).code).toBe(0); // findings without a gate
+    expect((await runCli(['audit', path.join(tmp, 'no-such.glb')], tmp)).code).toBe(2);
+    expect((await runCli(['audit', grid('clean'), '--fail-on', 'nonsense'], tmp)).code).toBe(2);
+    expect((await runCli(['audit', grid('clean'), '--jobs', '0'], tmp)).code).toBe(2);
+    expect((await runCli(['audit', grid('clean'), '--shard', '4/3'], tmp)).code).toBe(2);
+  });
+
+  it('bake', async () => {
+    const out = path.join(tmp, 'baked');
+    const gated = await runCli(['bake', grid('degenerate-uv'), '-o', path.join(out, 'd.glb'), '--fail-on', 'degenerate-uv'], tmp);
+    expect(gated.code).toBe(1);
+    expect(fs.existsSync(path.join(out, 'd.glb'))).toBe(true); // outputs are still written
+    expect((await runCli(['bake', grid('clean'), '-o', path.join(out, 'c.glb'), '--fail-on', 'degenerate-uv'], tmp)).code).toBe(0);
+    expect((await runCli(['bake', path.join(tmp, 'no-such.glb'), '-o', path.join(out, 'x.glb')], tmp)).code).toBe(2);
+    expect((await runCli(['bake', grid('clean')], tmp)).code).toBe(2); // no -o, --in-place or --dry-run
+  });
+});
+
+describe('human summary', () => {
+  it('worstFileFirstWithATableAndColourOnlyOnATerminalWithoutNoColor', async () => {
+    const args = ['audit', grid('clean'), grid('degenerate-uv'), grid('overlap'), '--fail-on', 'degenerate-uv', '--jobs', '1'];
+    const plain = await runCli(args, tmp);
+    expect(plain.code).toBe(1);
+    expect(plain.stdout).not.toMatch(/\u001b\[/);
+    const lines = plain.stdout.split('\n');
+    const at = (name: string) => lines.findIndex((l) => l.includes(`${name}.glb`));
+    // gated (degenerate-uv) before findings only (overlap) before clean.
+    expect(at('degenerate-uv')).toBeGreaterThan(0);
+    expect(at('degenerate-uv')).toBeLessThan(at('overlap'));
+    expect(at('overlap')).toBeLessThan(at('clean'));
+    expect(lines[at('degenerate-uv')]).toMatch(/^gated\s+.*\[degenerate-uv\]/);
+    // The table under it: a header, then the primitive row with the count in the UV degen column.
+    const header = lines[at('degenerate-uv') + 1];
+    const row = lines[at('degenerate-uv') + 2];
+    expect(header).toMatch(/primitive\s+triangles\s+vertices\s+splits\s+mirrored\s+UV degen/);
+    const col = header.indexOf('UV degen') + 'UV degen'.length;
+    expect(row.slice(0, col).trimEnd().endsWith(' 3')).toBe(true);
+    expect(lines[at('clean')]).toMatch(/^ok\s+.*no findings/);
+    expect(plain.stdout).toMatch(/total: 3 files: 3 ok, 0 failed, 1 gated/);
+
+    const tty = await runCli(args, tmp, {}, { stdoutIsTTY: true });
+    expect(tty.stdout).toMatch(/\u001b\[31;1mgated/);
+    const noColor = await runCli(args, tmp, { NO_COLOR: '1' }, { stdoutIsTTY: true });
+    expect(noColor.stdout).not.toMatch(/\u001b\[/);
+    expect(noColor.stdout).toBe(noColor.stdout.replace(/\u001b\[[0-9;]*m/g, ''));
+  });
+});
