@@ -32,7 +32,7 @@ export async function runAudit(inputs: string[], o: Record<string, any>, io: Cli
   const display = (abs: string) => path.relative(io.cwd, abs) || abs;
   const reports: FileReport[] = expanded.problems.map((p) => ({
     input: p.input, output: null, status: 'failed' as const, error: { code: 'read-failed', message: p.message },
-    gates: [], primitives: [], warnings: [], seconds: 0,
+    gates: [], primitives: [], warnings: [], notes: [], seconds: 0,
   }));
   const jobs: FileJob[] = shardOf(expanded.files, o.shard).map((f) => ({
     command: 'audit', input: f.path, output: null, format: null, dryRun: true, displayInput: display(f.path), displayOutput: null,

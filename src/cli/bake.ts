@@ -20,7 +20,7 @@ function swapExtension(p: string, format: 'glb' | 'gltf' | null): string {
 }
 
 function failed(input: string, code: string, message: string): FileReport {
-  return { input, output: null, status: 'failed', error: { code, message }, gates: [], primitives: [], warnings: [], seconds: 0 };
+  return { input, output: null, status: 'failed', error: { code, message }, gates: [], primitives: [], warnings: [], notes: [], seconds: 0 };
 }
 
 /** Registers `bake` on `program`; `done` receives the exit status. */

@@ -27,7 +27,7 @@ function failedOutcome(job: FileJob, message: string): FileOutcome {
   return {
     report: {
       input: job.displayInput, output: null, status: 'failed', error: { code: 'internal', message },
-      gates: [], primitives: [], warnings: [], seconds: 0,
+      gates: [], primitives: [], warnings: [], notes: [], seconds: 0,
     },
     pictures: [],
   };

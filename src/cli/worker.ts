@@ -32,7 +32,7 @@ if (port) {
       outcome = {
         report: {
           input: msg.job.displayInput, output: null, status: 'failed', error: toReportError(err),
-          gates: [], primitives: [], warnings: [], seconds: 0,
+          gates: [], primitives: [], warnings: [], notes: [], seconds: 0,
         },
         pictures: [],
       };

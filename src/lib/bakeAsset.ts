@@ -1,7 +1,11 @@
 /**
  * The solve step over a whole asset: for each mesh primitive, decide whether it takes part,
- * expand strips and fans, generate missing normals, compute frames, split vertices and build
- * the replacement geometry the writer stores. Pure: no file system, no console.
+ * expand strips and fans, generate missing normals, compute frames (in the normal texture's
+ * transformed UV space when its KHR_texture_transform rotates or mirrors the map), split
+ * vertices and build the replacement geometry the writer stores: TANGENT in the requested
+ * component type, morph targets split like the base and given TANGENT deltas where they carry
+ * NORMAL deltas. Primitives that share their accessors (and UV set, transform and options)
+ * are solved once and share one replacement. Pure: no file system, no console.
  */
 import type { Asset, AttributeData, PrimitiveData, PrimitiveReplacement } from '../mesh/asset.js';
 import { FLOAT } from '../mesh/asset.js';
@@ -15,7 +19,10 @@ import type { UvPicture } from '../report/uvPicture.js';
 import { diagnosePrimitive } from './diagnosePrimitive.js';
 import { buildUvPicture, hasFindings } from './pictures.js';
 import { tangentNeedOf } from './material.js';
+import { morphTangentDelta, type MorphBase } from './morphTangents.js';
 import type { ProcessOptions } from './options.js';
+import { encodeTangents } from './tangentEncoding.js';
+import { applyUvTransform, changesFrames, type UvTransform } from '../mesh/uvTransform.js';
 
 /** Result of solving every primitive of an asset. */
 export interface AssetSolve {
@@ -69,6 +76,30 @@ function floatAttribute(array: Float32Array, itemSize: number): AttributeData {
 }
 
 /**
+ * The texture transform the frame solve applies: the normal texture's KHR_texture_transform
+ * when it rotates or mirrors the map and the solve uses that texture's own UV set (a transform
+ * made for one set says nothing about another). Offsets and positive scales leave frames as they are.
+ */
+function solveTransform(need: { texCoord: number; transform: UvTransform | null }, uvSet: number): UvTransform | null {
+  return uvSet === need.texCoord && changesFrames(need.transform) ? need.transform : null;
+}
+
+/** `uvs` in the transformed space (a new array), or `uvs` itself without a transform. */
+function transformedUvs(uvs: Float32Array, t: UvTransform | null): Float32Array {
+  if (!t) return uvs;
+  const out = new Float32Array(uvs.length);
+  applyUvTransform(out, uvs, uvs.length / 2, t);
+  return out;
+}
+
+/** A target attribute as floats at the solve's input vertices (null when absent). */
+function targetFloats(a: AttributeData | undefined, k: number, genSource: Uint32Array | null): Float32Array | null {
+  if (!a) return null;
+  const f = toFloat32(a);
+  return genSource ? gatherFloats(f, k, genSource) : f;
+}
+
+/**
  * Solves one primitive. Returns its report, when its geometry changes the replacement, and
  * with `pictures` true and findings to show (hasFindings) its UV picture data (else null).
  * Degenerate geometry never throws: it is counted in the report.
@@ -101,6 +132,7 @@ export function solvePrimitive(
   report.triangles = triangleCount;
   if (triangleCount === 0) return skip('empty');
 
+  const transform = solveTransform(need, uvSet);
   let positions = toFloat32(pos);
   let uvs = toFloat32(uvAttr);
   let normals: Float32Array;
@@ -121,7 +153,7 @@ export function solvePrimitive(
   }
 
   const frames = computeFrames(
-    { positions, normals, uvs, indices, faces: p.faces },
+    { positions, normals, uvs: transformedUvs(uvs, transform), indices, faces: p.faces },
     { method: options.method, weight: options.weight, uvOrigin: 'top-left' },
   );
   const source = genSource ? composeSource(genSource, frames.sourceVertex) : frames.sourceVertex;
@@ -175,10 +207,24 @@ export function solvePrimitive(
     attributes[name] = gatherAttribute(p.attributes[name], source);
   }
   if (report.normalsGenerated) attributes.NORMAL = floatAttribute(gatherFloats(normals, 3, frames.sourceVertex), 3);
-  attributes.TANGENT = floatAttribute(frames.tangents, 4);
+  const tangent = encodeTangents(frames.tangents, options.tangentType);
+  attributes.TANGENT = tangent;
+  // Morph targets: split like the base; TANGENT deltas from the morphed shapes where the target
+  // moves normals; a target without NORMAL deltas gets none (a TANGENT delta it had described
+  // the difference from tangents this bake replaced, so it is dropped).
+  const base: MorphBase = {
+    positions, normals, uvs, indices, faces: p.faces,
+    outIndices: frames.indices, outTangents: toFloat32(tangent), outCount: source.length,
+  };
   const targets = p.targets.map((target) => {
     const out: Record<string, AttributeData> = {};
-    for (const name of Object.keys(target).sort()) out[name] = gatherAttribute(target[name], source);
+    for (const name of Object.keys(target).sort()) if (name !== 'TANGENT') out[name] = gatherAttribute(target[name], source);
+    const delta = morphTangentDelta(base, {
+      positions: targetFloats(target.POSITION, 3, genSource),
+      normals: targetFloats(target.NORMAL, 3, genSource),
+      uvs: targetFloats(target[`TEXCOORD_${uvSet}`], 2, genSource),
+    }, { method: options.method, weight: options.weight, transform });
+    if (delta) out.TANGENT = floatAttribute(delta, 3);
     return out;
   });
   report.action = 'baked';
@@ -194,13 +240,52 @@ export function solveAsset(asset: Asset, options: ProcessOptions, pictures = fal
   const primitives: PrimitiveReport[] = [];
   const replacements = new Map<number, PrimitiveReplacement>();
   const shown: UvPicture[] = [];
+  const solved = new Map<string, { report: PrimitiveReport; replacement: PrimitiveReplacement | null }>();
   for (let i = 0; i < asset.primitives.length; i++) {
-    const r = solvePrimitive(asset, asset.primitives[i], options, pictures);
+    const p = asset.primitives[i];
+    const key = shareKey(asset, p, options);
+    const earlier = key === null ? undefined : solved.get(key);
+    if (earlier && !pictures) {
+      primitives.push(sharedReport(earlier.report, p, tangentNeedOf(asset.json, p.material).needsTangents));
+      if (earlier.replacement) replacements.set(i, earlier.replacement);
+      continue;
+    }
+    const r = solvePrimitive(asset, p, options, pictures);
     primitives.push(r.report);
-    if (r.replacement) replacements.set(i, r.replacement);
+    const replacement = earlier ? earlier.replacement : r.replacement;
+    if (replacement) replacements.set(i, replacement);
     if (r.picture) shown.push(r.picture);
+    if (key !== null && !earlier) solved.set(key, { report: r.report, replacement: r.replacement });
   }
   return { primitives, replacements, pictures: shown };
+}
+
+/**
+ * What makes two glTF primitives bake identically: the same accessors (attributes, morph
+ * targets, indices; the same Draco stream), mode, UV set, texture transform and whether they
+ * take part. Null for OBJ primitives (their geometry is not in accessors). Options are the
+ * same for the whole asset.
+ */
+function shareKey(asset: Asset, p: PrimitiveData, options: ProcessOptions): string | null {
+  if (asset.container === 'obj') return null;
+  const jp = asset.json.meshes?.[p.mesh]?.primitives?.[p.primitive];
+  if (!jp || typeof jp !== 'object') return null;
+  const need = tangentNeedOf(asset.json, p.material);
+  const uvSet = options.uv ?? need.texCoord;
+  const takesPart = need.needsTangents || options.allPrimitives;
+  return JSON.stringify([jp.attributes, jp.targets ?? [], jp.indices ?? null, p.mode, jp.extensions?.KHR_draco_mesh_compression ?? null,
+    uvSet, solveTransform(need, uvSet), takesPart]);
+}
+
+/** The report of a primitive that shares an earlier one's solve, under its own identity. */
+function sharedReport(r: PrimitiveReport, p: PrimitiveData, normalMapped: boolean): PrimitiveReport {
+  const copy = structuredClone(r);
+  copy.mesh = p.mesh;
+  copy.meshName = p.meshName;
+  copy.primitive = p.primitive;
+  copy.material = p.material;
+  copy.normalMapped = normalMapped;
+  return copy;
 }
 
 function gatherFloats(src: Float32Array, k: number, source: Uint32Array): Float32Array {

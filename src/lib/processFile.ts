@@ -88,12 +88,16 @@ export async function processFileOutcome(job: FileJob, options: ProcessOptions):
     gates: [],
     primitives: [],
     warnings: [],
+    notes: [],
     seconds: 0,
   };
   let pictures: UvPicture[] = [];
   try {
     const asset = await readAsset(job.input, { maxTriangles: options.maxTriangles });
     report.warnings.push(...asset.warnings);
+    for (const ext of asset.decompressed ?? []) {
+      report.notes.push(job.command === 'bake' ? `decompressed ${ext} (written uncompressed)` : `decompressed ${ext}`);
+    }
     const solved = solveAsset(asset, options, !!job.pictures);
     report.primitives = solved.primitives;
     pictures = solved.pictures;
@@ -110,6 +114,7 @@ export async function processFileOutcome(job: FileJob, options: ProcessOptions):
     report.error = toReportError(err);
     report.primitives = [];
     report.gates = [];
+    report.notes = [];
     pictures = [];
   }
   report.seconds = (performance.now() - started) / 1000;

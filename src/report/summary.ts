@@ -128,6 +128,7 @@ function fileBlock(f: FileReport, style: SummaryStyle): string[] {
   const skipped = skippedLine(f);
   if (skipped) lines.push(`         ${skipped}`);
   for (const w of f.warnings) lines.push(`         warning: ${w}`);
+  for (const note of f.notes ?? []) lines.push(`         note: ${note}`);
   return lines;
 }
 
@@ -135,7 +136,8 @@ function cleanLine(f: FileReport, style: SummaryStyle): string {
   const done = f.primitives.filter((p) => p.action !== 'skipped');
   const tri = done.reduce((a, p) => a + p.triangles, 0);
   const target = f.output ? ` -> ${f.output}` : '';
-  const extra = f.warnings.length ? `, ${f.warnings.length} warning${f.warnings.length === 1 ? '' : 's'}` : '';
+  const notes = (f.notes ?? []).map((note) => `, ${note}`).join('');
+  const extra = `${f.warnings.length ? `, ${f.warnings.length} warning${f.warnings.length === 1 ? '' : 's'}` : ''}${notes}`;
   return `${paint(style.color, '32', 'ok       ')}${f.input}${target}  (${done.length} of ${f.primitives.length} primitives, ${n(tri)} triangles, no findings${extra})`;
 }
 

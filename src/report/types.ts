@@ -68,6 +68,11 @@ export interface FileReport {
   gates: string[];
   primitives: PrimitiveReport[];
   warnings: string[];
+  /**
+   * What the run did to the file beyond baking, one line each: e.g. "decompressed
+   * KHR_draco_mesh_compression" (the output is written uncompressed).
+   */
+  notes: string[];
   /** Wall time spent on this file (kept apart so the rest of the report is reproducible). */
   seconds: number;
 }
