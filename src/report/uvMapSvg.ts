@@ -120,7 +120,7 @@ export function renderUvMapSvg(p: UvPicture, options: UvMapSvgOptions = {}): str
   if (drawn + p.nonFinite < p.triangles) {
     notes.push(`drawing capped at ${n(MAX_PICTURE_TRIANGLES)} triangles: flagged ones first, then an even sample of the rest`);
   }
-  if (p.nonFinite > 0) notes.push(`${n(p.nonFinite)} triangles with NaN or infinite UVs cannot be drawn`);
+  if (p.nonFinite > 0) notes.push(`${n(p.nonFinite)} triangle${p.nonFinite === 1 ? '' : 's'} with NaN or infinite UVs cannot be drawn`);
   if (view.clipped) notes.push(`UVs beyond ${-UV_VIEW_LIMIT}..${1 + UV_VIEW_LIMIT} lie off the picture`);
 
   const legendTop = top + drawH + 14;
