@@ -6,6 +6,7 @@ import { Command, CommanderError } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
 import { registerAudit } from './audit.js';
 import { registerBake } from './bake.js';
+import { registerConvertMap } from './convertMap.js';
 import { toolVersion, type CliIo } from './shared.js';
 
 /** The real process streams and environment. */
@@ -32,6 +33,7 @@ export function buildProgram(io: CliIo, done: (code: number) => void): Command {
     .configureOutput({ writeOut: io.stdout, writeErr: io.stderr });
   registerBake(program, io, done);
   registerAudit(program, io, done);
+  registerConvertMap(program, io, done);
   for (const c of program.commands) c.exitOverride().configureOutput({ writeOut: io.stdout, writeErr: io.stderr });
   return program;
 }

@@ -24,6 +24,7 @@
  */
 import { TanframeError, assert } from '../mesh/errors.js';
 import { TEXEL_FRAME_MIN_DET, TEXEL_ZERO_LENGTH } from '../mesh/tolerances.js';
+import type { UvTransform } from '../mesh/uvTransform.js';
 import type { PngImage } from './png.js';
 import { RASTER_DEGENERATE, RASTER_OK, createSpanBuffer, rasterizeTriangle, type SpanBuffer } from './rasterize.js';
 
@@ -51,11 +52,8 @@ export interface MapPart {
   decode: FrameSet | null;
   /** Frames that encode a tangent-space output (needed when to = 'tangent'). */
   encode: FrameSet | null;
-  /**
-   * Optional affine UV transform [a, b, c, d, e, f]: u' = a u + b v + c, v' = d u + e v + f
-   * (KHR_texture_transform), applied before rasterising.
-   */
-  uvTransform?: number[] | null;
+  /** The map's KHR_texture_transform, applied to the UVs before rasterising (null: none). */
+  uvTransform?: UvTransform | null;
 }
 
 /** How to convert. */
@@ -202,7 +200,7 @@ export function convertNormalMap(
       const end = Math.min(tri, start + every);
       convertTriangles(
         out, outCh, outMax, image.data, inCh, image.depth === 16 ? 65535 : 255, state, width, height, spans, counters,
-        geo.uvs, geo.indices, part.decode, part.encode, part.uvTransform ?? null,
+        geo.uvs, geo.indices, part.decode, part.encode, affineOf(part.uvTransform ?? null),
         useDecode, useEncode, options.inGreen === 'down' ? -1 : 1, options.outGreen === 'down' ? -1 : 1, start, end,
       );
       done += end - start;
@@ -216,6 +214,16 @@ export function convertNormalMap(
   stats.fallbackTexels = counters[4];
   stats.padded = padRings(out, outCh, outMax, state, width, height, options.padding);
   return { image: { width, height, channels: outCh as 3 | 4, depth: outDepth, data: out }, stats };
+}
+
+/**
+ * KHR_texture_transform as an affine map [a, b, c, d, e, f]: u' = a u + b v + c,
+ * v' = d u + e v + f (see src/mesh/uvTransform.ts for the source and the formula).
+ */
+function affineOf(t: UvTransform | null): number[] | null {
+  if (!t) return null;
+  const c = Math.cos(t.rotation), s = Math.sin(t.rotation);
+  return [c * t.scale[0], s * t.scale[1], t.offset[0], -s * t.scale[0], c * t.scale[1], t.offset[1]];
 }
 
 /**

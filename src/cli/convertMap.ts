@@ -1,0 +1,162 @@
+/**
+ * `tanframe convert-map`: converts a normal-map image between tangent space and object space,
+ * between two methods' tangent frames, and between green conventions, using the mesh's own
+ * frames (the same solve as `bake`). PNG in and out, written atomically.
+ */
+import * as path from 'node:path';
+import { Command, InvalidArgumentError, Option } from 'commander';
+import { TanframeError } from '../mesh/errors.js';
+import type { FrameMethod } from '../mesh/types.js';
+import { readInputBytes, writeFilesAtomic } from '../io/files.js';
+import { convertNormalMap, flipGreen, MAX_PADDING, type GreenDirection, type MapSpace } from '../imaging/convert.js';
+import { decodePng, encodePng, type PngImage } from '../imaging/png.js';
+import { mapPartsForAsset, type PrimitiveRef } from '../lib/mapFrames.js';
+import { readAsset } from '../lib/processFile.js';
+import { progressWanted } from './progress.js';
+import type { CliIo } from './shared.js';
+
+/** Maps at least this many texels (2048 x 2048) show progress on a terminal. */
+export const PROGRESS_MIN_TEXELS = 2048 * 2048;
+
+/** Least time between two progress redraws, in ms. */
+const REDRAW_MS = 100;
+
+function paddingArg(value: string): number {
+  if (!/^\d+$/.test(value) || Number(value) > MAX_PADDING) throw new InvalidArgumentError(`expected an integer in [0, ${MAX_PADDING}]`);
+  return Number(value);
+}
+
+function uvArg(value: string): number {
+  if (!/^\d+$/.test(value)) throw new InvalidArgumentError('expected an integer >= 0');
+  return Number(value);
+}
+
+function primitiveArg(value: string, previous: PrimitiveRef[] | undefined): PrimitiveRef[] {
+  const list = previous ?? [];
+  for (const item of value.split(',').map((s) => s.trim()).filter(Boolean)) {
+    const m = /^(.+)\/(\d+)$/.exec(item);
+    if (!m) throw new InvalidArgumentError(`expected <mesh>/<primitive> (mesh index or name, primitive index), got '${item}'`);
+    list.push({ mesh: m[1], primitive: Number(m[2]) });
+  }
+  return list;
+}
+
+/** Registers `convert-map` on `program`; `done` receives the exit status. */
+export function registerConvertMap(program: Command, io: CliIo, done: (code: number) => void): void {
+  program
+    .command('convert-map')
+    .description('convert a normal map between tangent and object space, tangent methods and green conventions')
+    .option('--mesh <file>', 'the mesh the map belongs to (.glb .gltf .obj); not needed for a green flip')
+    .requiredOption('--in <png>', 'input normal map (PNG, 8 or 16 bit)')
+    .requiredOption('--out <png>', 'output normal map (PNG)')
+    .addOption(new Option('--from <space>', 'space of the input map').choices(['tangent', 'object']).makeOptionMandatory())
+    .addOption(new Option('--to <space>', 'space of the output map').choices(['tangent', 'object']).makeOptionMandatory())
+    .addOption(new Option('--from-method <method>', 'frames the tangent-space input was made with (default mikktspace)').choices(['mikktspace', 'lengyel']))
+    .addOption(new Option('--to-method <method>', 'frames of the tangent-space output (default mikktspace)').choices(['mikktspace', 'lengyel']))
+    .addOption(new Option('--in-green <dir>', 'input green channel: up (+Y, glTF / OpenGL) or down (-Y)').choices(['up', 'down']).default('up'))
+    .addOption(new Option('--out-green <dir>', 'output green channel: up (+Y, glTF / OpenGL) or down (-Y)').choices(['up', 'down']).default('up'))
+    .option('--uv <n>', 'TEXCOORD set (default: the one the normal texture samples, else 0)', uvArg)
+    .option('--mesh-primitive <mesh/prim>', 'convert over this primitive only (repeatable; mesh index or name); default: every primitive whose material uses this image, else all', primitiveArg)
+    .option('--padding <px>', 'edge dilation into empty texels, in texels', paddingArg, 8)
+    .addOption(new Option('--out-depth <bits>', 'output bits per sample (default: the input\'s)').choices(['8', '16']))
+    .option('--quiet', 'print nothing but errors', false)
+    .option('--no-progress', 'never show progress (shown only on a terminal, for large maps)')
+    .option('--debug', 'show stack traces of internal errors', false)
+    .action(async (o: Record<string, any>) => {
+      done(await runConvertMap(o, io));
+    });
+}
+
+/** Re-throws a TanframeError with the file it concerns in front of its message. */
+function inFile<T>(file: string, fn: () => T): T {
+  try {
+    return fn();
+  } catch (err) {
+    if (err instanceof TanframeError) throw new TanframeError(err.code, `${file}: ${err.message}`);
+    throw err;
+  }
+}
+
+async function inFileAsync<T>(file: string, fn: () => Promise<T>): Promise<T> {
+  try {
+    return await fn();
+  } catch (err) {
+    if (err instanceof TanframeError) throw new TanframeError(err.code, `${file}: ${err.message}`);
+    throw err;
+  }
+}
+
+const n = (x: number) => x.toLocaleString('en-US');
+
+/** The `convert-map` command's body, callable in-process. Returns the exit status. */
+export async function runConvertMap(o: Record<string, any>, io: CliIo): Promise<number> {
+  const started = performance.now();
+  const from = o.from as MapSpace, to = o.to as MapSpace;
+  if (o.fromMethod && from !== 'tangent') throw new TanframeError('usage', '--from-method applies to a tangent-space input only (--from tangent)');
+  if (o.toMethod && to !== 'tangent') throw new TanframeError('usage', '--to-method applies to a tangent-space output only (--to tangent)');
+  const fromMethod = (o.fromMethod ?? 'mikktspace') as FrameMethod;
+  const toMethod = (o.toMethod ?? 'mikktspace') as FrameMethod;
+  const inGreen = o.inGreen as GreenDirection, outGreen = o.outGreen as GreenDirection;
+  const outDepth = o.outDepth ? (Number(o.outDepth) as 8 | 16) : undefined;
+  const greenOnly = from === to && (from === 'object' || fromMethod === toMethod);
+  if (greenOnly && inGreen === outGreen && outDepth === undefined) {
+    throw new TanframeError('usage', 'nothing to convert: same space, method and green convention (change --to, a method, --out-green or --out-depth)');
+  }
+  if (!greenOnly && !o.mesh) throw new TanframeError('usage', '--mesh is required to convert between spaces or tangent methods');
+  const inAbs = path.resolve(io.cwd, o.in), outAbs = path.resolve(io.cwd, o.out);
+  if (path.extname(outAbs).toLowerCase() !== '.png') {
+    throw new TanframeError('unsupported-format', `${o.out}: convert-map writes PNG only (give the output a .png name)`);
+  }
+  if (inAbs === outAbs) throw new TanframeError('usage', `${o.out}: the output would overwrite the input map; write it elsewhere`);
+
+  const image: PngImage = await inFileAsync(o.in, async () => decodePng(await readInputBytes(inAbs)));
+  const texels = image.width * image.height;
+  let result: PngImage;
+  let summary: string;
+  if (greenOnly) {
+    result = inFile(o.in, () => inGreen === outGreen ? flipGreen(flipGreen(image), outDepth) : flipGreen(image, outDepth));
+    const what = inGreen === outGreen ? `depth ${image.depth} -> ${result.depth} bits` : `green flipped (${inGreen} -> ${outGreen})`;
+    summary = `${what}, ${n(texels)} texels`;
+  } else {
+    const meshAbs = path.resolve(io.cwd, o.mesh);
+    const asset = await inFileAsync(o.mesh, () => readAsset(meshAbs));
+    const selection = inFile(o.mesh, () => mapPartsForAsset(asset, {
+      imageName: path.basename(inAbs), from, to, fromMethod, toMethod, uv: o.uv ?? null, primitives: o.meshPrimitive ?? null,
+    }));
+    if (!o.quiet) for (const s of selection.skipped) io.stderr(`tanframe: ${o.mesh}: skipped ${s}\n`);
+    const showProgress = texels >= PROGRESS_MIN_TEXELS && progressWanted(!!io.stderrIsTTY, io.env, o);
+    let last = -Infinity, drawn = false;
+    const onProgress = showProgress
+      ? (doneTris: number, total: number) => {
+          const t = performance.now();
+          if (doneTris < total && t - last < REDRAW_MS) return;
+          last = t;
+          drawn = true;
+          io.stderr(`\r\u001b[2Ktanframe convert-map: ${Math.floor((100 * doneTris) / total)}% of ${n(total)} triangles`);
+        }
+      : undefined;
+    let converted: ReturnType<typeof convertNormalMap>;
+    try {
+      converted = inFile(o.in, () => convertNormalMap(image, selection.parts, {
+        from, to, inGreen, outGreen, padding: o.padding ?? 8, outDepth,
+      }, onProgress));
+    } finally {
+      if (drawn) io.stderr('\r\u001b[2K');
+    }
+    result = converted.image;
+    const s = converted.stats;
+    const prims = selection.primitives.length;
+    const by = selection.selectedBy === 'image' ? 'using this image' : selection.selectedBy === 'all' ? 'all; none names this image' : 'as given';
+    const spaceIn = from === 'tangent' ? `tangent/${fromMethod}` : 'object';
+    const spaceOut = to === 'tangent' ? `tangent/${toMethod}` : 'object';
+    summary = `${spaceIn} -> ${spaceOut}, ${prims} primitive${prims === 1 ? '' : 's'} (${by}), ${n(s.triangles)} triangles, ` +
+      `${n(s.covered)} of ${n(texels)} texels covered, ${n(s.conflicts)} conflict${s.conflicts === 1 ? '' : 's'} (first kept), ${n(s.padded)} padded` +
+      (s.fallbackTexels > 0 ? `, ${n(s.fallbackTexels)} fallback` : '') +
+      (s.skippedTriangles > 0 ? `, ${n(s.skippedTriangles)} triangles skipped (UVs not finite or too large)` : '');
+  }
+  const bytes = encodePng(result);
+  await inFileAsync(o.out, () => writeFilesAtomic([{ path: outAbs, bytes }]));
+  const seconds = (performance.now() - started) / 1000;
+  if (!o.quiet) io.stdout(`convert-map: ${o.in} -> ${o.out}: ${summary}, ${seconds.toFixed(2)} s\n`);
+  return 0;
+}
