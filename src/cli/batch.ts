@@ -9,11 +9,16 @@ import type { FileReport } from '../report/types.js';
 import { PictureOutputs } from './outputs.js';
 import { ProgressBar, progressWanted } from './progress.js';
 import { runFiles } from './runFiles.js';
-import type { CliIo } from './shared.js';
+import { DEFAULT_FILE_TIMEOUT_S, type CliIo } from './shared.js';
 
 /** Worker threads for `--jobs` (default: the cores this process may use). */
 export function threadCount(o: Record<string, any>): number {
   return o.jobs ?? os.availableParallelism();
+}
+
+/** Milliseconds one file may take in a batch (--file-timeout; 0: no limit). */
+export function fileTimeoutMs(o: Record<string, any>): number {
+  return Math.round((o.fileTimeout ?? DEFAULT_FILE_TIMEOUT_S) * 1000);
 }
 
 /**
@@ -33,6 +38,7 @@ export async function runBatch(
   try {
     reports = await runFiles(withPictures, options, {
       threads: threadCount(o),
+      fileTimeoutMs: fileTimeoutMs(o),
       workerScript: io.workerScript,
       onPictures: pictures.wanted ? (_i, list) => pictures.take(list) : undefined,
       onProgress: bar ? (done, _total, input) => bar.update(done, input) : undefined,

@@ -1,12 +1,15 @@
 /**
  * A small pool of worker threads (node:worker_threads) over file jobs. Ours rather than a
  * library: the batch needs only "one job per idle thread, answers by id, a crashed thread
- * fails its one file and is replaced", which is shorter to write than to adapt.
+ * fails its one file and is replaced", which is shorter to write than to adapt. A file that
+ * takes longer than the file timeout has its thread terminated and fails with 'timeout'.
  */
 import * as fs from 'node:fs';
+import * as path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import { TanframeError } from '../mesh/errors.js';
+import { removeThreadTemps } from '../io/files.js';
 import type { FileJob, FileOutcome } from '../lib/processFile.js';
 import type { ProcessOptions } from '../lib/options.js';
 import type { WorkerAnswer, WorkerRequest } from './worker.js';
@@ -33,11 +36,23 @@ function failedOutcome(job: FileJob, message: string): FileOutcome {
   };
 }
 
+/** The outcome of a job stopped by the file timeout: failed with code 'timeout'. */
+function timeoutOutcome(job: FileJob, timeoutMs: number): FileOutcome {
+  const message = `stopped after ${timeoutMs / 1000} s (--file-timeout)`;
+  const outcome = failedOutcome(job, message);
+  outcome.report.error = { code: 'timeout', message };
+  outcome.report.seconds = timeoutMs / 1000;
+  return outcome;
+}
+
 /**
  * Runs `jobs` on min(threads, jobs.length) worker threads started from `script`, one job per
  * thread at a time. `onOutcome(i, outcome)` is called once per job, in completion order. A
  * thread that dies (uncaught error, out of memory) fails the job it held with code 'internal'
- * and is replaced; the batch goes on. Resolves when every job has its outcome.
+ * and is replaced; the batch goes on. With `fileTimeoutMs` > 0, a job still running that long
+ * after it was handed out has its thread terminated (the temporary files that thread left in
+ * the job's output folder are removed) and fails with code 'timeout'; a new thread takes over.
+ * Resolves when every job has its outcome.
  * Throws a TanframeError when the script is missing or a thread dies before it is ready
  * (its first message, { ready: true }, says its modules loaded).
  */
@@ -47,6 +62,7 @@ export async function runInWorkers(
   threads: number,
   script: URL,
   onOutcome: (index: number, outcome: FileOutcome) => void,
+  fileTimeoutMs = 0,
 ): Promise<void> {
   if (jobs.length === 0) return;
   if (script.protocol === 'file:' && !fs.existsSync(fileURLToPath(script))) {
@@ -82,6 +98,24 @@ export async function runInWorkers(
       live.add(worker);
       let current = -1;
       let ready = false;
+      let timer: NodeJS.Timeout | null = null;
+      const clearTimer = () => {
+        if (timer) clearTimeout(timer);
+        timer = null;
+      };
+      const timedOut = () => {
+        timer = null;
+        if (stopped || !live.has(worker) || current < 0) return;
+        const lost = current;
+        current = -1;
+        live.delete(worker);
+        const output = jobs[lost].output;
+        const threadId = worker.threadId;
+        // Once the thread has stopped, remove what it was writing (best effort).
+        void worker.terminate().then(() => (output ? removeThreadTemps(path.dirname(output), threadId) : undefined)).catch(() => undefined);
+        deliver(lost, timeoutOutcome(jobs[lost], fileTimeoutMs));
+        if (!stopped && next < jobs.length) start();
+      };
       const feed = () => {
         if (stopped) return;
         if (next >= jobs.length) {
@@ -93,6 +127,8 @@ export async function runInWorkers(
         current = next++;
         const request: WorkerRequest = { id: current, job: jobs[current], options };
         worker.postMessage(request);
+        // setTimeout cannot wait longer than 2^31 - 1 ms (about 24 days): beyond that, no limit.
+        if (fileTimeoutMs > 0 && fileTimeoutMs <= 0x7fffffff) timer = setTimeout(timedOut, fileTimeoutMs);
       };
       worker.on('message', (answer: WorkerAnswer | { ready: true }) => {
         if ('ready' in answer) {
@@ -101,11 +137,13 @@ export async function runInWorkers(
           return;
         }
         if (answer.id !== current) return;
+        clearTimer();
         current = -1;
         deliver(answer.id, answer.outcome);
         feed();
       });
       const died = (why: string) => {
+        clearTimer();
         if (stopped || !live.has(worker)) return;
         live.delete(worker);
         if (!ready) {

@@ -10,8 +10,13 @@ import { defaultWorkerScript, runInWorkers } from './pool.js';
 
 /** How to run a batch. */
 export interface RunSettings {
-  /** Worker threads; 1 runs every file on this thread, one after the other (no worker). */
+  /**
+   * Worker threads; 1 runs every file on this thread, one after the other (no worker), unless
+   * a file timeout needs a thread it can stop.
+   */
   threads: number;
+  /** Milliseconds a file may take in a batch before it fails with 'timeout'; 0 or absent: no limit. */
+  fileTimeoutMs?: number;
   /** The worker script (default: defaultWorkerScript()). */
   workerScript?: URL;
   /** Receives each file's pictures, in job order (whatever order the files finish in). */
@@ -21,8 +26,9 @@ export interface RunSettings {
 }
 
 /**
- * Processes `jobs` and returns their reports in the order of `jobs`. With one thread, or one
- * job, files run here one after the other; otherwise on min(threads, jobs) worker threads.
+ * Processes `jobs` and returns their reports in the order of `jobs`. One job runs here; so do
+ * several with one thread and no file timeout; otherwise they run on min(threads, jobs)
+ * worker threads (at least one, so a file past the timeout can be stopped).
  * A number as `settings` is the thread count.
  */
 export async function runFiles(jobs: FileJob[], options: ProcessOptions, settings: RunSettings | number): Promise<FileReport[]> {
@@ -45,10 +51,11 @@ export async function runFiles(jobs: FileJob[], options: ProcessOptions, setting
       released++;
     }
   };
-  if (s.threads <= 1 || jobs.length <= 1) {
+  const timeoutMs = s.fileTimeoutMs ?? 0;
+  if (jobs.length <= 1 || (s.threads <= 1 && timeoutMs <= 0)) {
     for (let i = 0; i < jobs.length; i++) take(i, await processFileOutcome(jobs[i], options));
   } else {
-    await runInWorkers(jobs, options, s.threads, s.workerScript ?? defaultWorkerScript(), take);
+    await runInWorkers(jobs, options, Math.max(1, s.threads), s.workerScript ?? defaultWorkerScript(), take, timeoutMs);
   }
   return reports;
 }

@@ -2,10 +2,17 @@
  * Reading input files and writing outputs atomically.
  * Based on: POSIX rename(2) atomicity within one file system (write a temporary file in the
  * destination folder, fsync it, then rename it over the destination). Common practice.
+ *
+ * Temporary files are named `.<name>.<host>.<pid>-<thread>.<random>.tmp` beside their
+ * destination. A killed process can leave one behind: it is never a complete output, never
+ * read as an input (wrong extension) and removed by the next write into that folder once no
+ * process with its pid runs on this host (removeStaleTemps).
  */
 import { randomBytes } from 'node:crypto';
 import * as fsp from 'node:fs/promises';
+import * as os from 'node:os';
 import * as path from 'node:path';
+import { threadId } from 'node:worker_threads';
 import { TanframeError } from '../mesh/errors.js';
 
 /** One output file: where it goes and its complete content. */
@@ -58,11 +65,79 @@ export async function readInputBytes(filePath: string): Promise<Uint8Array> {
   return new Uint8Array(buf.buffer, buf.byteOffset, buf.byteLength);
 }
 
-/** Temporary name beside `target`: `.<name>.<pid>.<random>.tmp`. */
+/** This host's name as written in temporary file names: letters, digits and '-' only. */
+export const TEMP_HOST = os.hostname().replace(/[^A-Za-z0-9-]/g, '-').slice(0, 40) || 'host';
+
+/** A temporary file of ours: `.<name>.<host>.<pid>-<thread>.<12 hex digits>.tmp`. */
+const TEMP_NAME = /^\..+\.([A-Za-z0-9-]+)\.(\d+)-(\d+)\.[0-9a-f]{12}\.tmp$/;
+
+/** Temporary name beside `target`: `.<name>.<host>.<pid>-<thread>.<random>.tmp`. */
 function tempPathFor(target: string): string {
   const dir = path.dirname(target);
-  return path.join(dir, `.${path.basename(target)}.${process.pid}.${randomBytes(6).toString('hex')}.tmp`);
+  return path.join(dir, `.${path.basename(target)}.${TEMP_HOST}.${process.pid}-${threadId}.${randomBytes(6).toString('hex')}.tmp`);
 }
+
+/** True when a process with this pid runs (EPERM: it runs under another user). */
+function processRuns(pid: number): boolean {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (err) {
+    return (err as NodeJS.ErrnoException).code === 'EPERM';
+  }
+}
+
+/**
+ * Removes the temporary files of ours in `dir` that a process on this host left behind when
+ * it was killed: names matching our pattern, with this host's name and the pid of no running
+ * process. Never touches other files, other hosts' temporaries (a shared network folder) or a
+ * running process's. Returns the names removed; errors are ignored (cleanup is best effort).
+ */
+export async function removeStaleTemps(dir: string): Promise<string[]> {
+  let names: string[];
+  try {
+    names = await fsp.readdir(dir);
+  } catch {
+    return [];
+  }
+  const removed: string[] = [];
+  for (const name of names) {
+    const m = TEMP_NAME.exec(name);
+    if (!m || m[1] !== TEMP_HOST) continue;
+    const pid = Number(m[2]);
+    if (pid === process.pid || processRuns(pid)) continue;
+    try {
+      await fsp.rm(path.join(dir, name), { force: true });
+      removed.push(name);
+    } catch {
+      // best effort
+    }
+  }
+  return removed;
+}
+
+/**
+ * Removes the temporary files in `dir` written by thread `thread` of this process (after the
+ * batch terminated that worker thread on a timeout). Returns the names removed.
+ */
+export async function removeThreadTemps(dir: string, thread: number): Promise<string[]> {
+  let names: string[];
+  try {
+    names = await fsp.readdir(dir);
+  } catch {
+    return [];
+  }
+  const removed: string[] = [];
+  for (const name of names) {
+    const m = TEMP_NAME.exec(name);
+    if (!m || m[1] !== TEMP_HOST || Number(m[2]) !== process.pid || Number(m[3]) !== thread) continue;
+    await fsp.rm(path.join(dir, name), { force: true }).then(() => removed.push(name), () => undefined);
+  }
+  return removed;
+}
+
+/** Folders this thread has already cleaned of stale temporary files. */
+const cleanedFolders = new Set<string>();
 
 /** Writes `bytes` to a new file at `tmp` (must not exist) and flushes it to disk. */
 async function writeAndSync(tmp: string, bytes: Uint8Array): Promise<void> {
@@ -97,7 +172,8 @@ async function removeQuietly(paths: string[]): Promise<void> {
 /**
  * Writes every file atomically: creates the folders (mkdir -p), writes each file to a
  * temporary file in its destination folder, fsyncs it, and only when all are written
- * renames each into place (after checking no destination is a folder). On any failure the temporary files are removed and
+ * renames each into place (after checking no destination is a folder). The first write into
+ * a folder also removes stale temporary files there (removeStaleTemps). On any failure the temporary files are removed and
  * TanframeError 'write-failed' names the file and the reason. A destination is never
  * left half-written; if a rename fails after earlier renames succeeded, those earlier
  * files stay replaced (renames of several files cannot be one atomic step).
@@ -108,7 +184,12 @@ export async function writeFilesAtomic(files: OutputFile[]): Promise<void> {
   try {
     for (const file of files) {
       current = file.path;
-      await fsp.mkdir(path.dirname(path.resolve(file.path)), { recursive: true });
+      const dir = path.dirname(path.resolve(file.path));
+      await fsp.mkdir(dir, { recursive: true });
+      if (!cleanedFolders.has(dir)) {
+        cleanedFolders.add(dir);
+        await removeStaleTemps(dir);
+      }
       const tmp = tempPathFor(path.resolve(file.path));
       temps.push(tmp);
       await writeAndSync(tmp, file.bytes);

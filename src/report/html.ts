@@ -39,7 +39,7 @@ h2 { font-size: 16px; margin: 0; word-break: break-all; }
 .verdict { padding: 10px 14px; border-radius: 6px; margin: 0 0 18px; font-weight: 600; }
 .verdict.bad { background: #f8e3e5; color: var(--bad); }
 .verdict.good { background: #e3f1e8; color: var(--good); }
-.cards { display: grid; grid-template-columns: repeat(auto-fill, minmax(132px, 1fr)); gap: 10px; margin: 0 0 26px; }
+.cards { display: grid; grid-template-columns: repeat(auto-fit, minmax(108px, 1fr)); gap: 10px; margin: 0 0 26px; }
 .card { background: #fff; border: 1px solid var(--line); border-radius: 6px; padding: 10px 12px; }
 .card .num { display: block; font-size: 22px; font-weight: 650; font-variant-numeric: tabular-nums; }
 .card .label { color: var(--muted); font-size: 12px; }
@@ -48,7 +48,8 @@ table { border-collapse: collapse; width: 100%; background: #fff; border: 1px so
 th, td { padding: 5px 8px; border-bottom: 1px solid #ece9df; text-align: right; white-space: nowrap; }
 th { background: #f3f1ea; font-weight: 600; font-size: 12px; color: #4a4f57; white-space: normal; vertical-align: bottom; }
 th:first-child, td:first-child, td.text { text-align: left; }
-td:first-child { white-space: normal; word-break: break-all; }
+td:first-child { white-space: normal; min-width: 9em; }
+#overview td:first-child { word-break: break-all; }
 .scroll { overflow-x: auto; }
 td.text { white-space: normal; }
 td.hit { color: var(--warn); font-weight: 600; }
