@@ -1,0 +1,2 @@
+// Worker-thread entry for the pool's tests: fails while loading, before it is ready.
+throw new Error('this worker cannot load');
