@@ -368,7 +368,8 @@ function writeReplacement(state: EncodeState, m: number, p: number, r: Primitive
   if (oldTargets.length > 0) {
     prim.targets = r.targets.map((t, i) => writeAttributeMap(state, oldTargets[i], t, true, `${what} target ${i}`));
   }
-  prim.mode = MODE_TRIANGLES;
+  // Replacements are triangle lists; an absent mode already means triangles (glTF 2.0, mesh.primitive.mode default 4).
+  if (prim.mode !== undefined) prim.mode = MODE_TRIANGLES;
 }
 
 /** Removes `name` from extensionsUsed / extensionsRequired (dropping emptied lists). */
