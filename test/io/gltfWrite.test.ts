@@ -467,3 +467,42 @@ describe('encodeGltf containers and images', () => {
     }
   });
 });
+
+describe('encodeGltf keeps POSITION min/max correct', () => {
+  it('corrects a kept POSITION (base and morph target) whose declared min/max is wrong; validator clean', async () => {
+    const b = new GltfBuilder();
+    b.addPrimitive({
+      attributes: { POSITION: { array: POS, type: 'VEC3' }, NORMAL: { array: NRM, type: 'VEC3' } },
+      indices: IDX,
+      targets: [{ POSITION: { array: new Float32Array([0, 0, 0.5, 0, 0, 0, 0, 0, 0, 0, 0, -0.25]), type: 'VEC3' } }],
+    });
+    const { json, bin } = b.build();
+    const prim = json.meshes[0].primitives[0];
+    json.accessors[prim.attributes.POSITION].min = [0, 0, 0];
+    json.accessors[prim.attributes.POSITION].max = [5, 5, 5];
+    json.accessors[prim.targets[0].POSITION].max = [0, 0, 0.4];
+    const input = await readGltf(await writeGlb(dir(), 'wrong', json, bin));
+    const out = await encodeTo(input, new Map(), 'glb');
+    const back = await readGltf(out);
+    const bp = back.json.meshes[0].primitives[0];
+    // Source: glTF 2.0 specification 3.6.2.5: min/max are the per-component extremes of the data.
+    expect(back.json.accessors[bp.attributes.POSITION].min).toEqual([0, 0, 0]);
+    expect(back.json.accessors[bp.attributes.POSITION].max).toEqual([1, 1, 0]);
+    expect(back.json.accessors[bp.targets[0].POSITION].min).toEqual([0, 0, -0.25]);
+    expect(back.json.accessors[bp.targets[0].POSITION].max).toEqual([0, 0, 0.5]);
+    await expectValid(out);
+  });
+
+  it('keeps a correct declared min/max as written, even when it is not the float32 value itself', async () => {
+    const pos = new Float32Array([0, 0, 0, 0.3, 0, 0, 0.3, 0.3, 0, 0, 0.3, 0]);
+    const b = new GltfBuilder();
+    b.addPrimitive({ attributes: { POSITION: { array: pos, type: 'VEC3' } }, indices: IDX });
+    const { json, bin } = b.build();
+    const acc = json.accessors[json.meshes[0].primitives[0].attributes.POSITION];
+    acc.max = [0.3, 0.3, 0];
+    const input = await readGltf(await writeGlb(dir(), 'exact', json, bin));
+    const back = await readGltf(await encodeTo(input, new Map(), 'glb'));
+    // 0.3 rounds to the stored float32 value, so it is correct and stays 0.3 (not 0.30000001192092896).
+    expect(back.json.accessors[back.json.meshes[0].primitives[0].attributes.POSITION].max).toEqual([0.3, 0.3, 0]);
+  });
+});
