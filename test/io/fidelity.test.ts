@@ -145,6 +145,16 @@ describe.skipIf(!present)('bake fidelity on every glTF sample (--all-primitives)
   let files: string[] = [];
   let report: any = null;
   let bakeSeconds = 0;
+  const assets = new Map<string, Promise<Asset>>();
+  /** Each input and output is read once and shared by the checks below. */
+  const read = (file: string) => {
+    let a = assets.get(file);
+    if (!a) {
+      a = readGltf(file);
+      assets.set(file, a);
+    }
+    return a;
+  };
 
   beforeAll(async () => {
     tmp = await mkdtemp(path.join(tmpdir(), 'tanframe-fidelity-'));
@@ -196,7 +206,7 @@ describe.skipIf(!present)('bake fidelity on every glTF sample (--all-primitives)
       expect(io.length, `${rel}: ${io.join('; ')}`).toBe(expectedMissing);
       const warned = fr.warnings.filter((w: string) => /^image '.*' not found/.test(w));
       expect(warned.length, rel).toBe(io.length);
-      const inputJson = io.length ? (await readGltf(path.join(samples, rel))).json : null;
+      const inputJson = io.length ? (await read(path.join(samples, rel))).json : null;
       for (const m of io) {
         // Each IO error names an image whose absence the reader reported.
         const i = Number(/\/images\/(\d+)\/uri/.exec(m)?.[1]);
@@ -212,8 +222,8 @@ describe.skipIf(!present)('bake fidelity on every glTF sample (--all-primitives)
 
   it('keeps the structure: counts, extensions, extras; drops only compression', async () => {
     for (const rel of files) {
-      const input = await readGltf(path.join(samples, rel));
-      const output = await readGltf(path.join(tmp, 'a', rel));
+      const input = await read(path.join(samples, rel));
+      const output = await read(path.join(tmp, 'a', rel));
       expect(structure(output), rel).toEqual(structure(input));
       for (const e of output.json.extensionsUsed ?? []) expect(COMPRESSION.has(e), `${rel}: ${e}`).toBe(false);
       expect(output.decompressed ?? [], rel).toEqual([]);
@@ -227,8 +237,8 @@ describe.skipIf(!present)('bake fidelity on every glTF sample (--all-primitives)
 
   it('per triangle corner, every attribute other than TANGENT equals its decoded input value', async () => {
     for (const rel of files) {
-      const input = await readGltf(path.join(samples, rel));
-      const output = await readGltf(path.join(tmp, 'a', rel));
+      const input = await read(path.join(samples, rel));
+      const output = await read(path.join(tmp, 'a', rel));
       expect(output.primitives.length).toBe(input.primitives.length);
       input.primitives.forEach((p, i) => {
         // Flat normals are generated where the input has none (glTF 2.0, 3.7.2.1).
