@@ -1,6 +1,6 @@
 // Compressed geometry in, uncompressed geometry out: KHR_draco_mesh_compression and
 // EXT_meshopt_compression / KHR_meshopt_compression decoded by the reader and written plain.
-import { existsSync } from 'node:fs';
+import { existsSync, readFileSync } from 'node:fs';
 import { mkdtemp, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import * as path from 'node:path';
@@ -11,6 +11,7 @@ import { readGltf } from '../../src/io/gltfRead.js';
 import { encodeGltf } from '../../src/io/gltfWrite.js';
 import type { Asset, AttributeData, PrimitiveData } from '../../src/mesh/asset.js';
 import { toFloat32 } from '../../src/mesh/decode.js';
+import { runCli } from '../helpers/cli.js';
 import { dracoEncode, meshoptEncode } from '../helpers/compress.js';
 import { glbBytes, writeGlb, writeGltf } from '../helpers/gltfBuilder.js';
 import { validateGltfFile } from '../helpers/validate.js';
@@ -147,6 +148,22 @@ describe('KHR_draco_mesh_compression', () => {
       expect(v.errors, v.messages.join('\n')).toBe(0);
     });
   }
+
+  it('the file report and the printed summary note the decompression', async () => {
+    const { json, bin } = await dracoGltf('sequential');
+    const d = dir();
+    const input = await writeGlb(d, 'd', json, bin);
+    const bake = await runCli(['bake', input, '-o', path.join(d, 'out.glb'), '--all-primitives', '--report', path.join(d, 'r.json')], d);
+    expect(bake.code).toBe(0);
+    expect(bake.stdout).toContain('decompressed KHR_draco_mesh_compression (written uncompressed)');
+    const report = JSON.parse(readFileSync(path.join(d, 'r.json'), 'utf8'));
+    expect(report.files[0].notes).toEqual(['decompressed KHR_draco_mesh_compression (written uncompressed)']);
+    const audit = await runCli(['audit', input, '--json'], d);
+    expect(JSON.parse(audit.stdout).files[0].notes).toEqual(['decompressed KHR_draco_mesh_compression']);
+    // A plain file has no notes.
+    const plain = await runCli(['audit', path.join(d, 'out.glb'), '--json'], d);
+    expect(JSON.parse(plain.stdout).files[0].notes).toEqual([]);
+  });
 
   it('refuses an extension attribute the primitive does not have', async () => {
     const { json, bin } = await dracoGltf('sequential');
