@@ -152,6 +152,7 @@ function fileSection(f: FileReport, anchor: string, pictures: HtmlPicture[]): st
     parts.push(lists(f));
   }
   for (const w of f.warnings) parts.push(`<div class="note">warning: ${h(w)}</div>`);
+  for (const note of f.notes ?? []) parts.push(`<div class="note">note: ${h(note)}</div>`);
   if (pictures.length) {
     parts.push('<div class="pictures">');
     for (const pic of pictures) {
