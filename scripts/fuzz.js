@@ -1,0 +1,15 @@
+#!/usr/bin/env node
+/**
+ * `npm run fuzz`: the property-based fuzzer (test/io/fuzz.test.ts) with 10,000 cases per
+ * property (GLB, .gltf, OBJ: 30,000 in all) instead of the few hundred `npm test` runs.
+ * FUZZ_RUNS and FUZZ_SEED override the case count and the seed.
+ */
+import { spawnSync } from 'node:child_process';
+import * as path from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
+const env = { ...process.env, FUZZ_RUNS: process.env.FUZZ_RUNS ?? '10000' };
+const vitest = path.join(repoRoot, 'node_modules', 'vitest', 'vitest.mjs');
+const r = spawnSync(process.execPath, [vitest, 'run', 'test/io/fuzz.test.ts'], { cwd: repoRoot, env, stdio: 'inherit' });
+process.exit(r.status ?? 1);
