@@ -157,3 +157,48 @@ describe('fixtures/values: hostile values are processed and counted, never refus
     });
   }
 });
+
+describe('a batch of good and bad files', () => {
+  it('bakes the good ones completely and validly, lists every failure, and exits 2', async () => {
+    // The whole bad corpus beside the demo props, in one tree, on two worker threads. OBJ
+    // files get their own folder: empty.obj would otherwise bake to the same empty.glb as
+    // empty.glb (a clash refused on its own, with 'usage').
+    const batch = path.join(tmp, 'batch');
+    fs.cpSync(path.join(repo, 'examples', 'harbor-props'), path.join(batch, 'good'), { recursive: true });
+    fs.mkdirSync(path.join(batch, 'bad'));
+    fs.mkdirSync(path.join(batch, 'bad-obj'));
+    for (const name of Object.keys(badExpected)) {
+      fs.copyFileSync(path.join(badDir, name), path.join(batch, name.endsWith('.obj') ? 'bad-obj' : 'bad', name));
+    }
+    const out = path.join(tmp, 'batch-out');
+    const reportPath = path.join(tmp, 'batch-report.json');
+    const r = await runCli(['bake', 'batch', '-o', out, '--report', reportPath, '--jobs', '2', '--quiet'], tmp);
+    expect(r.code).toBe(2);
+
+    const report = JSON.parse(fs.readFileSync(reportPath, 'utf8'));
+    const failed = report.files.filter((f: any) => f.status === 'failed');
+    expect(failed.map((f: any) => path.basename(f.input)).sort()).toEqual(Object.keys(badExpected).sort());
+    for (const f of failed) expect(f.error.code, f.input).toBe(badExpected[path.basename(f.input)].code);
+    expect(report.summary.failed).toBe(Object.keys(badExpected).length);
+    // One stderr line per failure, naming the file.
+    const lines = r.stderr.split('\n').filter((l) => l !== '');
+    expect(lines).toHaveLength(failed.length);
+    for (const f of failed) expect(lines).toContain(`tanframe: ${f.input}: ${f.error.message}`);
+
+    const good = report.files.filter((f: any) => f.status === 'ok');
+    expect(good.map((f: any) => f.input).sort()).toEqual([
+      'batch/good/barrel/barrel.glb', 'batch/good/broken/lobster_trap.glb', 'batch/good/buoy/buoy.glb',
+      'batch/good/crate/crate.gltf', 'batch/good/dock/dock_plank.obj', 'batch/good/rope/rope_coil.gltf',
+    ]);
+    // Nothing was written for a bad file, and every good output validates.
+    expect(fs.existsSync(path.join(out, 'bad'))).toBe(false);
+    expect(fs.existsSync(path.join(out, 'bad-obj'))).toBe(false);
+    const meshes = listFiles(out).filter((f) => /\.(glb|gltf)$/.test(f));
+    expect(meshes).toHaveLength(good.length);
+    for (const f of meshes) {
+      // Source: Khronos gltf-validator.
+      const v = await validateGltfFile(path.join(out, f));
+      expect(v.errors, `${f}: ${v.messages.join('; ')}`).toBe(0);
+    }
+  });
+});
