@@ -163,6 +163,19 @@ describe('triangle limits, checked before decoding', () => {
     expect(e.message).toMatch(/holds only \d+ bytes/);
   });
 
+  it('the decode budget refuses an expansion no triangle count reveals (points), before allocating', async () => {
+    // A POINTS primitive holds no triangles, so only the byte budget stands between a
+    // 200-byte file and 3 GiB of zeros (2^28 VEC3 floats).
+    const json = {
+      asset: { version: '2.0' },
+      accessors: [{ componentType: 5126, count: 2 ** 28, type: 'VEC3' }],
+      meshes: [{ primitives: [{ attributes: { POSITION: 0 }, mode: 0 }] }],
+    };
+    const e = await refusal(readGltfBytes(new TextEncoder().encode(JSON.stringify(json)), 'points.gltf'));
+    expect(e.code).toBe('too-large');
+    expect(e.message).toMatch(/MiB/);
+  });
+
   it('checkTriangleLimit: the default cap and the per-byte allowance', () => {
     expect(() => checkTriangleLimit(DEFAULT_MAX_TRIANGLES, 1e12)).not.toThrow();
     expect(() => checkTriangleLimit(DEFAULT_MAX_TRIANGLES + 1, 1e12)).toThrow(/--max-triangles/);

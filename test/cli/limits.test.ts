@@ -1,0 +1,46 @@
+/**
+ * --max-triangles and --file-timeout on the command line: the limit refuses a file before it
+ * is decoded (code 'too-large', exit 2) and both options refuse nonsense values.
+ */
+import * as path from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { runCli } from '../helpers/cli.js';
+
+const repo = path.resolve(__dirname, '../..');
+// fixtures/values/all-degenerate.gltf: one quad, 2 triangles (scripts/make-bad-fixtures.js).
+const quad = path.join('fixtures', 'values', 'all-degenerate.gltf');
+
+describe('--max-triangles', () => {
+  it('refuses a file with more triangles than the limit, with too-large and one line', async () => {
+    const r = await runCli(['audit', quad, '--max-triangles', '1', '--json'], repo);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/^tanframe: fixtures\/values\/all-degenerate\.gltf: the file holds 2 triangles, more than the limit of 1 \(raise it with --max-triangles\)\n$/);
+    const file = JSON.parse(r.stdout).files[0];
+    expect(file.error.code).toBe('too-large');
+    expect(file.primitives).toEqual([]);
+  });
+
+  it('lets a file at the limit through', async () => {
+    const r = await runCli(['audit', quad, '--max-triangles', '2', '--quiet'], repo);
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+  });
+
+  it('refuses values that are not positive integers', async () => {
+    for (const v of ['0', '-5', '1.5', 'many']) {
+      const r = await runCli(['audit', quad, '--max-triangles', v], repo);
+      expect(r.code, v).toBe(2);
+      expect(r.stderr, v).toMatch(/--max-triangles/);
+    }
+  });
+});
+
+describe('--file-timeout', () => {
+  it('refuses values that are not non-negative numbers', async () => {
+    for (const v of ['-1', 'soon', '']) {
+      const r = await runCli(['audit', quad, '--file-timeout', v], repo);
+      expect(r.code, v).toBe(2);
+      expect(r.stderr, v).toMatch(/--file-timeout/);
+    }
+  });
+});
