@@ -9,6 +9,7 @@
  * process with its pid runs on this host (removeStaleTemps).
  */
 import { randomBytes } from 'node:crypto';
+import { constants as fsConstants } from 'node:fs';
 import * as fsp from 'node:fs/promises';
 import * as os from 'node:os';
 import * as path from 'node:path';
@@ -31,6 +32,8 @@ function describeFsError(err: unknown): string {
       return 'is a folder, not a file';
     case 'ENOTDIR':
       return 'a parent of the path is not a folder';
+    case 'ENOTREG':
+      return 'not a regular file (a pipe, device or socket)';
     case 'EACCES':
     case 'EPERM':
       return 'permission denied';
@@ -47,14 +50,46 @@ function describeFsError(err: unknown): string {
 }
 
 /**
- * Reads a whole input file. Throws TanframeError 'read-failed' (not found, a folder,
- * permission denied, ...), 'too-large' (over what one buffer can hold) or 'empty-file'
- * (0 bytes). Messages do not name the file: the caller prefixes it.
+ * Opening flags for reading: O_NONBLOCK (where the platform has it) so that opening a named
+ * pipe returns at once instead of waiting for a writer that may never come.
+ */
+const READ_FLAGS = fsConstants.O_RDONLY | (fsConstants.O_NONBLOCK ?? 0);
+
+/**
+ * Reads a whole regular file. Anything else (a named pipe, a device such as /dev/zero, a
+ * socket) is refused with an error whose code is 'ENOTREG' before a byte is read, so such a
+ * file can neither block the run forever nor feed it endless data. Rejects with the
+ * file-system error otherwise (ENOENT, EISDIR, EACCES, ...).
+ */
+export async function readRegularFile(filePath: string): Promise<Buffer> {
+  const handle = await fsp.open(filePath, READ_FLAGS);
+  try {
+    const st = await handle.stat();
+    if (st.isDirectory()) {
+      const err = new Error('is a folder') as NodeJS.ErrnoException;
+      err.code = 'EISDIR';
+      throw err;
+    }
+    if (!st.isFile()) {
+      const err = new Error('not a regular file') as NodeJS.ErrnoException;
+      err.code = 'ENOTREG';
+      throw err;
+    }
+    return await handle.readFile();
+  } finally {
+    await handle.close();
+  }
+}
+
+/**
+ * Reads a whole input file. Throws TanframeError 'read-failed' (not found, a folder, not a
+ * regular file, permission denied, ...), 'too-large' (over what one buffer can hold) or
+ * 'empty-file' (0 bytes). Messages do not name the file: the caller prefixes it.
  */
 export async function readInputBytes(filePath: string): Promise<Uint8Array> {
   let buf: Buffer;
   try {
-    buf = await fsp.readFile(filePath);
+    buf = await readRegularFile(filePath);
   } catch (err) {
     if ((err as NodeJS.ErrnoException).code === 'ERR_FS_FILE_TOO_LARGE' || err instanceof RangeError) {
       throw new TanframeError('too-large', 'cannot read: the file is too large to load');

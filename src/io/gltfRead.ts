@@ -9,7 +9,6 @@
  * Nothing in the file is trusted before it is checked: every fault becomes a TanframeError
  * with a stable code and a one-line message (the caller prefixes the file name).
  */
-import * as fsp from 'node:fs/promises';
 import * as path from 'node:path';
 import {
   BYTE,
@@ -25,7 +24,7 @@ import {
 } from '../mesh/asset.js';
 import { allocComponents } from '../mesh/decode.js';
 import { TanframeError } from '../mesh/errors.js';
-import { readInputBytes } from './files.js';
+import { readInputBytes, readRegularFile } from './files.js';
 import { looksLikeGlb, parseGlb } from './glb.js';
 import {
   DECODE_BUDGET_BASE,
@@ -167,15 +166,18 @@ function checkRequiredExtensions(json: any): void {
   }
 }
 
-/** Reads an external buffer or image file; ENOENT -> null, other errors -> 'read-failed'. */
+/**
+ * Reads an external buffer or image file; ENOENT -> null, other errors (a pipe or device
+ * included: never read, so it cannot block or feed endless data) -> 'read-failed'.
+ */
 async function readResourceFile(file: string, what: string): Promise<Uint8Array | null> {
   try {
-    const b = await fsp.readFile(file);
+    const b = await readRegularFile(file);
     return new Uint8Array(b.buffer, b.byteOffset, b.byteLength);
   } catch (err) {
     const code = (err as NodeJS.ErrnoException).code;
     if (code === 'ENOENT' || code === 'ENOTDIR') return null;
-    throw new TanframeError('read-failed', `cannot read ${what}: ${code === 'EISDIR' ? 'it is a folder' : code === 'EACCES' ? 'permission denied' : (code ?? 'error')}`);
+    throw new TanframeError('read-failed', `cannot read ${what}: ${code === 'EISDIR' ? 'it is a folder' : code === 'EACCES' ? 'permission denied' : code === 'ENOTREG' ? 'not a regular file' : (code ?? 'error')}`);
   }
 }
 

@@ -8,7 +8,6 @@
  * data lives in `Asset.primitives`; the JSON primitives carry no accessors until a writer
  * (or `objAttributesAsGltf`) stores them.
  */
-import { readFile } from 'node:fs/promises';
 import * as nodePath from 'node:path';
 import {
   FLOAT,
@@ -22,6 +21,7 @@ import {
 } from '../mesh/asset.js';
 import { TanframeError } from '../mesh/errors.js';
 import { parseMtl, parseObjFloat, type MtlMaterial, type MtlTexture } from './mtlRead.js';
+import { readInputBytes, readRegularFile } from './files.js';
 import { DEFAULT_MAX_TRIANGLES, checkTriangleLimit, type ReadLimits } from './limits.js';
 import { resolveResourceUri } from './uri.js';
 
@@ -502,6 +502,7 @@ function errnoReason(e: unknown): string {
   if (code === 'ENOENT') return 'not found';
   if (code === 'EISDIR') return 'is a folder';
   if (code === 'EACCES' || code === 'EPERM') return 'permission denied';
+  if (code === 'ENOTREG') return 'not a regular file';
   return code ?? (e instanceof Error ? e.message.split('\n')[0]! : 'unreadable');
 }
 
@@ -530,13 +531,7 @@ function errnoReason(e: unknown): string {
  * 'too-large' when the faces hold more triangles than `limits` allow (checked while parsing).
  */
 export async function readObj(path: string, limits: ReadLimits = {}): Promise<Asset> {
-  let bytes: Uint8Array;
-  try {
-    bytes = await readFile(path);
-  } catch (e) {
-    throw new TanframeError('read-failed', `cannot read ${path}: ${errnoReason(e)}`);
-  }
-  if (bytes.length === 0) throw new TanframeError('empty-file', 'empty file');
+  const bytes = await readInputBytes(path);
   const text = new TextDecoder('utf-8').decode(bytes); // drops a leading BOM
   const o = parseObjText(text, limits);
   const faceCount = o.faceGroup.n;
@@ -558,7 +553,7 @@ export async function readObj(path: string, limits: ReadLimits = {}): Promise<As
       mtlText = new TextDecoder('utf-8').decode(res.bytes);
     } else {
       try {
-        mtlText = new TextDecoder('utf-8').decode(await readFile(res.path));
+        mtlText = new TextDecoder('utf-8').decode(await readRegularFile(res.path));
       } catch (e) {
         warnings.push(`material library '${lib.file}' (line ${lib.line}): ${errnoReason(e)}`);
         mtlMissing = true;
@@ -603,7 +598,7 @@ export async function readObj(path: string, limits: ReadLimits = {}): Promise<As
       else warnings.push(`image '${tex.file}' (material '${materialName}'): format not supported by glTF core (PNG or JPEG expected)`);
       let data: Uint8Array | null = null;
       try {
-        data = new Uint8Array(await readFile(res.path));
+        data = new Uint8Array(await readRegularFile(res.path));
       } catch (e) {
         warnings.push(`image '${tex.file}' (material '${materialName}'): ${errnoReason(e)}`);
       }

@@ -2,11 +2,13 @@
  * Reader behaviour on hostile input, one test per fault found while hardening the readers
  * (fixture corpus and fuzzing), plus the size limits checked before decoding.
  */
+import { spawnSync } from 'node:child_process';
 import * as fs from 'node:fs';
 import * as os from 'node:os';
 import * as path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { readGltfBytes } from '../../src/io/gltfRead.js';
+import { readInputBytes } from '../../src/io/files.js';
+import { readGltf, readGltfBytes } from '../../src/io/gltfRead.js';
 import { DEFAULT_MAX_TRIANGLES, TRIANGLE_ALLOWANCE, TRIANGLES_PER_INPUT_BYTE, checkTriangleLimit } from '../../src/io/limits.js';
 import { readObj } from '../../src/io/objRead.js';
 import { isInside } from '../../src/io/uri.js';
@@ -185,3 +187,62 @@ describe('triangle limits, checked before decoding', () => {
     expect(() => checkTriangleLimit(TRIANGLE_ALLOWANCE + TRIANGLES_PER_INPUT_BYTE * 100 + 1, 100)).toThrow(TanframeError);
   });
 });
+
+/** Makes a named pipe at `p`; false where mkfifo is not available. */
+function mkfifo(p: string): boolean {
+  const r = spawnSync('mkfifo', [p]);
+  return r.status === 0;
+}
+const fifoProbe = path.join(root, 'probe.fifo');
+const haveFifo = mkfifo(fifoProbe);
+if (!haveFifo) console.warn('SKIPPED: named-pipe tests (mkfifo not available)');
+
+describe.skipIf(!haveFifo)('pipes and devices are never read', () => {
+  // Found by review: a named pipe named like a mesh (or like its .bin) made the read wait
+  // forever for a writer, hanging a single-file run; /dev/zero behind a link would feed
+  // zeros until memory ran out. Both are refused before a byte is read.
+  it('refuses an input that is a named pipe, at once', async () => {
+    const dir = path.join(root, `fifo${counter++}`);
+    fs.mkdirSync(dir);
+    for (const name of ['a.glb', 'b.gltf', 'c.obj']) {
+      const p = path.join(dir, name);
+      expect(mkfifo(p)).toBe(true);
+      const e = await refusal(name === 'c.obj' ? readObj(p) : readGltf(p));
+      expect(e.code).toBe('read-failed');
+      expect(e.message).toMatch(/not a regular file/);
+    }
+  });
+
+  it('refuses a device reached through a link named like a mesh', async () => {
+    const dir = path.join(root, `dev${counter++}`);
+    fs.mkdirSync(dir);
+    fs.symlinkSync('/dev/zero', path.join(dir, 'zero.glb'));
+    const e = await refusal(readInputBytes(path.join(dir, 'zero.glb')));
+    expect(e.code).toBe('read-failed');
+  });
+
+  it('refuses a .bin that is a named pipe', async () => {
+    const { json, bin } = buildGltf([quad()]);
+    const dir = path.join(root, `fifobin${counter++}`);
+    const file = await writeGltf(dir, 'x', json, bin);
+    fs.rmSync(path.join(dir, 'x.bin'));
+    expect(mkfifo(path.join(dir, 'x.bin'))).toBe(true);
+    const e = await refusal(readGltf(file));
+    expect(e.code).toBe('read-failed');
+    expect(e.message).toMatch(/not a regular file/);
+  });
+
+  it('an OBJ whose material library and texture are pipes reads with warnings', async () => {
+    const file = writeObj(`mtllib lib.mtl\nusemtl m\n${OBJ_QUAD}f 1 2 3 4\n`);
+    const dir = path.dirname(file);
+    expect(mkfifo(path.join(dir, 'lib.mtl'))).toBe(true);
+    const a = await readObj(file);
+    expect(a.warnings.join('\n')).toMatch(/lib\.mtl.*not a regular file/);
+    fs.rmSync(path.join(dir, 'lib.mtl'));
+    fs.writeFileSync(path.join(dir, 'lib.mtl'), 'newmtl m\nnorm n.png\n');
+    expect(mkfifo(path.join(dir, 'n.png'))).toBe(true);
+    const b = await readObj(file);
+    expect(b.warnings.join('\n')).toMatch(/n\.png.*not a regular file/);
+  });
+});
+
