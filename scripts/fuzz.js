@@ -1,7 +1,7 @@
 #!/usr/bin/env node
 /**
  * `npm run fuzz`: the property-based fuzzer (test/io/fuzz.test.ts) with 10,000 cases per
- * property (GLB, .gltf, OBJ: 30,000 in all) instead of the few hundred `npm test` runs.
+ * property (four properties: 40,000 cases in all) instead of the few hundred `npm test` runs.
  * FUZZ_RUNS and FUZZ_SEED override the case count and the seed.
  */
 import { spawnSync } from 'node:child_process';

@@ -383,6 +383,41 @@ describe('fuzzing the read -> solve -> write pipeline', () => {
     );
   }, PROPERTY_TIMEOUT_MS);
 
+  it(`GLB: hostile values in the vertex data and indices of a valid file (${RUNS} cases)`, async () => {
+    // The structure stays valid; only stored numbers change: NaN, infinities, huge, tiny and
+    // denormal floats anywhere in the vertex data; other indices (mostly in range, which makes
+    // degenerate and repeated triangles). Values never refuse a file: the only refusal allowed
+    // is an index out of range.
+    const vertexView = BASE.json.bufferViews[BASE.json.accessors[BASE.json.meshes[0].primitives[0].attributes.POSITION].bufferView];
+    const indexView = BASE.json.bufferViews[BASE.json.accessors[BASE.json.meshes[0].primitives[0].indices].bufferView];
+    const floatArb = fc.oneof(
+      fc.constantFrom(Number.NaN, Infinity, -Infinity, 0, -0, 1e38, -1e38, 3.4e38, 1e-45, -1e-45, 1e-38, 1, -1),
+      fc.float(),
+    );
+    await fc.assert(
+      fc.asyncProperty(
+        fc.array(fc.record({ f: fraction, value: floatArb }), { minLength: 1, maxLength: 12 }),
+        fc.array(fc.record({ f: fraction, value: fc.oneof({ arbitrary: fc.integer({ min: 0, max: 3 }), weight: 4 }, { arbitrary: fc.integer({ min: 0, max: 0xffff }), weight: 1 }) }), { maxLength: 2 }),
+        optionsArb,
+        async (floats, indices, o) => {
+          const bin = BASE.bin.slice();
+          const dv = new DataView(bin.buffer);
+          for (const e of floats) {
+            const slots = Math.floor(vertexView.byteLength / 4);
+            dv.setFloat32(vertexView.byteOffset + 4 * Math.floor(e.f * slots), e.value, true);
+          }
+          for (const e of indices) {
+            const slots = Math.floor(indexView.byteLength / 2);
+            dv.setUint16(indexView.byteOffset + 2 * Math.floor(e.f * slots), e.value, true);
+          }
+          const outcome = await bakeCase('glb', glbBytes(BASE.json, bin), o);
+          expect(indices.length > 0 ? ['ok', 'bad-index'] : ['ok']).toContain(outcome);
+        },
+      ),
+      params,
+    );
+  }, PROPERTY_TIMEOUT_MS);
+
   it('the mutations reach many layers of each reader', () => {
     // Not a count of our own results: only that the fuzzer is not stuck at the first check.
     expect(seen.glb.size).toBeGreaterThan(3);
