@@ -22,4 +22,10 @@ export { renderHtml, type HtmlPicture } from './report/html.js';
 export { renderUvMapSvg, pictureFileName, type UvMapSvgOptions } from './report/uvMapSvg.js';
 export type { UvPicture } from './report/uvPicture.js';
 export type { Report, FileReport, PrimitiveReport, ReportSummary, StoredTangentReport, TriangleFinding } from './report/types.js';
+export { decodePng, encodePng, detectImageKind, type PngImage, type ImageKind } from './imaging/png.js';
+export { rasterizeTriangle, createSpanBuffer, countCoverage, type SpanBuffer, type CoverageStats } from './imaging/rasterize.js';
+export {
+  convertNormalMap, flipGreen, type ConvertMapOptions, type ConvertMapStats, type FrameSet, type MapPart, type MapSpace, type GreenDirection,
+} from './imaging/convert.js';
+export { mapPartsForAsset, primitiveFrameSet, type MapParts, type MapPartsRequest, type MapPrimitiveInfo, type PrimitiveRef } from './lib/mapFrames.js';
 export { main as runCli } from './cli/main.js';

@@ -175,13 +175,11 @@ export function convertNormalMap(
   const outDepth = options.outDepth ?? image.depth;
   const outMax = outDepth === 16 ? 65535 : 255;
   const out = allocSamples(outDepth, texels * outCh);
-  // Neutral background for texels no triangle or padding reaches.
-  const bgZ = useEncode ? outMax : Math.round(0.5 * outMax);
+  // Neutral background for texels no triangle or padding reaches: one texel written, then
+  // copied over the rest in doubling blocks.
   const bgXY = Math.round(0.5 * outMax);
-  for (let p = 0; p < texels; p++) {
-    const o = p * outCh;
-    out[o] = bgXY; out[o + 1] = bgXY; out[o + 2] = bgZ;
-  }
+  out[0] = bgXY; out[1] = bgXY; out[2] = useEncode ? outMax : bgXY;
+  for (let filled = outCh, all = texels * outCh; filled < all; filled *= 2) out.copyWithin(filled, 0, Math.min(filled, all - filled));
   if (outCh === 4) copyChannel(out, outCh, outDepth, image.data, inCh, image.depth, 3, texels);
 
   const state = new Uint8Array(texels);
@@ -228,7 +226,9 @@ function affineOf(t: UvTransform | null): number[] | null {
 
 /**
  * The hot loop: rasterises triangles [start, end) of one part and converts each newly covered
- * texel. Everything is passed in so the loop works on locals only.
+ * texel. Everything is passed in so the loop works on locals only. Along a span the
+ * interpolated t, N and sign are linear in x, so each is its value at the span's first texel
+ * plus k times its per-texel increment (the same numbers as weighting the corners per texel).
  */
 function convertTriangles(
   out: Uint8Array | Uint16Array, outCh: number, outMax: number,
@@ -245,13 +245,9 @@ function convertTriangles(
   const hasXf = xf !== null;
   const xa = hasXf ? xf![0] : 1, xb = hasXf ? xf![1] : 0, xc = hasXf ? xf![2] : 0;
   const xd = hasXf ? xf![3] : 0, xe = hasXf ? xf![4] : 1, xff = hasXf ? xf![5] : 0;
-  // Per-corner frame values of the current triangle (scalars, refreshed per triangle).
-  let dt0x = 0, dt0y = 0, dt0z = 0, ds0 = 0, dn0x = 0, dn0y = 0, dn0z = 0;
-  let dt1x = 0, dt1y = 0, dt1z = 0, ds1 = 0, dn1x = 0, dn1y = 0, dn1z = 0;
-  let dt2x = 0, dt2y = 0, dt2z = 0, ds2 = 0, dn2x = 0, dn2y = 0, dn2z = 0;
-  let et0x = 0, et0y = 0, et0z = 0, es0 = 0, en0x = 0, en0y = 0, en0z = 0;
-  let et1x = 0, et1y = 0, et1z = 0, es1 = 0, en1x = 0, en1y = 0, en1z = 0;
-  let et2x = 0, et2y = 0, et2z = 0, es2 = 0, en2x = 0, en2y = 0, en2z = 0;
+  // Corner values of the current triangle, then per-texel increments along x.
+  const dc = new Float64Array(21), ec = new Float64Array(21);
+  const dd = new Float64Array(7), ed = new Float64Array(7);
   for (let t = start; t < end; t++) {
     const i0 = indices[t * 3] * 2, i1 = indices[t * 3 + 1] * 2, i2 = indices[t * 3 + 2] * 2;
     let u0 = uvs[i0], v0 = uvs[i0 + 1], u1 = uvs[i1], v1 = uvs[i1 + 1], u2 = uvs[i2], v2 = uvs[i2 + 1];
@@ -267,33 +263,45 @@ function convertTriangles(
       continue;
     }
     if (spans.count === 0) continue;
+    const dw0 = spans.dw[0], dw1 = spans.dw[1], dw2 = spans.dw[2];
+    // Seven values per corner: tx ty tz sign nx ny nz (corner c at c * 7).
     if (dN !== null && dT !== null) {
-      let k = dIdx[t * 3];
-      dt0x = dT[k * 4]; dt0y = dT[k * 4 + 1]; dt0z = dT[k * 4 + 2]; ds0 = dT[k * 4 + 3];
-      dn0x = dN[k * 3]; dn0y = dN[k * 3 + 1]; dn0z = dN[k * 3 + 2];
-      k = dIdx[t * 3 + 1];
-      dt1x = dT[k * 4]; dt1y = dT[k * 4 + 1]; dt1z = dT[k * 4 + 2]; ds1 = dT[k * 4 + 3];
-      dn1x = dN[k * 3]; dn1y = dN[k * 3 + 1]; dn1z = dN[k * 3 + 2];
-      k = dIdx[t * 3 + 2];
-      dt2x = dT[k * 4]; dt2y = dT[k * 4 + 1]; dt2z = dT[k * 4 + 2]; ds2 = dT[k * 4 + 3];
-      dn2x = dN[k * 3]; dn2y = dN[k * 3 + 1]; dn2z = dN[k * 3 + 2];
+      for (let c = 0; c < 3; c++) {
+        const k = dIdx[t * 3 + c];
+        dc[c * 7] = dT[k * 4]; dc[c * 7 + 1] = dT[k * 4 + 1]; dc[c * 7 + 2] = dT[k * 4 + 2]; dc[c * 7 + 3] = dT[k * 4 + 3];
+        dc[c * 7 + 4] = dN[k * 3]; dc[c * 7 + 5] = dN[k * 3 + 1]; dc[c * 7 + 6] = dN[k * 3 + 2];
+      }
+      for (let j = 0; j < 7; j++) dd[j] = dw0 * dc[j] + dw1 * dc[7 + j] + dw2 * dc[14 + j];
     }
     if (eN !== null && eT !== null) {
-      let k = eIdx[t * 3];
-      et0x = eT[k * 4]; et0y = eT[k * 4 + 1]; et0z = eT[k * 4 + 2]; es0 = eT[k * 4 + 3];
-      en0x = eN[k * 3]; en0y = eN[k * 3 + 1]; en0z = eN[k * 3 + 2];
-      k = eIdx[t * 3 + 1];
-      et1x = eT[k * 4]; et1y = eT[k * 4 + 1]; et1z = eT[k * 4 + 2]; es1 = eT[k * 4 + 3];
-      en1x = eN[k * 3]; en1y = eN[k * 3 + 1]; en1z = eN[k * 3 + 2];
-      k = eIdx[t * 3 + 2];
-      et2x = eT[k * 4]; et2y = eT[k * 4 + 1]; et2z = eT[k * 4 + 2]; es2 = eT[k * 4 + 3];
-      en2x = eN[k * 3]; en2y = eN[k * 3 + 1]; en2z = eN[k * 3 + 2];
+      for (let c = 0; c < 3; c++) {
+        const k = eIdx[t * 3 + c];
+        ec[c * 7] = eT[k * 4]; ec[c * 7 + 1] = eT[k * 4 + 1]; ec[c * 7 + 2] = eT[k * 4 + 2]; ec[c * 7 + 3] = eT[k * 4 + 3];
+        ec[c * 7 + 4] = eN[k * 3]; ec[c * 7 + 5] = eN[k * 3 + 1]; ec[c * 7 + 6] = eN[k * 3 + 2];
+      }
+      for (let j = 0; j < 7; j++) ed[j] = dw0 * ec[j] + dw1 * ec[7 + j] + dw2 * ec[14 + j];
     }
-    const dw0 = spans.dw[0], dw1 = spans.dw[1], dw2 = spans.dw[2];
+    const dtxd = dd[0], dtyd = dd[1], dtzd = dd[2], dsd = dd[3], dnxd = dd[4], dnyd = dd[5], dnzd = dd[6];
+    const etxd = ed[0], etyd = ed[1], etzd = ed[2], esd = ed[3], enxd = ed[4], enyd = ed[5], enzd = ed[6];
     for (let s = 0; s < spans.count; s++) {
       const row = spans.y[s] * width;
       const x0 = spans.x0[s], x1 = spans.x1[s];
-      const w0s = spans.w[s * 3], w1s = spans.w[s * 3 + 1], w2s = spans.w[s * 3 + 2];
+      const w0 = spans.w[s * 3], w1 = spans.w[s * 3 + 1], w2 = spans.w[s * 3 + 2];
+      // Interpolated values at the span's first texel.
+      let dtx0 = 0, dty0 = 0, dtz0 = 0, ds0 = 0, dnx0 = 0, dny0 = 0, dnz0 = 0;
+      let etx0 = 0, ety0 = 0, etz0 = 0, es0 = 0, enx0 = 0, eny0 = 0, enz0 = 0;
+      if (useDecode) {
+        dtx0 = w0 * dc[0] + w1 * dc[7] + w2 * dc[14]; dty0 = w0 * dc[1] + w1 * dc[8] + w2 * dc[15];
+        dtz0 = w0 * dc[2] + w1 * dc[9] + w2 * dc[16]; ds0 = w0 * dc[3] + w1 * dc[10] + w2 * dc[17];
+        dnx0 = w0 * dc[4] + w1 * dc[11] + w2 * dc[18]; dny0 = w0 * dc[5] + w1 * dc[12] + w2 * dc[19];
+        dnz0 = w0 * dc[6] + w1 * dc[13] + w2 * dc[20];
+      }
+      if (useEncode) {
+        etx0 = w0 * ec[0] + w1 * ec[7] + w2 * ec[14]; ety0 = w0 * ec[1] + w1 * ec[8] + w2 * ec[15];
+        etz0 = w0 * ec[2] + w1 * ec[9] + w2 * ec[16]; es0 = w0 * ec[3] + w1 * ec[10] + w2 * ec[17];
+        enx0 = w0 * ec[4] + w1 * ec[11] + w2 * ec[18]; eny0 = w0 * ec[5] + w1 * ec[12] + w2 * ec[19];
+        enz0 = w0 * ec[6] + w1 * ec[13] + w2 * ec[20];
+      }
       for (let x = x0; x < x1; x++) {
         const p = row + x;
         const st = state[p];
@@ -303,26 +311,23 @@ function convertTriangles(
         }
         state[p] = STATE_COVERED;
         covered++;
-        const kx = x - x0;
-        const b0 = w0s + kx * dw0, b1 = w1s + kx * dw1, b2 = w2s + kx * dw2;
+        const k = x - x0;
         const ip = p * inCh;
         let vx = inp[ip] * inScale - 1, vy = (inp[ip + 1] * inScale - 1) * gIn, vz = inp[ip + 2] * inScale - 1;
         // Fallback direction for a vector without one: the interpolated normal (object output)
         // or (0, 0, 1) (tangent output).
         let fx = 0, fy = 0, fz = 1;
         if (useDecode) {
-          const tx = b0 * dt0x + b1 * dt1x + b2 * dt2x, ty = b0 * dt0y + b1 * dt1y + b2 * dt2y, tz = b0 * dt0z + b1 * dt1z + b2 * dt2z;
-          const nx = b0 * dn0x + b1 * dn1x + b2 * dn2x, ny = b0 * dn0y + b1 * dn1y + b2 * dn2y, nz = b0 * dn0z + b1 * dn1z + b2 * dn2z;
-          const sg = b0 * ds0 + b1 * ds1 + b2 * ds2;
+          const tx = dtx0 + k * dtxd, ty = dty0 + k * dtyd, tz = dtz0 + k * dtzd, sg = ds0 + k * dsd;
+          const nx = dnx0 + k * dnxd, ny = dny0 + k * dnyd, nz = dnz0 + k * dnzd;
           const bx = sg * (ny * tz - nz * ty), by = sg * (nz * tx - nx * tz), bz = sg * (nx * ty - ny * tx);
           const ox = vx * tx + vy * bx + vz * nx, oy = vx * ty + vy * by + vz * ny, oz = vx * tz + vy * bz + vz * nz;
           vx = ox; vy = oy; vz = oz;
-          if (!useEncode) { fx = nx; fy = ny; fz = nz; }
+          fx = nx; fy = ny; fz = nz;
         }
         if (useEncode) {
-          const tx = b0 * et0x + b1 * et1x + b2 * et2x, ty = b0 * et0y + b1 * et1y + b2 * et2y, tz = b0 * et0z + b1 * et1z + b2 * et2z;
-          const nx = b0 * en0x + b1 * en1x + b2 * en2x, ny = b0 * en0y + b1 * en1y + b2 * en2y, nz = b0 * en0z + b1 * en1z + b2 * en2z;
-          const sg = b0 * es0 + b1 * es1 + b2 * es2;
+          const tx = etx0 + k * etxd, ty = ety0 + k * etyd, tz = etz0 + k * etzd, sg = es0 + k * esd;
+          const nx = enx0 + k * enxd, ny = eny0 + k * enyd, nz = enz0 + k * enzd;
           const bx = sg * (ny * tz - nz * ty), by = sg * (nz * tx - nx * tz), bz = sg * (nx * ty - ny * tx);
           // Rows of the adjugate of M = [t b N]: M^-1 = rows / det.
           const r0x = by * nz - bz * ny, r0y = bz * nx - bx * nz, r0z = bx * ny - by * nx; // cross(b, N)
@@ -345,14 +350,14 @@ function convertTriangles(
           vx = ox; vy = oy; vz = oz;
           fx = 0; fy = 0; fz = 1;
         }
-        let len = Math.sqrt(vx * vx + vy * vy + vz * vz);
-        if (!(len > TEXEL_ZERO_LENGTH)) {
+        let len2 = vx * vx + vy * vy + vz * vz;
+        if (!(len2 > TEXEL_ZERO_LENGTH * TEXEL_ZERO_LENGTH)) {
           vx = fx; vy = fy; vz = fz;
-          len = Math.sqrt(vx * vx + vy * vy + vz * vz);
-          if (!(len > TEXEL_ZERO_LENGTH)) { vx = 0; vy = 0; vz = 1; len = 1; }
+          len2 = vx * vx + vy * vy + vz * vz;
+          if (!(len2 > TEXEL_ZERO_LENGTH * TEXEL_ZERO_LENGTH)) { vx = 0; vy = 0; vz = 1; len2 = 1; }
           fallback++;
         }
-        const inv = outHalf / len;
+        const inv = outHalf / Math.sqrt(len2);
         const o = p * outCh;
         // round((x * 0.5 + 0.5) * max): x * max/2 + max/2 + 0.5, truncated (non-negative).
         out[o] = (vx * inv + outHalf + 0.5) | 0;
@@ -368,6 +373,18 @@ function convertTriangles(
   counters[4] += fallback;
 }
 
+/** Writes row[x] = 1 when texel x - 1, x or x + 1 of row y is not empty (0 outside the image). */
+function nearRow(row: Uint8Array, state: Uint8Array, y: number, width: number, height: number): void {
+  if (y < 0 || y >= height) { row.fill(0); return; }
+  const base = y * width;
+  let left = 0, mid = state[base] !== STATE_EMPTY ? 1 : 0;
+  for (let x = 0; x < width; x++) {
+    const right = x + 1 < width && state[base + x + 1] !== STATE_EMPTY ? 1 : 0;
+    row[x] = left | mid | right;
+    left = mid; mid = right;
+  }
+}
+
 /**
  * Edge dilation: `rings` rounds; in round r every empty texel with a filled 8-neighbour
  * (covered, or filled in an earlier round) takes the normalised average of those neighbours.
@@ -380,88 +397,72 @@ function padRings(
   const scale = 2 / max, half = 0.5 * max;
   let frontier = new Int32Array(1024);
   let count = 0;
-  // Round 1: empty texels next to covered ones.
+  // Round 1: empty texels with a covered 8-neighbour. `near` rows hold "a covered texel at
+  // x - 1, x or x + 1" for rows y - 1, y and y + 1, so each texel is read a fixed few times.
+  let above = new Uint8Array(width), here = new Uint8Array(width), below = new Uint8Array(width);
+  nearRow(above, state, -1, width, height);
+  nearRow(here, state, 0, width, height);
   for (let y = 0; y < height; y++) {
+    nearRow(below, state, y + 1, width, height);
+    const base = y * width;
     for (let x = 0; x < width; x++) {
-      const p = y * width + x;
-      if (state[p] !== STATE_EMPTY) continue;
-      let near = false;
-      for (let dy = -1; dy <= 1 && !near; dy++) {
-        const yy = y + dy;
-        if (yy < 0 || yy >= height) continue;
-        for (let dx = -1; dx <= 1; dx++) {
-          const xx = x + dx;
-          if (xx < 0 || xx >= width) continue;
-          const s = state[yy * width + xx];
-          if (s === STATE_COVERED || s === STATE_CONFLICT) { near = true; break; }
-        }
-      }
-      if (!near) continue;
+      const p = base + x;
+      if (state[p] !== STATE_EMPTY || (above[x] | here[x] | below[x]) === 0) continue;
       if (count === frontier.length) { const g = new Int32Array(count * 2); g.set(frontier); frontier = g; }
       frontier[count++] = p;
-      state[p] = STATE_QUEUED;
     }
+    const t = above; above = here; here = below; below = t;
   }
+  for (let i = 0; i < count; i++) state[frontier[i]] = STATE_QUEUED;
   let filled = 0;
   let next = new Int32Array(Math.max(1024, count));
   for (let r = 1; r <= rings && count > 0; r++) {
     const ringState = STATE_RING0 + r;
-    // Fill this ring from neighbours filled before it (state in [1, ringState)).
+    const more = r < rings;
+    let nextCount = 0;
+    // Fill this ring from neighbours filled before it (state in [1, ringState)) and queue its
+    // empty neighbours for the next ring, in one pass over each 3 x 3 neighbourhood. Queued
+    // texels (this ring's and the next's) are never read as neighbours.
     for (let i = 0; i < count; i++) {
       const p = frontier[i];
       const y = (p / width) | 0, x = p - y * width;
-      let sx = 0, sy = 0, sz = 0, first = -1;
-      for (let dy = -1; dy <= 1; dy++) {
-        const yy = y + dy;
-        if (yy < 0 || yy >= height) continue;
-        for (let dx = -1; dx <= 1; dx++) {
-          const xx = x + dx;
-          if (xx < 0 || xx >= width || (dx === 0 && dy === 0)) continue;
-          const q = yy * width + xx;
+      const y0 = y > 0 ? y - 1 : 0, y1 = y < height - 1 ? y + 1 : y;
+      const xa = x > 0 ? x - 1 : 0, xb = x < width - 1 ? x + 1 : x;
+      let sx = 0, sy = 0, sz = 0, n = 0, first = -1;
+      for (let yy = y0; yy <= y1; yy++) {
+        for (let q = yy * width + xa, qEnd = yy * width + xb; q <= qEnd; q++) {
           const s = state[q];
-          if (s === STATE_EMPTY || s >= ringState) continue;
+          if (s === STATE_EMPTY) {
+            if (more) {
+              state[q] = STATE_QUEUED;
+              if (nextCount === next.length) { const g = new Int32Array(nextCount * 2); g.set(next); next = g; }
+              next[nextCount++] = q;
+            }
+            continue;
+          }
+          if (s >= ringState) continue; // queued texels, p itself included
           const o = q * ch;
           if (first < 0) first = o;
-          sx += out[o] * scale - 1; sy += out[o + 1] * scale - 1; sz += out[o + 2] * scale - 1;
+          sx += out[o]; sy += out[o + 1]; sz += out[o + 2]; n++;
         }
       }
+      // Mean of the decoded neighbours: sum(c * scale - 1) = scale * sum(c) - n.
+      const vx = sx * scale - n, vy = sy * scale - n, vz = sz * scale - n;
       const o = p * ch;
-      const len = Math.sqrt(sx * sx + sy * sy + sz * sz);
+      const len = Math.sqrt(vx * vx + vy * vy + vz * vz);
       if (len > TEXEL_ZERO_LENGTH) {
         const inv = half / len;
-        out[o] = (sx * inv + half + 0.5) | 0;
-        out[o + 1] = (sy * inv + half + 0.5) | 0;
-        out[o + 2] = (sz * inv + half + 0.5) | 0;
+        out[o] = (vx * inv + half + 0.5) | 0;
+        out[o + 1] = (vy * inv + half + 0.5) | 0;
+        out[o + 2] = (vz * inv + half + 0.5) | 0;
       } else if (first >= 0) {
         out[o] = out[first]; out[o + 1] = out[first + 1]; out[o + 2] = out[first + 2];
       }
       state[p] = ringState;
       filled++;
     }
-    if (r === rings) break;
-    // The next ring: empty 8-neighbours of this one.
-    let nextCount = 0;
-    for (let i = 0; i < count; i++) {
-      const p = frontier[i];
-      const y = (p / width) | 0, x = p - y * width;
-      for (let dy = -1; dy <= 1; dy++) {
-        const yy = y + dy;
-        if (yy < 0 || yy >= height) continue;
-        for (let dx = -1; dx <= 1; dx++) {
-          const xx = x + dx;
-          if (xx < 0 || xx >= width) continue;
-          const q = yy * width + xx;
-          if (state[q] !== STATE_EMPTY) continue;
-          state[q] = STATE_QUEUED;
-          if (nextCount === next.length) { const g = new Int32Array(nextCount * 2); g.set(next); next = g; }
-          next[nextCount++] = q;
-        }
-      }
-    }
     const swap = frontier; frontier = next; next = swap;
     count = nextCount;
   }
-  // Texels queued for a ring that was never filled go back to empty.
-  for (let i = 0; i < count; i++) if (state[frontier[i]] === STATE_QUEUED) state[frontier[i]] = STATE_EMPTY;
   return filled;
 }
