@@ -154,8 +154,14 @@ export async function runConvertMap(o: Record<string, any>, io: CliIo): Promise<
       (s.fallbackTexels > 0 ? `, ${n(s.fallbackTexels)} fallback` : '') +
       (s.skippedTriangles > 0 ? `, ${n(s.skippedTriangles)} triangles skipped (UVs not finite or too large)` : '');
   }
-  const bytes = encodePng(result);
-  await inFileAsync(o.out, () => writeFilesAtomic([{ path: outAbs, bytes }]));
+  const showWrite = texels >= PROGRESS_MIN_TEXELS && progressWanted(!!io.stderrIsTTY, io.env, o);
+  if (showWrite) io.stderr(`\r\u001b[2Ktanframe convert-map: writing ${o.out}`);
+  try {
+    const bytes = encodePng(result);
+    await inFileAsync(o.out, () => writeFilesAtomic([{ path: outAbs, bytes }]));
+  } finally {
+    if (showWrite) io.stderr('\r\u001b[2K');
+  }
   const seconds = (performance.now() - started) / 1000;
   if (!o.quiet) io.stdout(`convert-map: ${o.in} -> ${o.out}: ${summary}, ${seconds.toFixed(2)} s\n`);
   return 0;

@@ -24,8 +24,15 @@ import { decode as fastPngDecode, convertIndexedToRgb } from 'fast-png';
 import { zlibSync } from 'fflate';
 import { TanframeError } from '../mesh/errors.js';
 
-/** Largest width or height accepted (memory and fixed-point rasterisation bounds). */
+/** Largest width or height accepted (the rasteriser's fixed-point bounds). */
 export const MAX_IMAGE_SIDE = 32768;
+
+/**
+ * Most texels accepted (16384 x 16384): a conversion holds the input, the output and a byte of
+ * state per texel, about 7 bytes per texel for 8-bit RGB (2 GB here), so larger images are
+ * refused before decoding rather than exhausting memory. A choice of ours.
+ */
+export const MAX_IMAGE_TEXELS = 16384 * 16384;
 
 /** A decoded PNG image, one layout for every colour type. */
 export interface PngImage {
@@ -78,6 +85,14 @@ export function decodePng(bytes: Uint8Array): PngImage {
     const what = kind === 'unknown' ? 'not a PNG image' : `${KIND_NAMES[kind]} images are not supported`;
     throw new TanframeError('unsupported-format', `${what} (convert-map reads and writes PNG only)`);
   }
+  // Size from IHDR (the first chunk, PNG specification 11.2.2) before anything is allocated.
+  if (bytes.length >= 24 && bytes[12] === 0x49 && bytes[13] === 0x48 && bytes[14] === 0x44 && bytes[15] === 0x52) {
+    const dv = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+    const w = dv.getUint32(16), h = dv.getUint32(20);
+    if (w > MAX_IMAGE_SIDE || h > MAX_IMAGE_SIDE || w * h > MAX_IMAGE_TEXELS) {
+      throw new TanframeError('too-large', `image is ${w} x ${h}; at most ${MAX_IMAGE_SIDE} texels per side and ${MAX_IMAGE_TEXELS} in all are supported`);
+    }
+  }
   let png: ReturnType<typeof fastPngDecode>;
   try {
     png = fastPngDecode(bytes);
@@ -86,9 +101,6 @@ export function decodePng(bytes: Uint8Array): PngImage {
     throw new TanframeError('read-failed', `damaged PNG: ${reason}`);
   }
   const { width, height } = png;
-  if (width > MAX_IMAGE_SIDE || height > MAX_IMAGE_SIDE) {
-    throw new TanframeError('too-large', `image is ${width} x ${height}; at most ${MAX_IMAGE_SIDE} texels per side are supported`);
-  }
   if (!(width > 0 && height > 0)) throw new TanframeError('read-failed', 'damaged PNG: zero width or height');
   if (png.palette) {
     const channels = png.palette[0]?.length === 4 ? 4 : 3;

@@ -214,3 +214,31 @@ describe('convert-map errors: one line, exit 2, nothing written', () => {
     expect(r.stderr).toBe(`tanframe: ${grey}: a grey image holds no normal directions: convert-map needs an RGB or RGBA PNG\n`);
   });
 });
+
+describe('convert-map progress', () => {
+  // A 2048 x 2048 map is the smallest that shows progress; two triangles keep it quick.
+  async function run(stderrIsTTY: boolean, env: Record<string, string>): Promise<{ code: number; stderr: string; stdout: string }> {
+    const { main } = await import('../../src/cli/main.js');
+    const { file } = await sphereAsset();
+    const inPath = path.join(tmp, 'big.png');
+    if (!fs.existsSync(inPath)) writePng(inPath, paint(2048, 2048, 8, () => [0, 0, 1]));
+    let stderr = '', stdout = '';
+    const code = await main(['convert-map', '--mesh', file, '--in', inPath, '--out', path.join(tmp, 'big_out.png'), '--from', 'tangent', '--to', 'object',
+      '--mesh-primitive', '0/1'], { stdout: (s) => { stdout += s; }, stderr: (s) => { stderr += s; }, cwd: repo, isTTY: stderrIsTTY, stderrIsTTY, env });
+    return { code, stderr, stdout };
+  }
+
+  it('shows progress on a terminal for large maps, and clears it before the summary', async () => {
+    const r = await run(true, {});
+    expect(r.code).toBe(0);
+    expect(r.stderr).toMatch(/tanframe convert-map: 100% of 2 triangles/);
+    expect(r.stderr).toMatch(/writing .*big_out\.png/);
+    expect(r.stderr.endsWith('\r\u001b[2K')).toBe(true);
+    expect(r.stdout.split('\n').filter(Boolean)).toHaveLength(1);
+  });
+
+  it('shows none off a terminal or in CI', async () => {
+    expect((await run(false, {})).stderr).toBe('');
+    expect((await run(true, { CI: 'true' })).stderr).toBe('');
+  });
+});

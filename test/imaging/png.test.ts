@@ -76,6 +76,19 @@ describe('PNG decoding follows the specification', () => {
     expect(() => decodePng(new TextEncoder().encode('hello'))).toThrow(/not a PNG image/);
   });
 
+  it('refuses an image too large to convert before decoding it', () => {
+    // A valid 1 x 1 PNG whose IHDR then claims 20000 x 20000 (CRC not rechecked: the size test
+    // comes first, so nothing of that size is ever allocated).
+    const bytes = writeRawPng({ width: 1, height: 1, colorType: 2, depth: 8, samples: [1, 2, 3] });
+    const dv = new DataView(bytes.buffer);
+    dv.setUint32(16, 20000);
+    dv.setUint32(20, 20000);
+    let err: unknown;
+    try { decodePng(bytes); } catch (e) { err = e; }
+    expect((err as TanframeError).code).toBe('too-large');
+    expect((err as TanframeError).message).toMatch(/^image is 20000 x 20000; at most 32768 texels per side and 268435456 in all/);
+  });
+
   it('reports a truncated PNG as damaged', () => {
     const bytes = writeRawPng({ width: 16, height: 16, colorType: 2, depth: 8, samples: samplesFor(768, 8) });
     let err: unknown;
