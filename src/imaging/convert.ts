@@ -302,6 +302,39 @@ function convertTriangles(
         enx0 = w0 * ec[4] + w1 * ec[11] + w2 * ec[18]; eny0 = w0 * ec[5] + w1 * ec[12] + w2 * ec[19];
         enz0 = w0 * ec[6] + w1 * ec[13] + w2 * ec[20];
       }
+      if (useDecode && !useEncode) {
+        // Tangent -> object, the common case, on its own: fewer live values in the loop.
+        for (let x = x0; x < x1; x++) {
+          const p = row + x;
+          const st = state[p];
+          if (st !== STATE_EMPTY) {
+            if (st === STATE_COVERED) { state[p] = STATE_CONFLICT; conflicts++; }
+            continue;
+          }
+          state[p] = STATE_COVERED;
+          covered++;
+          const k = x - x0;
+          const ip = p * inCh;
+          const vx = inp[ip] * inScale - 1, vy = (inp[ip + 1] * inScale - 1) * gIn, vz = inp[ip + 2] * inScale - 1;
+          const tx = dtx0 + k * dtxd, ty = dty0 + k * dtyd, tz = dtz0 + k * dtzd, sg = ds0 + k * dsd;
+          const nx = dnx0 + k * dnxd, ny = dny0 + k * dnyd, nz = dnz0 + k * dnzd;
+          const bx = sg * (ny * tz - nz * ty), by = sg * (nz * tx - nx * tz), bz = sg * (nx * ty - ny * tx);
+          let ox = vx * tx + vy * bx + vz * nx, oy = vx * ty + vy * by + vz * ny, oz = vx * tz + vy * bz + vz * nz;
+          let len2 = ox * ox + oy * oy + oz * oz;
+          if (!(len2 > TEXEL_ZERO_LENGTH * TEXEL_ZERO_LENGTH)) {
+            ox = nx; oy = ny; oz = nz;
+            len2 = ox * ox + oy * oy + oz * oz;
+            if (!(len2 > TEXEL_ZERO_LENGTH * TEXEL_ZERO_LENGTH)) { ox = 0; oy = 0; oz = 1; len2 = 1; }
+            fallback++;
+          }
+          const inv = outHalf / Math.sqrt(len2);
+          const o = p * outCh;
+          out[o] = (ox * inv + outHalf + 0.5) | 0;
+          out[o + 1] = (oy * gOut * inv + outHalf + 0.5) | 0;
+          out[o + 2] = (oz * inv + outHalf + 0.5) | 0;
+        }
+        continue;
+      }
       for (let x = x0; x < x1; x++) {
         const p = row + x;
         const st = state[p];
