@@ -111,6 +111,20 @@ describe('convert-map on the demo crate', () => {
   });
 });
 
+describe('convert-map on the demo dock plank (OBJ + MTL)', () => {
+  it("selects the OBJ group whose MTL names the map, and converts it", async () => {
+    const dock = path.join(repo, 'examples/harbor-props/dock');
+    const out = path.join(tmp, 'plank_object.png');
+    const r = await runCli(['convert-map', '--mesh', path.join(dock, 'dock_plank.obj'), '--in', path.join(dock, 'plank_normal.png'),
+      '--out', out, '--from', 'tangent', '--to', 'object'], repo);
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/tangent\/mikktspace -> object, 1 primitive \(using this image\)/);
+    const img = readPng(out);
+    expect([img.width, img.height]).toEqual([256, 64]);
+  });
+});
+
 describe('convert-map on an analytic sphere', () => {
   it('an exact object-space map becomes almost flat in tangent space, and comes back', async () => {
     const { file, mesh } = await sphereAsset();

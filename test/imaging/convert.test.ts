@@ -114,6 +114,9 @@ describe('tangent -> object: the decoding convention', () => {
   });
 });
 
+// Source: METHODS.md "Normal-map spaces" (the decoding convention; 8-bit encoding
+// c = round((x * 0.5 + 0.5) * 255), common practice) and the acceptance figures of the
+// convert-map issue (>= 99.9% of covered texels within one 8-bit step, two 16-bit steps).
 describe('round trips', () => {
   const meshes: [string, UvMesh][] = [
     ['sphere', sphere({ n: 24, uvOrigin: 'top-left' })],
@@ -190,6 +193,8 @@ describe('analytic sphere: an exact object-space map is almost flat in tangent s
 
 describe('green flip', () => {
   it('twice is the identity, bit for bit, alpha untouched', () => {
+    // Source: glTF 2.0 specification (normalTexture: green is +Y) and METHODS.md: a -Y map is
+    // converted by inverting its green channel, c' = max - c.
     for (const depth of [8, 16] as const) {
       const src = paint(33, 17, depth, bumps, true);
       const once = flipGreen(src);
