@@ -127,5 +127,16 @@ try {
   fs.rmSync(tmp, { recursive: true, force: true });
 }
 
+// 5. convert-map on a 4096 x 4096 map (its own script; its table is printed as it is).
+if (!process.argv.includes('--no-convert')) {
+  console.log('\nconvert-map (bench/convertMap.js):');
+  const size = quick ? '1024' : '4096';
+  const code = await new Promise((resolve) => {
+    const p = spawn(process.execPath, [path.join(here, 'convertMap.js'), '--size', size, '--runs', quick ? '1' : '3'], { cwd: repo, stdio: 'inherit' });
+    p.on('close', resolve);
+  });
+  results.convertMap = { size: Number(size), exit: code };
+}
+
 fs.writeFileSync(path.join(here, 'results.json'), JSON.stringify(results, null, 2) + '\n');
 console.log(`\nwrote ${path.relative(process.cwd(), path.join(here, 'results.json'))}`);
