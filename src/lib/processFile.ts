@@ -62,8 +62,15 @@ export function toReportError(err: unknown): { code: string; message: string } {
   return { code: 'internal', message: oneLine(message) };
 }
 
+/**
+ * Longest error message reported: a reason may quote a value from the file, and a hostile
+ * file can hold megabytes in one JSON string. Room for a long path and the reason. Our choice.
+ */
+const MAX_MESSAGE_LENGTH = 1000;
+
 function oneLine(s: string): string {
-  return s.replace(/\s*[\r\n]+\s*/g, ' ').trim();
+  const line = s.replace(/\s*[\r\n]+\s*/g, ' ').trim();
+  return line.length > MAX_MESSAGE_LENGTH ? `${line.slice(0, MAX_MESSAGE_LENGTH - 3)}...` : line;
 }
 
 /**

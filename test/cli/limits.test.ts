@@ -2,6 +2,8 @@
  * --max-triangles and --file-timeout on the command line: the limit refuses a file before it
  * is decoded (code 'too-large', exit 2) and both options refuse nonsense values.
  */
+import * as fs from 'node:fs';
+import * as os from 'node:os';
 import * as path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { runCli } from '../helpers/cli.js';
@@ -44,3 +46,27 @@ describe('--file-timeout', () => {
     }
   });
 });
+
+describe('failure messages', () => {
+  it('a reason quoting megabytes of hostile JSON is cut to one short line', async () => {
+    // The reader quotes the offending value; here it is a 2 MB string.
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'tanframe-msg-'));
+    try {
+      const json = JSON.parse(fs.readFileSync(path.join(repo, quad), 'utf8'));
+      json.accessors[0].componentType = 'x'.repeat(2_000_000);
+      fs.writeFileSync(path.join(dir, 'long.gltf'), JSON.stringify(json));
+      const r = await runCli(['audit', 'long.gltf', '--json'], dir);
+      expect(r.code).toBe(2);
+      const lines = r.stderr.split('\n').filter((l) => l !== '');
+      expect(lines).toHaveLength(1);
+      expect(lines[0]).toMatch(/^tanframe: long\.gltf: accessor 0: componentType "xxx/);
+      expect(lines[0].length).toBeLessThan(1100);
+      const error = JSON.parse(r.stdout).files[0].error;
+      expect(error.code).toBe('bad-accessor');
+      expect(error.message.length).toBeLessThanOrEqual(1000);
+    } finally {
+      fs.rmSync(dir, { recursive: true, force: true });
+    }
+  });
+});
+
