@@ -5,7 +5,7 @@
 import { assert } from '../mesh/errors.js';
 import type { FrameInput, FrameOptions, FrameResult } from '../mesh/types.js';
 import { computeLengyelTangents } from './lengyel.js';
-import { computeMikktspaceCorners } from './mikktspace.js';
+import { computeMikktspaceFrames } from './mikktspace.js';
 import { splitByCornerFrames } from './split.js';
 
 /**
@@ -63,9 +63,9 @@ export function computeFrames(input: FrameInput, options: FrameOptions = {}): Fr
       },
     };
   }
-  const corners = new Float32Array(triangleCount * 12);
-  const s = computeMikktspaceCorners(corners, indices, positions, normals, uvs, faces, vSign, triangleCount, vertexCount);
-  const split = splitByCornerFrames(corners, indices, normals, vertexCount);
+  const cornerFrame = new Uint32Array(triangleCount * 3);
+  const s = computeMikktspaceFrames(cornerFrame, indices, positions, normals, uvs, faces, vSign, triangleCount, vertexCount);
+  const split = splitByCornerFrames(cornerFrame, s.frames, indices, normals, vertexCount);
   return {
     tangents: split.tangents,
     indices: split.indices,

@@ -17,8 +17,11 @@ const ORIENT_PRESERVING = 1;
 const GROUP_WITH_ANY = 2;
 const DEGENERATE = 4;
 
-/** Counts a `mikktspace` solve reports. */
-export interface MikktspaceStats {
+/** What a `mikktspace` solve returns besides the corner-to-frame map. */
+export interface MikktspaceResult {
+  /** 4 floats per frame: xyz unit, w = +1 | -1 (length 4 * frameCount). */
+  frames: Float32Array;
+  frameCount: number;
   degenerateUvTriangles: number;
   mirroredTriangles: number;
   /** Corners whose frame came from the documented fallback. */
@@ -27,18 +30,35 @@ export interface MikktspaceStats {
   weldedVertices: number;
 }
 
+/** Growable store of frames, 4 floats each. */
+interface FrameStore {
+  data: Float32Array<ArrayBuffer>;
+  count: number;
+}
+
+/** Appends room for one frame and returns its id. */
+function newFrame(store: FrameStore): number {
+  if ((store.count + 1) * 4 > store.data.length) {
+    const grown = new Float32Array(store.data.length * 2);
+    grown.set(store.data);
+    store.data = grown;
+  }
+  return store.count++;
+}
+
 /**
- * Computes one tangent per triangle corner with the MikkTSpace method.
- * `out` receives 4 floats per corner (corner c = triangle c/3, slot c%3): xyz unit, w = +1 for
- * an orientation-preserving group, -1 otherwise. `vSign` is +1 when v grows upward and -1 for
- * glTF's top-left origin (negates every dv). `faces`, when given, holds an original face id per
- * triangle; consecutive triangles with the same id (a split quad) are forced to one orientation.
- * Corners with no usable direction get the documented fallback (see fallback.ts).
+ * Computes tangent frames with the MikkTSpace method: one frame per group, and for every
+ * triangle corner (corner c = triangle c/3, slot c%3) the id of its frame in `cornerFrame`.
+ * A frame is xyz unit, w = +1 for an orientation-preserving group, -1 otherwise. `vSign` is +1
+ * when v grows upward and -1 for glTF's top-left origin (negates every dv). `faces`, when
+ * given, holds an original face id per triangle; consecutive triangles with the same id (a
+ * split quad) are forced to one orientation. Corners with no usable direction get the
+ * documented fallback (see fallback.ts). Returns the frames and the counts.
  * Preconditions: indices hold 3 * triangleCount entries < vertexCount; normals are unit;
- * out.length >= 12 * triangleCount.
+ * cornerFrame.length >= 3 * triangleCount.
  */
-export function computeMikktspaceCorners(
-  out: Float32Array,
+export function computeMikktspaceFrames(
+  cornerFrame: Uint32Array,
   indices: Uint32Array,
   positions: Float32Array,
   normals: Float32Array,
@@ -47,7 +67,7 @@ export function computeMikktspaceCorners(
   vSign: number,
   triangleCount: number,
   vertexCount: number,
-): MikktspaceStats {
+): MikktspaceResult {
   const cornerCount = triangleCount * 3;
   // 1. Welding: connectivity comes from welded indices.
   const rep = new Uint32Array(vertexCount);
@@ -101,9 +121,31 @@ export function computeMikktspaceCorners(
       const dot0 = d2x * d1x + d2y * d1y + d2z * d1z;
       const dot1 = -(d1x * e12x + d1y * e12y + d1z * e12z);
       const dot2 = e12x * d2x + e12y * d2y + e12z * d2z;
-      cornerContribution(contrib, t * 3, ox, oy, oz, normals, a, d2x, d2y, d2z, d1x, d1y, d1z, l02, l01, dot0);
-      cornerContribution(contrib, t * 3 + 1, ox, oy, oz, normals, b, -d1x, -d1y, -d1z, e12x, e12y, e12z, l01, l12, dot1);
-      cornerContribution(contrib, t * 3 + 2, ox, oy, oz, normals, c, -e12x, -e12y, -e12z, -d2x, -d2y, -d2z, l12, l02, dot2);
+      // One loop over the corners (no call: doubles passed to a non-inlined function are boxed).
+      for (let k = 0; k < 3; k++) {
+        let v = a, ax = d2x, ay = d2y, az = d2z, bx = d1x, by = d1y, bz = d1z, aa = l02, bb = l01, ab = dot0;
+        if (k === 1) {
+          v = b; ax = -d1x; ay = -d1y; az = -d1z; bx = e12x; by = e12y; bz = e12z; aa = l01; bb = l12; ab = dot1;
+        } else if (k === 2) {
+          v = c; ax = -e12x; ay = -e12y; az = -e12z; bx = -d2x; by = -d2y; bz = -d2z; aa = l12; bb = l02; ab = dot2;
+        }
+        // Corner contribution: the derivative projected on the plane of v's normal n and
+        // normalised, times the angle between the corner's two edges projected on the same
+        // plane. With unit n: |a'|^2 = |a|^2 - (n.a)^2 and a'.b' = a.b - (n.a)(n.b). A projected
+        // edge of zero length gives cos 0, as in the method.
+        const nx = normals[v * 3], ny = normals[v * 3 + 1], nz = normals[v * 3 + 2];
+        const d = nx * ox + ny * oy + nz * oz;
+        let px = ox - nx * d, py = oy - ny * d, pz = oz - nz * d;
+        const pl = Math.sqrt(px * px + py * py + pz * pz);
+        if (pl > MIKK_NOT_ZERO) { px /= pl; py /= pl; pz /= pl; }
+        const na = nx * ax + ny * ay + nz * az, nb = nx * bx + ny * by + nz * bz;
+        const la2 = aa - na * na, lb2 = bb - nb * nb;
+        let cos = la2 > PROJECTED_ZERO * aa && lb2 > PROJECTED_ZERO * bb ? (ab - na * nb) / Math.sqrt(la2 * lb2) : 0;
+        if (cos > 1) cos = 1; else if (cos < -1) cos = -1;
+        const angle = Math.acos(cos);
+        const o = (t * 3 + k) * 3;
+        contrib[o] = angle * px; contrib[o + 1] = angle * py; contrib[o + 2] = angle * pz;
+      }
     }
   }
 
@@ -126,17 +168,18 @@ export function computeMikktspaceCorners(
   const neighbour = buildNeighbours(wi, flags, triangleCount, vertexCount);
 
   // 4-6. Groups at each welded vertex, evaluated as soon as they are complete.
-  const cornerGroup = new Uint32Array(cornerCount).fill(NONE);
+  const cornerGroup = cornerFrame;
+  cornerGroup.fill(NONE, 0, cornerCount);
+  const store: FrameStore = { data: new Float32Array(4 * Math.max(16, vertexCount + (vertexCount >>> 3))), count: 0 };
   let stack = new Uint32Array(1024);
   let members = new Uint32Array(64);
-  let groupCount = 0;
   let assigned = 0;
   let fallbackCorners = 0;
   for (let f = 0; f < triangleCount; f++) {
     if (flags[f] & GROUP_WITH_ANY) continue;
     for (let i = 0; i < 3; i++) {
       if (cornerGroup[f * 3 + i] !== NONE) continue;
-      const g = groupCount++;
+      const g = newFrame(store);
       const vrep = wi[f * 3 + i];
       const orient = flags[f] & ORIENT_PRESERVING;
       cornerGroup[f * 3 + i] = g;
@@ -180,7 +223,7 @@ export function computeMikktspaceCorners(
         if (r !== NONE) stack[sp++] = r;
         if (l !== NONE) stack[sp++] = l;
       }
-      if (!evaluateGroup(out, members, memberCount, vrep, orient !== 0, contrib, normals)) {
+      if (!evaluateGroup(store.data, g, members, memberCount, vrep, orient !== 0, contrib, normals)) {
         fallbackCorners += memberCount;
       }
     }
@@ -188,39 +231,48 @@ export function computeMikktspaceCorners(
 
   // Corners of non-degenerate triangles that joined no group (isolated "group with any"),
   // then degenerate triangles; both passes are skipped when there is nothing to do.
-  if (assigned === (triangleCount - degenerateTriangles) * 3 && degenerateTriangles === 0) {
-    return { degenerateUvTriangles: degenerateUv, mirroredTriangles: mirrored, fallbackCorners, weldedVertices };
-  }
-  const firstGood = new Uint32Array(vertexCount).fill(NONE);
-  for (let t = 0; t < triangleCount; t++) {
-    if (flags[t] & DEGENERATE) continue;
-    for (let i = 0; i < 3; i++) {
-      const c = t * 3 + i;
-      if (cornerGroup[c] === NONE) {
-        const v = wi[c];
-        writeFallbackTangent(out, c * 4, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
-        fallbackCorners++;
-      }
-      if (firstGood[wi[c]] === NONE) firstGood[wi[c]] = c;
-    }
-  }
-  // Degenerate triangles take the frame the same welded vertex has in a good triangle.
-  for (let t = 0; t < triangleCount; t++) {
-    if (!(flags[t] & DEGENERATE)) continue;
-    for (let i = 0; i < 3; i++) {
-      const c = t * 3 + i;
-      const src = firstGood[wi[c]];
-      if (src !== NONE) {
-        out[c * 4] = out[src * 4]; out[c * 4 + 1] = out[src * 4 + 1];
-        out[c * 4 + 2] = out[src * 4 + 2]; out[c * 4 + 3] = out[src * 4 + 3];
-      } else {
-        const v = wi[c];
-        writeFallbackTangent(out, c * 4, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
-        fallbackCorners++;
+  if (!(assigned === (triangleCount - degenerateTriangles) * 3 && degenerateTriangles === 0)) {
+    const firstGood = new Uint32Array(vertexCount).fill(NONE);
+    for (let t = 0; t < triangleCount; t++) {
+      if (flags[t] & DEGENERATE) continue;
+      for (let i = 0; i < 3; i++) {
+        const c = t * 3 + i;
+        if (cornerGroup[c] === NONE) {
+          const v = wi[c];
+          const g = newFrame(store);
+          writeFallbackTangent(store.data, g * 4, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
+          cornerGroup[c] = g;
+          fallbackCorners++;
+        }
+        if (firstGood[wi[c]] === NONE) firstGood[wi[c]] = c;
       }
     }
+    // Degenerate triangles take the frame the same welded vertex has in a good triangle.
+    for (let t = 0; t < triangleCount; t++) {
+      if (!(flags[t] & DEGENERATE)) continue;
+      for (let i = 0; i < 3; i++) {
+        const c = t * 3 + i;
+        const src = firstGood[wi[c]];
+        if (src !== NONE) {
+          cornerGroup[c] = cornerGroup[src];
+        } else {
+          const v = wi[c];
+          const g = newFrame(store);
+          writeFallbackTangent(store.data, g * 4, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
+          cornerGroup[c] = g;
+          fallbackCorners++;
+        }
+      }
+    }
   }
-  return { degenerateUvTriangles: degenerateUv, mirroredTriangles: mirrored, fallbackCorners, weldedVertices };
+  return {
+    frames: store.data.subarray(0, store.count * 4),
+    frameCount: store.count,
+    degenerateUvTriangles: degenerateUv,
+    mirroredTriangles: mirrored,
+    fallbackCorners,
+    weldedVertices,
+  };
 }
 
 /** Unsigned UV area of triangle t (welded corners). */
@@ -275,60 +327,26 @@ function buildNeighbours(wi: Uint32Array, flags: Uint8Array, triangleCount: numb
 }
 
 /**
- * Writes the contribution of corner `c` at welded vertex `v` of a triangle with normalised
- * signed derivative (ox, oy, oz): the derivative projected on the plane of v's normal n and
- * normalised, times the angle between the corner's two edges a and b projected on the same
- * plane. With unit n the projections need only n.a and n.b: |a'|^2 = |a|^2 - (n.a)^2 and
- * a'.b' = a.b - (n.a)(n.b). A projected edge of zero length gives cos 0, as in the method.
- */
-function cornerContribution(
-  contrib: Float32Array, c: number, ox: number, oy: number, oz: number, normals: Float32Array, v: number,
-  ax: number, ay: number, az: number, bx: number, by: number, bz: number, aa: number, bb: number, ab: number,
-): void {
-  const nx = normals[v * 3], ny = normals[v * 3 + 1], nz = normals[v * 3 + 2];
-  const d = nx * ox + ny * oy + nz * oz;
-  let px = ox - nx * d, py = oy - ny * d, pz = oz - nz * d;
-  const pl = Math.sqrt(px * px + py * py + pz * pz);
-  if (pl > MIKK_NOT_ZERO) { px /= pl; py /= pl; pz /= pl; }
-  const na = nx * ax + ny * ay + nz * az, nb = nx * bx + ny * by + nz * bz;
-  const la2 = aa - na * na, lb2 = bb - nb * nb;
-  let cos = la2 > PROJECTED_ZERO * aa && lb2 > PROJECTED_ZERO * bb ? (ab - na * nb) / Math.sqrt(la2 * lb2) : 0;
-  if (cos > 1) cos = 1; else if (cos < -1) cos = -1;
-  const angle = Math.acos(cos);
-  contrib[c * 3] = angle * px; contrib[c * 3 + 1] = angle * py; contrib[c * 3 + 2] = angle * pz;
-}
-
-/**
  * Sums the corner contributions of the group's members at welded vertex `v` and writes the
- * normalised frame to every member corner. Returns false when nothing contributed (the
- * members then hold the fallback with the group's sign).
+ * normalised frame with the group's sign to frame `g` of `frames`. Returns false when nothing
+ * contributed (the frame is then the fallback with the group's sign).
  */
 function evaluateGroup(
-  out: Float32Array, members: Uint32Array, memberCount: number, v: number, orient: boolean,
+  frames: Float32Array, g: number, members: Uint32Array, memberCount: number, v: number, orient: boolean,
   contrib: Float32Array, normals: Float32Array,
 ): boolean {
-  const nx = normals[v * 3], ny = normals[v * 3 + 1], nz = normals[v * 3 + 2];
   let sx = 0, sy = 0, sz = 0;
   for (let m = 0; m < memberCount; m++) {
     const c = members[m] * 3;
     sx += contrib[c]; sy += contrib[c + 1]; sz += contrib[c + 2];
   }
   const sl = Math.sqrt(sx * sx + sy * sy + sz * sz);
-  const w = orient ? 1 : -1;
+  const o = g * 4;
   if (sl > MIKK_NOT_ZERO && Number.isFinite(sl)) {
-    const tx = sx / sl, ty = sy / sl, tz = sz / sl;
-    for (let m = 0; m < memberCount; m++) {
-      const o = members[m] * 4;
-      out[o] = tx; out[o + 1] = ty; out[o + 2] = tz; out[o + 3] = w;
-    }
+    frames[o] = sx / sl; frames[o + 1] = sy / sl; frames[o + 2] = sz / sl; frames[o + 3] = orient ? 1 : -1;
     return true;
   }
-  const c0 = members[0] * 4;
-  writeFallbackTangent(out, c0, nx, ny, nz);
-  out[c0 + 3] = w;
-  for (let m = 1; m < memberCount; m++) {
-    const o = members[m] * 4;
-    out[o] = out[c0]; out[o + 1] = out[c0 + 1]; out[o + 2] = out[c0 + 2]; out[o + 3] = w;
-  }
+  writeFallbackTangent(frames, o, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
+  frames[o + 3] = orient ? 1 : -1;
   return false;
 }
