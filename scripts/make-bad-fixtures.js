@@ -20,6 +20,7 @@
 import * as fs from 'node:fs';
 import * as path from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { PNG_SIGNATURE, pngChunk } from './png-chunks.js';
 
 const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 const fixturesDir = path.resolve(process.argv[2] ?? path.join(repoRoot, 'fixtures'));
@@ -29,30 +30,6 @@ const valuesDir = path.join(fixturesDir, 'values');
 // ---------------------------------------------------------------------------------------------
 // A tiny PNG (1x1 RGB, the flat tangent-space normal 128,128,255) for the normal texture.
 
-const CRC_TABLE = (() => {
-  const t = new Uint32Array(256);
-  for (let n = 0; n < 256; n++) {
-    let c = n;
-    for (let k = 0; k < 8; k++) c = c & 1 ? 0xedb88320 ^ (c >>> 1) : c >>> 1;
-    t[n] = c >>> 0;
-  }
-  return t;
-})();
-
-function crc32(bytes) {
-  let c = 0xffffffff;
-  for (let i = 0; i < bytes.length; i++) c = CRC_TABLE[(c ^ bytes[i]) & 0xff] ^ (c >>> 8);
-  return (c ^ 0xffffffff) >>> 0;
-}
-
-function pngChunk(type, data) {
-  const out = Buffer.alloc(12 + data.length);
-  out.writeUInt32BE(data.length, 0);
-  out.write(type, 4, 'latin1');
-  Buffer.from(data).copy(out, 8);
-  out.writeUInt32BE(crc32(out.subarray(4, 8 + data.length)), 8 + data.length);
-  return out;
-}
 
 /** A zlib stream holding `raw` in one stored (uncompressed) deflate block. Source: RFC 1950, RFC 1951 3.2.4. */
 function zlibStored(raw) {
@@ -80,7 +57,7 @@ function flatNormalPng() {
   ihdr[8] = 8; // bit depth
   ihdr[9] = 2; // truecolour RGB
   return Buffer.concat([
-    Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]),
+    PNG_SIGNATURE,
     pngChunk('IHDR', ihdr),
     pngChunk('IDAT', zlibStored([0, 128, 128, 255])), // filter 0, one pixel
     pngChunk('IEND', Buffer.alloc(0)),

@@ -17,6 +17,7 @@ import { deflateSync } from 'node:zlib';
 import * as fs from 'node:fs';
 import * as path from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { PNG_SIGNATURE, pngChunk } from './png-chunks.js';
 
 const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 const outDir = path.resolve(process.argv[2] ?? path.join(repoRoot, 'examples', 'harbor-props'));
@@ -60,30 +61,6 @@ function noise1(x, seed) {
 // ---------------------------------------------------------------------------------------------
 // PNG encoder (8-bit RGB, filter type 0 on every row)
 
-const CRC_TABLE = (() => {
-  const t = new Uint32Array(256);
-  for (let n = 0; n < 256; n++) {
-    let c = n;
-    for (let k = 0; k < 8; k++) c = c & 1 ? 0xedb88320 ^ (c >>> 1) : c >>> 1;
-    t[n] = c >>> 0;
-  }
-  return t;
-})();
-
-function crc32(bytes) {
-  let c = 0xffffffff;
-  for (let i = 0; i < bytes.length; i++) c = CRC_TABLE[(c ^ bytes[i]) & 0xff] ^ (c >>> 8);
-  return (c ^ 0xffffffff) >>> 0;
-}
-
-function pngChunk(type, data) {
-  const out = Buffer.alloc(12 + data.length);
-  out.writeUInt32BE(data.length, 0);
-  out.write(type, 4, 'latin1');
-  Buffer.from(data).copy(out, 8);
-  out.writeUInt32BE(crc32(out.subarray(4, 8 + data.length)), 8 + data.length);
-  return out;
-}
 
 /** Encodes width x height 8-bit RGB pixels (row-major, top row first) as a PNG file. */
 function encodePng(width, height, rgb) {
@@ -102,7 +79,7 @@ function encodePng(width, height, rgb) {
   ihdr[11] = 0; // filter method 0
   ihdr[12] = 0; // no interlace
   return Buffer.concat([
-    Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]),
+    PNG_SIGNATURE,
     pngChunk('IHDR', ihdr),
     pngChunk('IDAT', deflateSync(raw, { level: 9 })),
     pngChunk('IEND', Buffer.alloc(0)),
