@@ -1,6 +1,8 @@
 // tanframe benchmarks (plain Node on dist/; `npm run bench` builds first). Prints tables and
 // writes bench/results.json. Speed goals live here, never in unit tests.
-//   node bench/run.js [--quick]     --quick: smaller sizes and fewer runs (a smoke run)
+//   node --expose-gc bench/run.js [--quick]     --quick: smaller sizes and fewer runs (a smoke run)
+// With --expose-gc a full collection runs before every timed call, so no method pays for the
+// garbage another one left (three's per-vertex objects especially).
 import { spawn } from 'node:child_process';
 import * as fs from 'node:fs';
 import * as os from 'node:os';
@@ -59,6 +61,7 @@ for (const kind of MESHES) {
     for (let r = 0; r < runs; r++) {
       for (let k = 0; k < names.length; k++) {
         const n = names[(r + k) % names.length]; // rotate the order each round
+        if (globalThis.gc) globalThis.gc(); // each run starts without the others' garbage
         const t = performance.now();
         tasks[n]();
         times[n].push(performance.now() - t);
