@@ -46,6 +46,9 @@ export interface UvOverlapStats {
  *   (the same three UV points, bit for bit, in any order) is intentional stacking, as when
  *   the left and right halves of a symmetric model share one set of UVs, and is skipped.
  *   Partial overlaps are reported, including stacked shells triangulated differently.
+ *   Exact copies are grouped first (a hash of the sorted UV points), so only one triangle of
+ *   each group enters the grid and thousands of stacked copies cost linear time; every copy
+ *   takes its group's verdict.
  * - Degenerate-UV triangles (UV_DEGENERATE_RELATIVE) and triangles with a NaN or infinite UV
  *   have no area and take no part (they are reported by findDegenerateUvTriangles).
  * Broad phase: a uniform grid over the UV bounding box of the usable triangles, cell size the
@@ -97,6 +100,16 @@ export function findUvOverlaps(
     usable[t] = 1;
     usableCount++;
   }
+  // Stacked copies (instanced cards, shared mirror halves): a triangle whose three UV points
+  // coincide with an earlier usable triangle's joins that triangle's class and stays out of
+  // the grid; pairs within a class are intentional stacking, and every copy takes its class's
+  // verdict at the end. This keeps thousands of stacked copies from filling one cell.
+  const classOf = stackedClasses(indices, uvs, usable, triangleCount, usableCount);
+  let stacked = 0;
+  for (let t = 0; t < triangleCount; t++) {
+    if (usable[t] && classOf[t] !== t) { usable[t] = 0; stacked++; }
+  }
+  usableCount -= stacked;
   if (stats) { stats.cellsU = 0; stats.cellsV = 0; stats.gridTriangles = usableCount; stats.cellPairs = 0; stats.exactTests = 0; }
   if (usableCount < 2) return findingFromMarks(flags, triangleCount);
 
@@ -210,7 +223,58 @@ export function findUvOverlaps(
     }
   }
   if (stats) { stats.cellsU = nu; stats.cellsV = nv; stats.cellPairs = cellPairs; stats.exactTests = exactTests; }
+  if (stacked > 0) {
+    for (let t = 0; t < triangleCount; t++) if (classOf[t] !== t) flags[t] = flags[classOf[t]];
+  }
   return findingFromMarks(flags, triangleCount);
+}
+
+/** Writes the UV points of triangle t into out[0..5], sorted by u then v. */
+function sortedPoints(out: Float64Array, indices: Uint32Array, uvs: Float32Array, t: number): void {
+  let a = indices[t * 3] * 2, b = indices[t * 3 + 1] * 2, c = indices[t * 3 + 2] * 2;
+  let x: number;
+  if (uvs[b] < uvs[a] || (uvs[b] === uvs[a] && uvs[b + 1] < uvs[a + 1])) { x = a; a = b; b = x; }
+  if (uvs[c] < uvs[b] || (uvs[c] === uvs[b] && uvs[c + 1] < uvs[b + 1])) { x = b; b = c; c = x; }
+  if (uvs[b] < uvs[a] || (uvs[b] === uvs[a] && uvs[b + 1] < uvs[a + 1])) { x = a; a = b; b = x; }
+  out[0] = uvs[a]; out[1] = uvs[a + 1]; out[2] = uvs[b]; out[3] = uvs[b + 1]; out[4] = uvs[c]; out[5] = uvs[c + 1];
+}
+
+/**
+ * For each usable triangle, the first usable triangle with the same three UV points (in any
+ * order, compared as numbers so -0 equals 0); itself when it is the first. Other entries are
+ * the triangle itself. Hash on the sorted points, open addressing.
+ */
+function stackedClasses(indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, triangleCount: number, usableCount: number): Uint32Array {
+  const classOf = new Uint32Array(triangleCount);
+  for (let t = 0; t < triangleCount; t++) classOf[t] = t;
+  let size = 16;
+  while (size < usableCount * 2) size <<= 1;
+  const mask = size - 1;
+  const table = new Uint32Array(size).fill(0xffffffff);
+  const p = new Float64Array(6), q = new Float64Array(6);
+  const bits = new Float32Array(1), word = new Uint32Array(bits.buffer);
+  for (let t = 0; t < triangleCount; t++) {
+    if (!usable[t]) continue;
+    sortedPoints(p, indices, uvs, t);
+    let h = 0x811c9dc5;
+    for (let k = 0; k < 6; k++) {
+      bits[0] = p[k] === 0 ? 0 : p[k]; // -0 hashes as 0
+      h = Math.imul(h ^ word[0], 0x9e3779b1);
+      h ^= h >>> 15;
+    }
+    let slot = h & mask;
+    for (;;) {
+      const r = table[slot];
+      if (r === 0xffffffff) { table[slot] = t; break; }
+      sortedPoints(q, indices, uvs, r);
+      if (p[0] === q[0] && p[1] === q[1] && p[2] === q[2] && p[3] === q[3] && p[4] === q[4] && p[5] === q[5]) {
+        classOf[t] = r;
+        break;
+      }
+      slot = (slot + 1) & mask;
+    }
+  }
+  return classOf;
 }
 
 /**

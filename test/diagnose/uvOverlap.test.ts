@@ -242,4 +242,23 @@ describe('trianglesOverlap', () => {
       expect(f(p, rev(q))).toBe(expected);
     }
   });
+
+  it('keepsStackedCopiesOutOfTheGridAndGivesEveryCopyItsClassVerdict', () => {
+    // 2000 stacked copies of one card triangle A (instanced foliage shares its UVs), plus a
+    // triangle B that partly overlaps A. Copies of A among themselves are stacking, not
+    // overlap; B overlaps every copy, so all 2001 are reported. Only A's first copy and B
+    // enter the grid.
+    //   A = (0,0) (1,0) (0,1)      B = (0.4,0.4) (1.2,0.4) (0.4,1.2)
+    const list: number[] = [];
+    for (let i = 0; i < 2000; i++) list.push(...(i % 2 ? [1, 0, 0, 1, 0, 0] : [0, 0, 1, 0, 0, 1]));
+    list.push(0.4, 0.4, 1.2, 0.4, 0.4, 1.2);
+    const m = soup(list);
+    const stats = newStats();
+    const f = findUvOverlaps(m.indices, m.uvs, m.triangleCount, null, stats);
+    expect(f.count).toBe(2001);
+    expect(stats.gridTriangles).toBe(2);
+    // Without B nothing overlaps.
+    const alone = soup(list.slice(0, 2000 * 6));
+    expect(findUvOverlaps(alone.indices, alone.uvs, alone.triangleCount).count).toBe(0);
+  });
 });
