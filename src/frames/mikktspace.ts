@@ -284,6 +284,14 @@ function uvArea(uvs: Float32Array, wi: Uint32Array, t: number, vSign: number): n
   return Math.abs(t21x * t31y - t21y * t31x) * 0.5;
 }
 
+/** Rows of the edge table longer than this are sorted and bisected instead of scanned. */
+const LONG_ROW = 32;
+
+/** The corner after corner c in its triangle. */
+function nextCorner(c: number): number {
+  return c % 3 < 2 ? c + 1 : c - 2;
+}
+
 /**
  * Pairs directed edges a->b with b->a of another triangle: returns, per corner c (edge from
  * corner c to the next corner), the neighbouring triangle or NONE. Degenerate triangles take
@@ -303,6 +311,16 @@ function buildNeighbours(wi: Uint32Array, flags: Uint8Array, triangleCount: numb
     if (flags[t] & DEGENERATE) continue;
     for (let i = 0; i < 3; i++) edges[fill[wi[t * 3 + i]]++] = t * 3 + i;
   }
+  // Rows longer than LONG_ROW (a vertex shared by many triangles, as at the centre of a
+  // large fan) are sorted by target vertex, then corner, and searched by bisection, so no
+  // vertex costs more than O(k log k) however many triangles meet there.
+  for (let v = 0; v < vertexCount; v++) {
+    const s0 = start[v], s1 = start[v + 1];
+    if (s1 - s0 <= LONG_ROW) continue;
+    const row = Array.from(edges.subarray(s0, s1));
+    row.sort((x, y) => wi[nextCorner(x)] - wi[nextCorner(y)] || x - y);
+    edges.set(row, s0);
+  }
   const neighbour = new Uint32Array(cornerCount).fill(NONE);
   for (let t = 0; t < triangleCount; t++) {
     if (flags[t] & DEGENERATE) continue;
@@ -311,12 +329,24 @@ function buildNeighbours(wi: Uint32Array, flags: Uint8Array, triangleCount: numb
       if (neighbour[c] !== NONE) continue;
       const a = wi[c], b = wi[t * 3 + (i < 2 ? i + 1 : 0)];
       const end = start[b + 1];
-      for (let k = start[b]; k < end; k++) {
+      let k = start[b];
+      if (end - k > LONG_ROW) {
+        // First entry whose target is >= a.
+        let hi = end;
+        while (k < hi) {
+          const mid = (k + hi) >>> 1;
+          if (wi[nextCorner(edges[mid])] < a) k = mid + 1; else hi = mid;
+        }
+      }
+      for (; k < end; k++) {
         const e = edges[k];
         const u = (e / 3) | 0;
-        if (u <= t) continue;
-        const next = e - u * 3 < 2 ? e + 1 : e - 2;
-        if (wi[next] !== a || neighbour[e] !== NONE) continue;
+        const target = wi[e - u * 3 < 2 ? e + 1 : e - 2];
+        if (target !== a) {
+          if (end - start[b] > LONG_ROW) break; // sorted row: past the run of target a
+          continue;
+        }
+        if (u <= t || neighbour[e] !== NONE) continue;
         neighbour[c] = u;
         neighbour[e] = t;
         break;

@@ -28,6 +28,16 @@ export function weldVertices(
   const table = new Uint32Array(size).fill(EMPTY);
   let distinct = 0;
   for (let v = 0; v < vertexCount; v++) {
+    // A NaN equals nothing, not even itself: such a vertex welds to no other and stays out of
+    // the table (many NaN vertices would otherwise pile up in one probe run).
+    const px = positions[v * 3], py = positions[v * 3 + 1], pz = positions[v * 3 + 2];
+    const nx = normals[v * 3], ny = normals[v * 3 + 1], nz = normals[v * 3 + 2];
+    const tu = uvs[v * 2], tv = uvs[v * 2 + 1];
+    if (px !== px || py !== py || pz !== pz || nx !== nx || ny !== ny || nz !== nz || tu !== tu || tv !== tv) {
+      out[v] = v;
+      distinct++;
+      continue;
+    }
     // Canonical bits: -0 (0x80000000) reads as +0.
     let p0 = pBits[v * 3], p1 = pBits[v * 3 + 1], p2 = pBits[v * 3 + 2];
     let n0 = nBits[v * 3], n1 = nBits[v * 3 + 1], n2 = nBits[v * 3 + 2];
@@ -76,6 +86,8 @@ export function weldPositions(out: Uint32Array, positions: Float32Array, vertexC
   const table = new Uint32Array(size).fill(EMPTY);
   let distinct = 0;
   for (let v = 0; v < vertexCount; v++) {
+    const px = positions[v * 3], py = positions[v * 3 + 1], pz = positions[v * 3 + 2];
+    if (px !== px || py !== py || pz !== pz) { out[v] = v; distinct++; continue; } // NaN welds to nothing
     let p0 = bits[v * 3], p1 = bits[v * 3 + 1], p2 = bits[v * 3 + 2];
     if (p0 === 0x80000000) p0 = 0; if (p1 === 0x80000000) p1 = 0; if (p2 === 0x80000000) p2 = 0;
     let h = Math.imul(p0, 0x9e3779b1) ^ Math.imul(p1, 0x85ebca77) ^ Math.imul(p2, 0xc2b2ae3d);

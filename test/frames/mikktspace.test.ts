@@ -135,4 +135,36 @@ describe('mikktspace', () => {
     expect(r.stats.splitVertices).toBe(0);
     expect(Array.from(r.sourceVertex)).toEqual([0, 1, 2, 3, 4, 5, 6, 7, 8]);
   });
+
+  it('largeFanHubIsOneGroup', () => {
+    // 100 triangles around hub vertex 0 on a cone, every normal tilted to (0.6, 0, 0.8), with
+    // a bent UV mapping (u = x + 0.4 y^2, v = y + 0.4 x^2) so each triangle's projected dP/du
+    // differs. The hub's corners are connected through shared edges (more than the 32 entries
+    // at which the edge table sorts and bisects a vertex's row), so they form one group: the
+    // hub is not split, and its frame is the average, unlike any single triangle's.
+    //        i+1
+    //       /
+    //   0 ---- i      (hub 0 at the apex, rim vertices 1..101)
+    const k = 100;
+    const positions = new Float32Array((k + 2) * 3), uvs = new Float32Array((k + 2) * 2);
+    positions.set([0, 0, 0.5], 0);
+    uvs.set([0.5, 0.5], 0);
+    for (let i = 0; i <= k; i++) {
+      const a = (i / k) * 1.5 * Math.PI;
+      positions.set([Math.cos(a), Math.sin(a), -0.5], (i + 1) * 3);
+      uvs.set([0.5 + 0.4 * (Math.cos(a) + 0.4 * Math.sin(a) ** 2), 0.5 + 0.4 * (Math.sin(a) + 0.4 * Math.cos(a) ** 2)], (i + 1) * 2);
+    }
+    const normals = new Float32Array(Array.from({ length: k + 2 }, () => [0.6, 0, 0.8]).flat());
+    const indices = new Uint32Array(k * 3);
+    for (let i = 0; i < k; i++) indices.set([0, i + 1, i + 2], i * 3);
+    const r = computeFrames({ positions, normals, uvs, indices }, { uvOrigin: 'bottom-left' });
+    expect(Array.from(r.sourceVertex).filter((v) => v === 0).length).toBe(1);
+    const hub = Array.from(r.tangents.subarray(0, 3));
+    const one = computeFrames(
+      { positions, normals, uvs, indices: indices.slice(0, 3) }, { uvOrigin: 'bottom-left' },
+    );
+    const single = Array.from(one.tangents.subarray(0, 3));
+    const cos = hub[0] * single[0] + hub[1] * single[1] + hub[2] * single[2];
+    expect(cos).toBeLessThan(0.9999);
+  });
 });
