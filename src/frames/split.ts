@@ -25,6 +25,55 @@ function grown(a: Uint32Array<ArrayBuffer>, length: number, fill: number): Uint3
 }
 
 /**
+ * Output vertices by (source vertex, frame bits): open addressing over output vertex ids,
+ * doubled at half load. Keeps a vertex with many distinct frames (the hub of a fan of mirrored
+ * triangles) linear instead of walking a list of its variants for every corner.
+ */
+class VariantTable {
+  private table = new Uint32Array(1024).fill(NONE);
+  private entries = 0;
+  constructor(private readonly bits: Uint32Array) {}
+
+  private hash(v: number, g: number): number {
+    const b = this.bits;
+    let h = Math.imul(v, 0x9e3779b1) ^ Math.imul(b[g * 4], 0x85ebca77);
+    h = Math.imul(h ^ (h >>> 15), 0x27d4eb2f) ^ Math.imul(b[g * 4 + 1], 0xc2b2ae3d);
+    h = Math.imul(h ^ (h >>> 13), 0x165667b1) ^ Math.imul(b[g * 4 + 2], 0xd3a2646c) ^ Math.imul(b[g * 4 + 3], 0xfd7046c5);
+    return (h ^ (h >>> 16)) >>> 0;
+  }
+
+  /** The output vertex of source `v` whose frame equals frame `f` bit for bit, or NONE. */
+  find(v: number, f: number, frameOf: Uint32Array, source: Uint32Array): number {
+    const b = this.bits, t = this.table, mask = t.length - 1;
+    for (let slot = this.hash(v, f) & mask; ; slot = (slot + 1) & mask) {
+      const o = t[slot];
+      if (o === NONE) return NONE;
+      if (source[o] !== v) continue;
+      const g = frameOf[o];
+      if (g === f || (b[g * 4] === b[f * 4] && b[g * 4 + 1] === b[f * 4 + 1] && b[g * 4 + 2] === b[f * 4 + 2] && b[g * 4 + 3] === b[f * 4 + 3])) return o;
+    }
+  }
+
+  /** Adds output vertex `o` (its source and frame already set). */
+  insert(o: number, frameOf: Uint32Array, source: Uint32Array): void {
+    if ((this.entries + 1) * 2 > this.table.length) {
+      const old = this.table;
+      this.table = new Uint32Array(old.length * 2).fill(NONE);
+      for (let i = 0; i < old.length; i++) if (old[i] !== NONE) this.place(old[i], frameOf, source);
+    }
+    this.place(o, frameOf, source);
+    this.entries++;
+  }
+
+  private place(o: number, frameOf: Uint32Array, source: Uint32Array): void {
+    const t = this.table, mask = t.length - 1;
+    let slot = this.hash(source[o], frameOf[o]) & mask;
+    while (t[slot] !== NONE) slot = (slot + 1) & mask;
+    t[slot] = o;
+  }
+}
+
+/**
  * Re-indexes a triangle list so that each output vertex carries one frame. Corner c uses frame
  * `cornerFrame[c]` of `frames` (4 floats each). For input vertex v, the first distinct frame
  * among its corners (in corner order) keeps index v; each further distinct frame (compared bit
@@ -45,10 +94,12 @@ export function splitByCornerFrames(
   const cornerCount = indices.length;
   const bits = new Uint32Array(frames.buffer, frames.byteOffset, frames.length);
   let capacity = vertexCount + Math.min(cornerCount, Math.max(1024, vertexCount >>> 3));
-  // Per output vertex: its frame id, the next variant of the same source, the source.
+  // Per output vertex: its frame id and its source vertex.
   let frameOf = new Uint32Array(capacity).fill(NONE);
-  let next = new Uint32Array(capacity).fill(NONE);
   let source = new Uint32Array(capacity);
+  // Variants beyond a vertex's first, by (source, frame bits); allocated on the first split.
+  let variants: VariantTable | null = null;
+  const hashed = new Uint8Array(vertexCount);
   const outIndices = new Uint32Array(cornerCount);
   let count = vertexCount;
   for (let v = 0; v < vertexCount; v++) source[v] = v;
@@ -65,25 +116,24 @@ export function splitByCornerFrames(
       outIndices[c] = v;
       continue;
     }
-    const b0 = bits[f * 4], b1 = bits[f * 4 + 1], b2 = bits[f * 4 + 2], b3 = bits[f * 4 + 3];
-    let o = v, last = v;
-    while (o !== NONE) {
-      const g = frameOf[o];
-      if (g === f || (bits[g * 4] === b0 && bits[g * 4 + 1] === b1 && bits[g * 4 + 2] === b2 && bits[g * 4 + 3] === b3)) break;
-      last = o;
-      o = next[o];
+    // Another frame at a vertex that has one: look (v, frame bits) up in a hash table, so a
+    // vertex with many distinct frames (the hub of a fan of mirrored triangles) stays linear.
+    variants ??= new VariantTable(bits);
+    if (!hashed[v]) {
+      hashed[v] = 1;
+      variants.insert(v, frameOf, source);
     }
+    let o = variants.find(v, f, frameOf, source);
     if (o === NONE) {
       if (count === capacity) {
         capacity = Math.min(vertexCount + cornerCount, capacity * 2);
         frameOf = grown(frameOf, capacity, NONE);
-        next = grown(next, capacity, NONE);
         source = grown(source, capacity, 0);
       }
       o = count++;
-      next[last] = o;
       source[o] = v;
       frameOf[o] = f;
+      variants.insert(o, frameOf, source);
     }
     outIndices[c] = o;
   }

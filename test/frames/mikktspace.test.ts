@@ -167,4 +167,33 @@ describe('mikktspace', () => {
     const cos = hub[0] * single[0] + hub[1] * single[1] + hub[2] * single[2];
     expect(cos).toBeLessThan(0.9999);
   });
+
+  it('hubWithManyDistinctFramesSplitsOncePerFrame', () => {
+    // A fan of 300 triangles around hub vertex 0 whose UV orientation flips between
+    // neighbours and whose rim v is scrambled: the hub gets many groups with different frames.
+    // Splitting must give the hub exactly one output vertex per distinct frame among its
+    // corners (no two copies with equal frames, no copy shared by different frames).
+    const k = 300;
+    const positions = new Float32Array((k + 2) * 3), uvs = new Float32Array((k + 2) * 2);
+    for (let i = 0; i <= k; i++) {
+      const a = (i / k) * 2 * Math.PI;
+      positions.set([Math.cos(a), Math.sin(a), 0.3 * Math.sin(7 * a)], (i + 1) * 3);
+      uvs.set([i % 2 ? 1 : 0, ((i * 7919) % 1000) / 1000], (i + 1) * 2);
+    }
+    uvs.set([0.5, 0.5], 0);
+    const indices = new Uint32Array(k * 3);
+    for (let i = 0; i < k; i++) indices.set([0, i + 1, i + 2], i * 3);
+    const r = computeFrames({ positions, normals: up(k + 2), uvs, indices });
+    const framesAtHub = new Map<string, number>();
+    for (let t = 0; t < k; t++) {
+      const key = tangentAtCorner(r, t * 3).join();
+      const o = r.indices[t * 3];
+      expect(r.sourceVertex[o]).toBe(0);
+      if (framesAtHub.has(key)) expect(framesAtHub.get(key)).toBe(o);
+      framesAtHub.set(key, o);
+    }
+    const hubCopies = Array.from(r.sourceVertex).filter((v) => v === 0).length;
+    expect(hubCopies).toBe(framesAtHub.size);
+    expect(hubCopies).toBeGreaterThan(100);
+  });
 });
