@@ -123,12 +123,10 @@ function processRuns(pid: number): boolean {
 }
 
 /**
- * Removes the temporary files of ours in `dir` that a process on this host left behind when
- * it was killed: names matching our pattern, with this host's name and the pid of no running
- * process. Never touches other files, other hosts' temporaries (a shared network folder) or a
- * running process's. Returns the names removed; errors are ignored (cleanup is best effort).
+ * Removes this host's temporary files in `dir` whose (pid, thread) `doomed` accepts. Returns
+ * the names removed; errors are ignored (cleanup is best effort).
  */
-export async function removeStaleTemps(dir: string): Promise<string[]> {
+async function removeOurTemps(dir: string, doomed: (pid: number, thread: number) => boolean): Promise<string[]> {
   let names: string[];
   try {
     names = await fsp.readdir(dir);
@@ -138,37 +136,28 @@ export async function removeStaleTemps(dir: string): Promise<string[]> {
   const removed: string[] = [];
   for (const name of names) {
     const m = TEMP_NAME.exec(name);
-    if (!m || m[1] !== TEMP_HOST) continue;
-    const pid = Number(m[2]);
-    if (pid === process.pid || processRuns(pid)) continue;
-    try {
-      await fsp.rm(path.join(dir, name), { force: true });
-      removed.push(name);
-    } catch {
-      // best effort
-    }
+    if (!m || m[1] !== TEMP_HOST || !doomed(Number(m[2]), Number(m[3]))) continue;
+    await fsp.rm(path.join(dir, name), { force: true }).then(() => removed.push(name), () => undefined);
   }
   return removed;
+}
+
+/**
+ * Removes the temporary files of ours in `dir` that a process on this host left behind when
+ * it was killed: names matching our pattern, with this host's name and the pid of no running
+ * process. Never touches other files, other hosts' temporaries (a shared network folder) or a
+ * running process's. Returns the names removed; errors are ignored (cleanup is best effort).
+ */
+export function removeStaleTemps(dir: string): Promise<string[]> {
+  return removeOurTemps(dir, (pid) => pid !== process.pid && !processRuns(pid));
 }
 
 /**
  * Removes the temporary files in `dir` written by thread `thread` of this process (after the
  * batch terminated that worker thread on a timeout). Returns the names removed.
  */
-export async function removeThreadTemps(dir: string, thread: number): Promise<string[]> {
-  let names: string[];
-  try {
-    names = await fsp.readdir(dir);
-  } catch {
-    return [];
-  }
-  const removed: string[] = [];
-  for (const name of names) {
-    const m = TEMP_NAME.exec(name);
-    if (!m || m[1] !== TEMP_HOST || Number(m[2]) !== process.pid || Number(m[3]) !== thread) continue;
-    await fsp.rm(path.join(dir, name), { force: true }).then(() => removed.push(name), () => undefined);
-  }
-  return removed;
+export function removeThreadTemps(dir: string, thread: number): Promise<string[]> {
+  return removeOurTemps(dir, (pid, t) => pid === process.pid && t === thread);
 }
 
 /** Folders this thread has already cleaned of stale temporary files. */

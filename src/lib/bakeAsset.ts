@@ -133,13 +133,17 @@ export function solvePrimitive(
   if (triangleCount === 0) return skip('empty');
 
   const transform = solveTransform(need, uvSet);
-  let positions = toFloat32(pos);
-  let uvs = toFloat32(uvAttr);
+  // The primitive's decoded input, once (diagnostics read these too).
+  const inputPositions = toFloat32(pos);
+  const inputUvs = toFloat32(uvAttr);
+  const normalAttr = p.attributes.NORMAL;
+  const inputNormals = normalAttr ? toFloat32(normalAttr) : null;
+  let positions = inputPositions;
+  let uvs = inputUvs;
   let normals: Float32Array;
   let indices = tri;
   let genSource: Uint32Array | null = null;
-  const normalAttr = p.attributes.NORMAL;
-  if (!normalAttr || options.normals !== 'keep') {
+  if (!inputNormals || options.normals !== 'keep') {
     const mode = options.normals === 'smooth' ? 'smooth' : 'flat';
     const g = generateNormals(tri, positions, triangleCount, vertexCount, mode, options.smoothAngle);
     genSource = g.sourceVertex;
@@ -149,7 +153,7 @@ export function solvePrimitive(
     indices = g.indices;
     report.normalsGenerated = mode;
   } else {
-    normals = normalizedCopy(toFloat32(normalAttr));
+    normals = normalizedCopy(inputNormals);
   }
 
   const frames = computeFrames(
@@ -165,11 +169,10 @@ export function solvePrimitive(
 
   const stored = p.attributes.TANGENT && report.normalsGenerated === null ? toFloat32(p.attributes.TANGENT) : null;
   const marks = pictures ? { degenerateUv: new Uint8Array(triangleCount), overlap: new Uint8Array(triangleCount) } : null;
-  const inputUvs = toFloat32(uvAttr);
   const verdict = diagnosePrimitive(report, {
     indices: tri,
-    positions: toFloat32(pos),
-    normals: normalAttr ? toFloat32(normalAttr) : null,
+    positions: inputPositions,
+    normals: inputNormals,
     uvs: inputUvs,
     storedTangents: stored,
     vertexCount,
