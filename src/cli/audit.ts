@@ -10,7 +10,8 @@ import type { FileReport } from '../report/types.js';
 import { reportOptions, sortReports } from './bake.js';
 import { runBatch } from './batch.js';
 import { writeReportFiles } from './outputs.js';
-import { addSharedOptions, emitReport, exitStatus, shardOf, toProcessOptions, toolVersion, type CliIo } from './shared.js';
+import { namedExplicitly, perFile, resolveSettings } from './config.js';
+import { addSharedOptions, emitReport, exitStatus, shardOf, toolVersion, type CliIo } from './shared.js';
 
 /** Registers `audit` on `program`; `done` receives the exit status. */
 export function registerAudit(program: Command, io: CliIo, done: (code: number) => void): void {
@@ -25,10 +26,12 @@ export function registerAudit(program: Command, io: CliIo, done: (code: number) 
 }
 
 /** The `audit` command's body, callable in-process. Returns the exit status. */
-export async function runAudit(inputs: string[], o: Record<string, any>, io: CliIo): Promise<number> {
+export async function runAudit(inputs: string[], given: Record<string, any>, io: CliIo): Promise<number> {
   const started = performance.now();
-  const options = toProcessOptions(o);
+  const settings = resolveSettings(given, io.cwd);
+  const { options, o } = settings;
   const expanded = await expandInputs(inputs, io.cwd);
+  expanded.files = expanded.files.filter((f) => !(settings.excluded(f.path) && !namedExplicitly(inputs, f.path, io.cwd)));
   const display = (abs: string) => path.relative(io.cwd, abs) || abs;
   const reports: FileReport[] = expanded.problems.map((p) => ({
     input: p.input, output: null, status: 'failed' as const, error: { code: 'read-failed', message: p.message },
@@ -36,6 +39,7 @@ export async function runAudit(inputs: string[], o: Record<string, any>, io: Cli
   }));
   const jobs: FileJob[] = shardOf(expanded.files, o.shard).map((f) => ({
     command: 'audit', input: f.path, output: null, format: null, dryRun: true, displayInput: display(f.path), displayOutput: null,
+    ...perFile(settings, f.path),
   }));
   const batch = await runBatch(jobs, options, o, io);
   reports.push(...batch.reports);

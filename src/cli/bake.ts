@@ -9,7 +9,9 @@ import { expandInputs } from '../io/inputs.js';
 import type { FileJob } from '../lib/processFile.js';
 import { buildReport } from '../report/json.js';
 import type { FileReport } from '../report/types.js';
-import { addSharedOptions, emitReport, exitStatus, shardOf, toProcessOptions, toolVersion, type CliIo } from './shared.js';
+import type { ProcessOptions } from '../lib/options.js';
+import { namedExplicitly, perFile, resolveSettings } from './config.js';
+import { addSharedOptions, emitReport, exitStatus, shardOf, toolVersion, type CliIo } from './shared.js';
 import { runBatch } from './batch.js';
 import { writeReportFiles } from './outputs.js';
 
@@ -48,16 +50,21 @@ export function registerBake(program: Command, io: CliIo, done: (code: number) =
 }
 
 /** The `bake` command's body, callable in-process. Returns the exit status. */
-export async function runBake(inputs: string[], o: Record<string, any>, io: CliIo): Promise<number> {
+export async function runBake(inputs: string[], given: Record<string, any>, io: CliIo): Promise<number> {
   const started = performance.now();
-  if (o.out && o.inPlace) throw new TanframeError('usage', 'choose one of -o/--out and --in-place');
-  if (!o.out && !o.inPlace && !o.dryRun) throw new TanframeError('usage', 'say where to write: -o <out> or --in-place (or --dry-run)');
-  const options = toProcessOptions(o);
-  options.keepExisting = !!o.keepExisting;
-  options.normals = o.normals;
-  options.smoothAngle = o.smoothAngle;
-  options.tangentType = o.tangentType;
+  if (given.out && given.inPlace) throw new TanframeError('usage', 'choose one of -o/--out and --in-place');
+  if (!given.out && !given.inPlace && !given.dryRun) throw new TanframeError('usage', 'say where to write: -o <out> or --in-place (or --dry-run)');
+  const settings = resolveSettings(given, io.cwd);
+  const { options, o } = settings;
+  const bakeOnly = (p: ProcessOptions) => {
+    p.keepExisting = !!o.keepExisting;
+    p.normals = o.normals;
+    p.smoothAngle = o.smoothAngle;
+    p.tangentType = o.tangentType;
+  };
+  bakeOnly(options);
   const expanded = await expandInputs(inputs, io.cwd);
+  expanded.files = expanded.files.filter((f) => !(settings.excluded(f.path) && !namedExplicitly(inputs, f.path, io.cwd)));
   const files = shardOf(expanded.files, o.shard);
   const singleFile = inputs.length === 1 && expanded.files.length === 1 && expanded.files[0].relative === path.basename(expanded.files[0].path) &&
     fs.existsSync(path.resolve(io.cwd, inputs[0])) && fs.statSync(path.resolve(io.cwd, inputs[0])).isFile();
@@ -91,9 +98,12 @@ export async function runBake(inputs: string[], o: Record<string, any>, io: CliI
     }
     const ext = output ? path.extname(output).toLowerCase() : '';
     const format = o.format ?? (ext === '.gltf' ? 'gltf' : ext === '.glb' ? 'glb' : null);
+    const own = perFile(settings, f.path);
+    if (own.options) bakeOnly(own.options);
     jobs.push({
       command: 'bake', input: f.path, output, format, dryRun: !!o.dryRun,
       displayInput: display(f.path), displayOutput: output ? display(output) : null,
+      ...own,
     });
   }
   const batch = await runBatch(jobs, options, o, io);
@@ -112,7 +122,7 @@ export function sortReports(files: FileReport[]): FileReport[] {
 
 /** The options echoed in the report (stable keys, no paths that vary between machines). */
 export function reportOptions(o: Record<string, any>): Record<string, unknown> {
-  const keys = ['method', 'weight', 'uv', 'allPrimitives', 'failOn', 'maxDegenerateUv', 'tolerance', 'uvEpsilon',
+  const keys = ['method', 'weight', 'uv', 'allPrimitives', 'failOn', 'limits', 'maxDegenerateUv', 'tolerance', 'uvEpsilon',
     'format', 'inPlace', 'keepExisting', 'normals', 'smoothAngle', 'tangentType', 'dryRun', 'shard'];
   const out: Record<string, unknown> = {};
   for (const k of keys) if (o[k] !== undefined) out[k] = o[k];

@@ -29,6 +29,8 @@ export interface BadNormals {
  *   geometry) have no face direction and take no part in that vote; a vertex no triangle uses
  *   (or only degenerate ones) is never flipped. A dot of exactly 0 is not "away".
  * A non-unit normal can also be flipped (it is counted in both), `count` counts each vertex once.
+ * `unitTolerance` is the unit-length tolerance for the normals' encoding (unitLengthTolerance
+ * in src/mesh/tolerances.ts; default: float's UNIT_LENGTH_TOLERANCE).
  * Returns the counts, in vertices.
  * Preconditions: indices hold 3 * triangleCount entries, each < vertexCount; positions and
  * normals hold 3 floats per vertex.
@@ -39,6 +41,7 @@ export function findBadNormals(
   normals: Float32Array,
   triangleCount: number,
   vertexCount: number,
+  unitTolerance: number = UNIT_LENGTH_TOLERANCE,
 ): BadNormals {
   assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
   assert(positions.length >= vertexCount * 3, 'positions must hold 3 floats per vertex');
@@ -72,7 +75,7 @@ export function findBadNormals(
       continue;
     }
     let bad = false;
-    if (!(Math.abs(len - 1) <= UNIT_LENGTH_TOLERANCE)) {
+    if (!(Math.abs(len - 1) <= unitTolerance)) {
       nonUnit++;
       bad = true;
     }

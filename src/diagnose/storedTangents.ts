@@ -6,9 +6,9 @@
 import { assert } from '../mesh/errors.js';
 import {
   DEFAULT_TANGENT_MISMATCH_DEG,
-  ORTHOGONAL_COSINE_TOLERANCE,
-  UNIT_LENGTH_TOLERANCE,
+  FLOAT_TANGENT_VALIDITY,
   ZERO_LENGTH,
+  type TangentValidityTolerances,
 } from '../mesh/tolerances.js';
 
 const DEG_PER_RAD = 180 / Math.PI;
@@ -33,23 +33,29 @@ export interface StoredTangentComparison {
 
 /**
  * Whether the stored tangent of vertex v (stored[4v .. 4v+3]) is valid: all four values
- * finite, | |xyz| - 1 | <= UNIT_LENGTH_TOLERANCE, w exactly +1 or -1, and, when the vertex
+ * finite, | |xyz| - 1 | <= tol.unitLength, w exactly +1 or -1, and, when the vertex
  * has a usable normal (finite, length > ZERO_LENGTH), |cos| of the angle between xyz and the
- * normal <= ORTHOGONAL_COSINE_TOLERANCE. With `normals` null, or a zero or non-finite normal,
+ * normal <= tol.orthogonalCosine. `tol` comes from the attributes' encodings
+ * (tangentValidityTolerances in src/mesh/tolerances.ts; default: float). With `normals` null, or a zero or non-finite normal,
  * orthogonality is not judged (the normal is what is wrong; findBadNormals reports it).
  * Preconditions: stored holds 4 floats and normals (if given) 3 floats for vertex v.
  */
-export function isStoredTangentValid(stored: Float32Array, normals: Float32Array | null, v: number): boolean {
+export function isStoredTangentValid(
+  stored: Float32Array,
+  normals: Float32Array | null,
+  v: number,
+  tol: TangentValidityTolerances = FLOAT_TANGENT_VALIDITY,
+): boolean {
   const tx = stored[v * 4], ty = stored[v * 4 + 1], tz = stored[v * 4 + 2], tw = stored[v * 4 + 3];
   if (!(tw === 1 || tw === -1)) return false;
   const tl = Math.sqrt(tx * tx + ty * ty + tz * tz);
-  if (!(Math.abs(tl - 1) <= UNIT_LENGTH_TOLERANCE)) return false; // NaN and Infinity fail here
+  if (!(Math.abs(tl - 1) <= tol.unitLength)) return false; // NaN and Infinity fail here
   if (!normals) return true;
   const nx = normals[v * 3], ny = normals[v * 3 + 1], nz = normals[v * 3 + 2];
   const nl = Math.sqrt(nx * nx + ny * ny + nz * nz);
   if (!(nl > ZERO_LENGTH) || nl === Infinity) return true;
   const cos = (nx * tx + ny * ty + nz * tz) / (nl * tl);
-  return Math.abs(cos) <= ORTHOGONAL_COSINE_TOLERANCE;
+  return Math.abs(cos) <= tol.orthogonalCosine;
 }
 
 /**
@@ -57,11 +63,16 @@ export function isStoredTangentValid(stored: Float32Array, normals: Float32Array
  * (isStoredTangentValid), used or not by a triangle.
  * Preconditions: stored holds 4 floats and normals (if given) 3 floats per vertex.
  */
-export function countInvalidStoredTangents(stored: Float32Array, normals: Float32Array | null, vertexCount: number): number {
+export function countInvalidStoredTangents(
+  stored: Float32Array,
+  normals: Float32Array | null,
+  vertexCount: number,
+  tol: TangentValidityTolerances = FLOAT_TANGENT_VALIDITY,
+): number {
   assert(stored.length >= vertexCount * 4, 'stored tangents must hold 4 floats per vertex');
   assert(!normals || normals.length >= vertexCount * 3, 'normals must hold 3 floats per vertex');
   let invalid = 0;
-  for (let v = 0; v < vertexCount; v++) if (!isStoredTangentValid(stored, normals, v)) invalid++;
+  for (let v = 0; v < vertexCount; v++) if (!isStoredTangentValid(stored, normals, v, tol)) invalid++;
   return invalid;
 }
 
@@ -70,10 +81,15 @@ export function countInvalidStoredTangents(stored: Float32Array, normals: Float3
  * `bake --keep-existing` applies before keeping a primitive's stored tangents.
  * Preconditions: as countInvalidStoredTangents.
  */
-export function isStoredTangentSetValid(stored: Float32Array, normals: Float32Array | null, vertexCount: number): boolean {
+export function isStoredTangentSetValid(
+  stored: Float32Array,
+  normals: Float32Array | null,
+  vertexCount: number,
+  tol: TangentValidityTolerances = FLOAT_TANGENT_VALIDITY,
+): boolean {
   assert(stored.length >= vertexCount * 4, 'stored tangents must hold 4 floats per vertex');
   assert(!normals || normals.length >= vertexCount * 3, 'normals must hold 3 floats per vertex');
-  for (let v = 0; v < vertexCount; v++) if (!isStoredTangentValid(stored, normals, v)) return false;
+  for (let v = 0; v < vertexCount; v++) if (!isStoredTangentValid(stored, normals, v, tol)) return false;
   return true;
 }
 
@@ -94,7 +110,8 @@ export function isStoredTangentSetValid(stored: Float32Array, normals: Float32Ar
  * nearest-rank 95th percentile of the sorted corner angles (float64). `mismatched` counts the
  * compared corners with angle > toleranceDeg or a sign mismatch. `invalid` counts input
  * VERTICES in [0, vertexCount) with an invalid stored tangent (isStoredTangentValid against
- * `normals`, which may be null). With nothing compared the three angles are 0.
+ * `normals`, which may be null, and `tol`: the encodings' tolerances, default float). With
+ * nothing compared the three angles are 0.
  * Preconditions: stored holds 4 floats and normals (if given) 3 floats per input vertex;
  * computed holds 4 floats per output vertex; computedIndices < sourceVertex.length;
  * sourceVertex entries < vertexCount.
@@ -107,9 +124,10 @@ export function compareStoredTangents(
   normals: Float32Array | null,
   vertexCount: number,
   toleranceDeg: number = DEFAULT_TANGENT_MISMATCH_DEG,
+  tol: TangentValidityTolerances = FLOAT_TANGENT_VALIDITY,
 ): StoredTangentComparison {
   assert(computed.length >= sourceVertex.length * 4, 'computed tangents must hold 4 floats per output vertex');
-  const invalid = countInvalidStoredTangents(stored, normals, vertexCount);
+  const invalid = countInvalidStoredTangents(stored, normals, vertexCount, tol);
   const cornerCount = computedIndices.length;
   const angles = new Float64Array(cornerCount);
   let compared = 0, signMismatch = 0, mismatched = 0, sum = 0, max = 0;

@@ -7,7 +7,7 @@
  * partitioning (cited from memory).
  */
 import { assert } from '../mesh/errors.js';
-import { UV_DEGENERATE_RELATIVE, UV_OVERLAP_ABSOLUTE, UV_OVERLAP_RELATIVE } from '../mesh/tolerances.js';
+import { UV_DEGENERATE_RELATIVE, UV_OVERLAP_ABSOLUTE, UV_OVERLAP_RELATIVE, UV_SHELL_AREA_RELATIVE } from '../mesh/tolerances.js';
 import { findingFromMarks, type Finding } from './finding.js';
 
 /** Most grid cells the broad phase uses, whatever the mesh (16 MiB of cell offsets). */
@@ -62,10 +62,17 @@ export interface UvOverlapStats {
  * the float32 UVs, each projection taken relative to the edge's start so shared vertices
  * project to exactly zero. Cost: linear for ordinary atlases; many triangles each spanning
  * much of the atlas make the cells they share quadratic in their number.
- * Returns count = triangles involved in at least one overlap, and the first MAX_LISTED of their
- * indices, ascending. When `marks` is given (length >= triangleCount), marks[t] is set to 1 for
- * each overlapping triangle and 0 otherwise; when `stats` is given it receives the broad-phase
- * figures. Memory: about 18 bytes per triangle plus the cell lists (4 bytes per cell and per
+ * - Stacked shells are not overlap either: when two overlapping triangles belong to different
+ *   shells (sets of usable triangles connected through shared vertex indices) that have the
+ *   same UV points and the same UV area (a copy of one shell laid exactly on the other,
+ *   mirrored or triangulated differently), the pair is stacking. A pair within one shell is
+ *   a fold and stays an overlap.
+ * Returns count = triangles involved in at least one partial overlap, and the first MAX_LISTED
+ * of their indices, ascending. When `marks` is given (length >= triangleCount), marks[t] is set
+ * to 1 for each overlapping triangle and 0 otherwise; when `stacked` is given (same length) it
+ * is set to 1 for each triangle lying exactly on another (an exact copy, or a stacked shell's
+ * triangle overlapping its twin) and 0 otherwise; when `stats` is given it receives the
+ * broad-phase figures. Memory: about 18 bytes per triangle plus the cell lists (4 bytes per cell and per
  * cell entry).
  * Preconditions: indices hold 3 * triangleCount entries, each < uvs.length / 2.
  */
@@ -75,11 +82,14 @@ export function findUvOverlaps(
   triangleCount: number,
   marks: Uint8Array | null = null,
   stats: UvOverlapStats | null = null,
+  stacked: Uint8Array | null = null,
 ): Finding {
   assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
   assert(!marks || marks.length >= triangleCount, 'marks must hold one entry per triangle');
+  assert(!stacked || stacked.length >= triangleCount, 'stacked must hold one entry per triangle');
   const flags = marks ?? new Uint8Array(triangleCount);
   if (marks) flags.fill(0, 0, triangleCount);
+  if (stacked) stacked.fill(0, 0, triangleCount);
   // Per-triangle UV bounding boxes (exact: min/max of float32 values) and usability.
   const box = new Float32Array(triangleCount * 4);
   const usable = new Uint8Array(triangleCount);
@@ -105,11 +115,17 @@ export function findUvOverlaps(
   // the grid; pairs within a class are intentional stacking, and every copy takes its class's
   // verdict at the end. This keeps thousands of stacked copies from filling one cell.
   const classOf = stackedClasses(indices, uvs, usable, triangleCount, usableCount);
-  let stacked = 0;
+  // Shells and their keys (UV point hash and area), before copies leave the grid.
+  const shell = shellKeys(indices, uvs, usable, triangleCount);
+  let copies = 0;
   for (let t = 0; t < triangleCount; t++) {
-    if (usable[t] && classOf[t] !== t) { usable[t] = 0; stacked++; }
+    if (usable[t] && classOf[t] !== t) {
+      usable[t] = 0;
+      copies++;
+      if (stacked) { stacked[t] = 1; stacked[classOf[t]] = 1; }
+    }
   }
-  usableCount -= stacked;
+  usableCount -= copies;
   if (stats) { stats.cellsU = 0; stats.cellsV = 0; stats.gridTriangles = usableCount; stats.cellPairs = 0; stats.exactTests = 0; }
   if (usableCount < 2) return findingFromMarks(flags, triangleCount);
 
@@ -216,6 +232,10 @@ export function findUvOverlaps(
         ) continue; // coincident UV triangles: intentional stacking / mirroring
         exactTests++;
         if (trianglesOverlap(au0, av0, au1, av1, au2, av2, bu0, bv0, bu1, bv1, bu2, bv2)) {
+          if (sameShellKey(shell, a, b)) {
+            if (stacked) { stacked[a] = 1; stacked[b] = 1; }
+            continue;
+          }
           flags[a] = 1;
           flags[b] = 1;
         }
@@ -223,10 +243,91 @@ export function findUvOverlaps(
     }
   }
   if (stats) { stats.cellsU = nu; stats.cellsV = nv; stats.cellPairs = cellPairs; stats.exactTests = exactTests; }
-  if (stacked > 0) {
-    for (let t = 0; t < triangleCount; t++) if (classOf[t] !== t) flags[t] = flags[classOf[t]];
+  if (copies > 0) {
+    for (let t = 0; t < triangleCount; t++) {
+      if (classOf[t] === t) continue;
+      flags[t] = flags[classOf[t]];
+      if (stacked) stacked[t] = stacked[classOf[t]];
+    }
   }
   return findingFromMarks(flags, triangleCount);
+}
+
+/** Per triangle its shell, and per shell two hashes of its UV points and its UV area. */
+interface ShellKeys {
+  shellOf: Uint32Array;
+  hashA: Uint32Array;
+  hashB: Uint32Array;
+  points: Uint32Array;
+  area: Float64Array;
+}
+
+/**
+ * Shells of the usable triangles: connected through shared vertex indices (union-find with
+ * path halving). Each shell's key: the number of distinct vertices, two order-independent
+ * hashes (sums of per-vertex hashes of the UV bits) and the sum of |det| of its triangles, so
+ * that two shells with the same UV points and area compare equal whatever their triangulation.
+ */
+function shellKeys(indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, triangleCount: number): ShellKeys {
+  const vertexCount = uvs.length >> 1;
+  const parent = new Uint32Array(vertexCount);
+  for (let v = 0; v < vertexCount; v++) parent[v] = v;
+  for (let t = 0; t < triangleCount; t++) {
+    if (!usable[t]) continue;
+    const r0 = findRoot(parent, indices[t * 3]);
+    for (let k = 1; k < 3; k++) {
+      const r = findRoot(parent, indices[t * 3 + k]);
+      if (r !== r0) parent[r] = r0;
+    }
+  }
+  const shellOf = new Uint32Array(triangleCount).fill(0xffffffff);
+  const hashA = new Uint32Array(vertexCount), hashB = new Uint32Array(vertexCount), points = new Uint32Array(vertexCount);
+  const area = new Float64Array(vertexCount);
+  const seen = new Uint8Array(vertexCount);
+  const bits = new Float32Array(2), words = new Uint32Array(bits.buffer);
+  for (let t = 0; t < triangleCount; t++) {
+    if (!usable[t]) continue;
+    const root = findRoot(parent, indices[t * 3]);
+    shellOf[t] = root;
+    const i0 = indices[t * 3] * 2, i1 = indices[t * 3 + 1] * 2, i2 = indices[t * 3 + 2] * 2;
+    const du1 = uvs[i1] - uvs[i0], dv1 = uvs[i1 + 1] - uvs[i0 + 1], du2 = uvs[i2] - uvs[i0], dv2 = uvs[i2 + 1] - uvs[i0 + 1];
+    area[root] += Math.abs(du1 * dv2 - du2 * dv1);
+    for (let k = 0; k < 3; k++) {
+      const v = indices[t * 3 + k];
+      if (seen[v]) continue;
+      seen[v] = 1;
+      bits[0] = uvs[v * 2] === 0 ? 0 : uvs[v * 2]; // -0 hashes as 0
+      bits[1] = uvs[v * 2 + 1] === 0 ? 0 : uvs[v * 2 + 1];
+      let a = Math.imul(words[0] ^ 0x811c9dc5, 0x9e3779b1);
+      a = Math.imul(a ^ (a >>> 15) ^ words[1], 0x85ebca6b);
+      a ^= a >>> 13;
+      let b = Math.imul(words[1] ^ 0x27d4eb2f, 0xc2b2ae35);
+      b = Math.imul(b ^ (b >>> 16) ^ words[0], 0x165667b1);
+      b ^= b >>> 15;
+      hashA[root] = (hashA[root] + a) >>> 0;
+      hashB[root] = (hashB[root] + b) >>> 0;
+      points[root]++;
+    }
+  }
+  return { shellOf, hashA, hashB, points, area };
+}
+
+/** The root of x in the union-find forest `parent`, halving the path on the way. */
+function findRoot(parent: Uint32Array, x: number): number {
+  while (parent[x] !== x) { parent[x] = parent[parent[x]]; x = parent[x]; }
+  return x;
+}
+
+/**
+ * Whether usable triangles a and b lie in different shells with the same key (points, both
+ * hashes, and UV areas equal within UV_SHELL_AREA_RELATIVE).
+ */
+function sameShellKey(k: ShellKeys, a: number, b: number): boolean {
+  const sa = k.shellOf[a], sb = k.shellOf[b];
+  if (sa === sb) return false;
+  if (k.points[sa] !== k.points[sb] || k.hashA[sa] !== k.hashA[sb] || k.hashB[sa] !== k.hashB[sb]) return false;
+  const x = k.area[sa], y = k.area[sb];
+  return Math.abs(x - y) <= UV_SHELL_AREA_RELATIVE * Math.max(x, y);
 }
 
 /** Writes the UV points of triangle t into out[0..5], sorted by u then v. */

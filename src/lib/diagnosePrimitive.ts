@@ -10,6 +10,8 @@ import {
   findUvOverlaps,
   isStoredTangentSetValid,
 } from '../diagnose/index.js';
+import { findingFromMarks } from '../diagnose/finding.js';
+import { FLOAT_TANGENT_VALIDITY, UNIT_LENGTH_TOLERANCE, type TangentValidityTolerances } from '../mesh/tolerances.js';
 import type { PrimitiveReport } from '../report/types.js';
 
 /** What the diagnostics read. Arrays are the primitive's decoded input, before any split. */
@@ -26,6 +28,10 @@ export interface DiagnoseInput {
   sourceVertex: Uint32Array;
   uvEpsilon: number;
   toleranceDeg: number;
+  /** Unit-length tolerance of the NORMAL accessor's encoding (unitLengthTolerance); default float. */
+  normalUnitTolerance?: number;
+  /** Validity tolerances of the TANGENT and NORMAL encodings (tangentValidityTolerances); default float. */
+  tangentValidity?: TangentValidityTolerances;
   /**
    * Per-triangle marks to fill for pictures (1 flagged, 0 not; triangleCount entries each),
    * or null/absent when no picture is wanted.
@@ -41,7 +47,8 @@ export interface DiagnoseVerdict {
 
 /**
  * Fills the finding fields of `report` (degenerate UV and geometry, invalid values, bad
- * normals, UV overlap, stored-vs-recomputed tangents) from `input`. Returns the verdicts.
+ * normals, partial UV overlap, stored-vs-recomputed tangents) and the stacked-shell note from
+ * `input`, judging unit length and orthogonality with the tolerances of the attributes' encodings. Returns the verdicts.
  * Precondition: computedTangents / computedIndices come from solving this same primitive and
  * sourceVertex maps each output vertex to an input vertex.
  */
@@ -51,12 +58,16 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
   report.degenerateUv = findDegenerateUvTriangles(indices, uvs, triangleCount, input.uvEpsilon, marks ? marks.degenerateUv : null);
   report.degenerateGeometry = findDegenerateGeometry(indices, positions, triangleCount);
   report.invalidValues = { count: countInvalidVertices(vertexCount, positions, normals, uvs, storedTangents) };
-  report.badNormals = { count: normals ? findBadNormals(indices, positions, normals, triangleCount, vertexCount).count : 0 };
-  report.uvOverlap = findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null);
+  const unitTolerance = input.normalUnitTolerance ?? UNIT_LENGTH_TOLERANCE;
+  const validity = input.tangentValidity ?? FLOAT_TANGENT_VALIDITY;
+  report.badNormals = { count: normals ? findBadNormals(indices, positions, normals, triangleCount, vertexCount, unitTolerance).count : 0 };
+  const stacked = new Uint8Array(triangleCount);
+  report.uvOverlap = findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null, null, stacked);
+  report.stackedShells = findingFromMarks(stacked, triangleCount);
   let valid = false;
   if (storedTangents) {
     const c = compareStoredTangents(
-      storedTangents, input.computedTangents, input.sourceVertex, input.computedIndices, normals, vertexCount, input.toleranceDeg,
+      storedTangents, input.computedTangents, input.sourceVertex, input.computedIndices, normals, vertexCount, input.toleranceDeg, validity,
     );
     report.storedTangents = {
       invalid: c.invalid,
@@ -67,7 +78,7 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
       compared: c.compared,
       mismatched: c.mismatched,
     };
-    valid = isStoredTangentSetValid(storedTangents, normals, vertexCount);
+    valid = isStoredTangentSetValid(storedTangents, normals, vertexCount, validity);
   }
   return { storedTangentsValid: valid };
 }

@@ -48,6 +48,67 @@ export const ZERO_LENGTH = 1e-20;
  */
 export const ORTHOGONAL_COSINE_TOLERANCE = 1e-2;
 
+/**
+ * Largest rounding error of one component of a unit vector stored as a normalized signed
+ * integer, decoded as c / (2^(n-1) - 1) (glTF 2.0 specification, 3.11 "Animations" /
+ * normalized integers, and KHR_mesh_quantization, which allows NORMAL and TANGENT as
+ * normalized BYTE or SHORT): half a step, 0.5 / 127 for BYTE and 0.5 / 32767 for SHORT.
+ */
+export const NORMALIZED_BYTE_HALF_STEP = 0.5 / 127;
+export const NORMALIZED_SHORT_HALF_STEP = 0.5 / 32767;
+
+/**
+ * How far a stored unit vector's decoded value may be from a unit vector through its
+ * encoding alone: the vector error of three components each off by at most the half step,
+ * sqrt(3) * half step (a bound: Avocado glTF-Quantized measures 6.0e-3 of the BYTE bound
+ * 6.8e-3). 0 for float.
+ */
+export function encodingError(componentType: number, normalized: boolean): number {
+  if (!normalized) return 0;
+  if (componentType === 5120) return Math.sqrt(3) * NORMALIZED_BYTE_HALF_STEP; // BYTE
+  if (componentType === 5122) return Math.sqrt(3) * NORMALIZED_SHORT_HALF_STEP; // SHORT
+  return 0;
+}
+
+/**
+ * Unit-length tolerance for a NORMAL or TANGENT stored with this component type:
+ * UNIT_LENGTH_TOLERANCE plus the encoding's own error (encodingError), so a normalized BYTE
+ * vector rounded correctly from a unit vector is unit (about 7.3e-3), SHORT about 5.3e-4,
+ * float 5e-4.
+ */
+export function unitLengthTolerance(componentType: number, normalized: boolean): number {
+  return UNIT_LENGTH_TOLERANCE + encodingError(componentType, normalized);
+}
+
+/**
+ * How a stored tangent is judged valid (isStoredTangentValid in src/diagnose/storedTangents.ts):
+ * | |xyz| - 1 | <= unitLength and |cos(xyz, normal)| <= orthogonalCosine.
+ */
+export interface TangentValidityTolerances {
+  unitLength: number;
+  orthogonalCosine: number;
+}
+
+/** Validity tolerances for float NORMAL and TANGENT. */
+export const FLOAT_TANGENT_VALIDITY: TangentValidityTolerances = {
+  unitLength: UNIT_LENGTH_TOLERANCE,
+  orthogonalCosine: ORTHOGONAL_COSINE_TOLERANCE,
+};
+
+/**
+ * Validity tolerances for a TANGENT and NORMAL stored with these encodings: the unit-length
+ * tolerance of the tangent's encoding, and an orthogonality tolerance widened by both
+ * vectors' encoding errors (rounding each moves their dot product by at most that much).
+ */
+export function tangentValidityTolerances(
+  tangent: { componentType: number; normalized: boolean },
+  normal: { componentType: number; normalized: boolean } | null,
+): TangentValidityTolerances {
+  const et = encodingError(tangent.componentType, tangent.normalized);
+  const en = normal ? encodingError(normal.componentType, normal.normalized) : 0;
+  return { unitLength: UNIT_LENGTH_TOLERANCE + et, orthogonalCosine: ORTHOGONAL_COSINE_TOLERANCE + et + en };
+}
+
 /** Default angle (degrees) beyond which a stored tangent counts as mismatched (DESIGN.md). */
 export const DEFAULT_TANGENT_MISMATCH_DEG = 1;
 
@@ -67,6 +128,14 @@ export const UV_OVERLAP_ABSOLUTE = 1e-6;
  * where a vertex lies on another triangle's edge). Common practice, no single source.
  */
 export const UV_OVERLAP_RELATIVE = 1e-4;
+
+/**
+ * Stacked UV shells: two shells with the same UV points count as laid exactly on one another
+ * when their summed UV areas (|det| per triangle, float64) differ by at most this fraction:
+ * summation order alone moves the sums by about 1e-15 relative, a real difference of layout
+ * by far more. Common practice, no single source.
+ */
+export const UV_SHELL_AREA_RELATIVE = 1e-9;
 
 /**
  * Normal-map conversion: a texel's interpolated frame [t, b, N] whose determinant is at most
