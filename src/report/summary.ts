@@ -192,7 +192,7 @@ function cleanLine(f: FileReport, style: SummaryStyle): string {
   const waived = (f.waived ?? []).map((w) => `, waived ${w.gate} (${w.reason})`).join('');
   const extra = `${layout ? `; notes: ${layout}` : ''}${skipped ? `; ${skipped}` : ''}${waived}` +
     `${f.warnings.length ? `, ${f.warnings.length} warning${f.warnings.length === 1 ? '' : 's'}` : ''}${notes}`;
-  const status = f.status === 'up-to-date' ? paint(style.color, '2', 'up to date') : paint(style.color, '32', 'ok       ');
+  const status = f.status === 'up-to-date' ? paint(style.color, '2', 'up to date ') : paint(style.color, '32', 'ok       ');
   return `${status}${f.input}${target}  (${done.length} of ${f.primitives.length} primitives, ${n(tri)} triangles, no findings${extra})`;
 }
 
