@@ -29,21 +29,29 @@ export function findConfigFile(o: Record<string, any>, cwd: string): string | nu
   }
 }
 
-/** Reads and checks the config file; a missing, unreadable or malformed file is 'bad-config'. */
-export function readConfig(file: string): Config {
+/**
+ * Reads and checks the config file (absolute `file`; messages name it relative to `cwd`); a
+ * missing, unreadable or malformed file is 'bad-config'.
+ */
+export function readConfig(file: string, cwd: string): Config {
+  const shown = path.relative(cwd, file) || file;
   let text: string;
   try {
     text = fs.readFileSync(file, 'utf8');
   } catch (err) {
-    throw new TanframeError('bad-config', `cannot read the config file ${file}: ${(err as NodeJS.ErrnoException).code ?? (err as Error).message}`);
+    throw new TanframeError('bad-config', `cannot read the config file ${shown}: ${(err as NodeJS.ErrnoException).code ?? (err as Error).message}`);
   }
   let json: unknown;
   try {
     json = JSON.parse(text);
   } catch (err) {
-    throw new TanframeError('bad-config', `${file}: not valid JSON: ${(err as Error).message}`);
+    throw new TanframeError('bad-config', `${shown}: not valid JSON: ${oneLine((err as Error).message)}`);
   }
-  return checkConfig(json, file);
+  return checkConfig(json, file, shown);
+}
+
+function oneLine(s: string): string {
+  return s.replace(/\s+/g, ' ').slice(0, 300);
 }
 
 /** The command line's own settings: only the options the user gave (undefined ones are not given). */
@@ -113,7 +121,7 @@ export interface RunSettings {
  */
 export function resolveSettings(o: Record<string, any>, cwd: string): RunSettings {
   const file = findConfigFile(o, cwd);
-  const config = file ? readConfig(file) : null;
+  const config = file ? readConfig(file, cwd) : null;
   const cli = commandLineSettings(o);
   const top = layer(config ? settingsFor({ ...config, overrides: [] }, path.dirname(config.file)) : {}, cli);
   const options = toOptions(top, o);

@@ -118,12 +118,12 @@ function unknownKeys(file: string, where: string, o: Record<string, unknown>, al
 }
 
 /**
- * Checks a parsed config file (`json`, read from absolute path `file`). Returns the config;
- * throws TanframeError 'bad-config' naming the file and the key for an unknown key or a bad
+ * Checks a parsed config file (`json`, read from absolute path `file`, named `shownAs` in
+ * messages). Returns the config; throws TanframeError 'bad-config' naming the file and the key for an unknown key or a bad
  * value (DESIGN.md: a configuration error, exit 2).
  */
-export function checkConfig(json: unknown, file: string): Config {
-  const name = file;
+export function checkConfig(json: unknown, file: string, shownAs: string = file): Config {
+  const name = shownAs;
   if (!isObject(json)) fail(name, '(top level)', 'expected a JSON object');
   unknownKeys(name, '', json, TOP_KEYS);
   if (json.schema !== undefined && json.schema !== CONFIG_SCHEMA) fail(name, 'schema', `expected "${CONFIG_SCHEMA}"`);
