@@ -40,8 +40,9 @@ export interface UvOverlapStats {
  * Finds the triangles of one UV set that overlap another triangle of the same set in UV space
  * with positive area (a baked map cannot hold two values at one texel).
  * - Touching is not overlap: triangles sharing an edge or a vertex, or penetrating each other
- *   by no more than UV_OVERLAP_ABSOLUTE UV units or UV_OVERLAP_RELATIVE of the smaller
- *   triangle's extent along the separating edge normal, are not reported.
+ *   by no more than `touching` UV units (default UV_OVERLAP_ABSOLUTE; uvOverlapAbsolute gives
+ *   the value for a quantized TEXCOORD) or UV_OVERLAP_RELATIVE of the smaller triangle's extent
+ *   along the separating edge normal, are not reported.
  * - Mirroring onto themselves is not overlap: a pair whose two UV triangles coincide exactly
  *   (the same three UV points, bit for bit, in any order) is intentional stacking, as when
  *   the left and right halves of a symmetric model share one set of UVs, and is skipped.
@@ -83,6 +84,7 @@ export function findUvOverlaps(
   marks: Uint8Array | null = null,
   stats: UvOverlapStats | null = null,
   stacked: Uint8Array | null = null,
+  touching: number = UV_OVERLAP_ABSOLUTE,
 ): Finding {
   assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
   assert(!marks || marks.length >= triangleCount, 'marks must hold one entry per triangle');
@@ -231,7 +233,7 @@ export function findUvOverlaps(
           hasPoint(au2, av2, bu0, bv0, bu1, bv1, bu2, bv2)
         ) continue; // coincident UV triangles: intentional stacking / mirroring
         exactTests++;
-        if (trianglesOverlap(au0, av0, au1, av1, au2, av2, bu0, bv0, bu1, bv1, bu2, bv2)) {
+        if (trianglesOverlap(au0, av0, au1, av1, au2, av2, bu0, bv0, bu1, bv1, bu2, bv2, touching)) {
           if (sameShellKey(shell, a, b)) {
             if (stacked) { stacked[a] = 1; stacked[b] = 1; }
             continue;
@@ -380,20 +382,22 @@ function stackedClasses(indices: Uint32Array, uvs: Float32Array, usable: Uint8Ar
 
 /**
  * Whether two UV triangles overlap with positive area beyond the touching tolerances
- * (UV_OVERLAP_ABSOLUTE, UV_OVERLAP_RELATIVE): no edge normal of either separates them.
+ * (`touching`, default UV_OVERLAP_ABSOLUTE, and UV_OVERLAP_RELATIVE): no edge normal of
+ * either separates them.
  * Exported for tests. Preconditions: both triangles are non-degenerate; values finite.
  */
 export function trianglesOverlap(
   au0: number, av0: number, au1: number, av1: number, au2: number, av2: number,
   bu0: number, bv0: number, bu1: number, bv1: number, bu2: number, bv2: number,
+  touching: number = UV_OVERLAP_ABSOLUTE,
 ): boolean {
   return !(
-    separates(au0, av0, au1, av1, au2, av2, bu0, bv0, bu1, bv1, bu2, bv2) ||
-    separates(au1, av1, au2, av2, au0, av0, bu0, bv0, bu1, bv1, bu2, bv2) ||
-    separates(au2, av2, au0, av0, au1, av1, bu0, bv0, bu1, bv1, bu2, bv2) ||
-    separates(bu0, bv0, bu1, bv1, bu2, bv2, au0, av0, au1, av1, au2, av2) ||
-    separates(bu1, bv1, bu2, bv2, bu0, bv0, au0, av0, au1, av1, au2, av2) ||
-    separates(bu2, bv2, bu0, bv0, bu1, bv1, au0, av0, au1, av1, au2, av2)
+    separates(au0, av0, au1, av1, au2, av2, bu0, bv0, bu1, bv1, bu2, bv2, touching) ||
+    separates(au1, av1, au2, av2, au0, av0, bu0, bv0, bu1, bv1, bu2, bv2, touching) ||
+    separates(au2, av2, au0, av0, au1, av1, bu0, bv0, bu1, bv1, bu2, bv2, touching) ||
+    separates(bu0, bv0, bu1, bv1, bu2, bv2, au0, av0, au1, av1, au2, av2, touching) ||
+    separates(bu1, bv1, bu2, bv2, bu0, bv0, au0, av0, au1, av1, au2, av2, touching) ||
+    separates(bu2, bv2, bu0, bv0, bu1, bv1, au0, av0, au1, av1, au2, av2, touching)
   );
 }
 
@@ -405,6 +409,7 @@ export function trianglesOverlap(
 function separates(
   pu: number, pv: number, qu: number, qv: number, ru: number, rv: number,
   x0: number, y0: number, x1: number, y1: number, x2: number, y2: number,
+  touching: number,
 ): boolean {
   const eu = qu - pu, ev = qv - pv;
   const nu = -ev, nv = eu; // unnormalised edge normal
@@ -417,8 +422,8 @@ function separates(
   if (d2 < bLo) bLo = d2; else if (d2 > bHi) bHi = d2;
   const depth = (aHi < bHi ? aHi : bHi) - (aLo > bLo ? aLo : bLo);
   if (depth <= 0) return true;
-  // Absolute: depth / |n| <= UV_OVERLAP_ABSOLUTE, compared squared to avoid the root.
-  if (depth * depth <= UV_OVERLAP_ABSOLUTE * UV_OVERLAP_ABSOLUTE * (eu * eu + ev * ev)) return true;
+  // Absolute: depth / |n| <= touching, compared squared to avoid the root.
+  if (depth * depth <= touching * touching * (eu * eu + ev * ev)) return true;
   const aLen = aHi - aLo, bLen = bHi - bLo;
   return depth <= UV_OVERLAP_RELATIVE * (aLen < bLen ? aLen : bLen);
 }

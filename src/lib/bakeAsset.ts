@@ -23,7 +23,7 @@ import { morphTangentDelta, type MorphBase } from './morphTangents.js';
 import type { ProcessOptions } from './options.js';
 import { encodeTangents } from './tangentEncoding.js';
 import { applyUvTransform, changesFrames, type UvTransform } from '../mesh/uvTransform.js';
-import { tangentValidityTolerances, unitLengthTolerance } from '../mesh/tolerances.js';
+import { componentHalfStep, tangentValidityTolerances, unitLengthTolerance, uvOverlapAbsolute } from '../mesh/tolerances.js';
 
 /** Result of solving every primitive of an asset. */
 export interface AssetSolve {
@@ -187,6 +187,8 @@ export function solvePrimitive(
     // Unit length and orthogonality are judged for the accessors' encodings (KHR_mesh_quantization).
     normalUnitTolerance: normalAttr ? unitLengthTolerance(normalAttr.componentType, normalAttr.normalized) : undefined,
     tangentValidity: p.attributes.TANGENT ? tangentValidityTolerances(p.attributes.TANGENT, normalAttr ?? null) : undefined,
+    positionHalfStep: componentHalfStep(pos.componentType, pos.normalized),
+    uvTouching: uvOverlapAbsolute(uvAttr.componentType, uvAttr.normalized),
     marks,
   });
   let picture: UvPicture | null = null;

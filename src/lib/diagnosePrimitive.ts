@@ -32,6 +32,10 @@ export interface DiagnoseInput {
   normalUnitTolerance?: number;
   /** Validity tolerances of the TANGENT and NORMAL encodings (tangentValidityTolerances); default float. */
   tangentValidity?: TangentValidityTolerances;
+  /** Half a step of the POSITION encoding (componentHalfStep); default 0 (float). */
+  positionHalfStep?: number;
+  /** Touching tolerance of the TEXCOORD encoding for UV overlaps (uvOverlapAbsolute); default float's. */
+  uvTouching?: number;
   /**
    * Per-triangle marks to fill for pictures (1 flagged, 0 not; triangleCount entries each),
    * or null/absent when no picture is wanted.
@@ -60,9 +64,9 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
   report.invalidValues = { count: countInvalidVertices(vertexCount, positions, normals, uvs, storedTangents) };
   const unitTolerance = input.normalUnitTolerance ?? UNIT_LENGTH_TOLERANCE;
   const validity = input.tangentValidity ?? FLOAT_TANGENT_VALIDITY;
-  report.badNormals = { count: normals ? findBadNormals(indices, positions, normals, triangleCount, vertexCount, unitTolerance).count : 0 };
+  report.badNormals = { count: normals ? findBadNormals(indices, positions, normals, triangleCount, vertexCount, unitTolerance, input.positionHalfStep ?? 0).count : 0 };
   const stacked = new Uint8Array(triangleCount);
-  report.uvOverlap = findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null, null, stacked);
+  report.uvOverlap = findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null, null, stacked, input.uvTouching);
   report.stackedShells = findingFromMarks(stacked, triangleCount);
   let valid = false;
   if (storedTangents) {

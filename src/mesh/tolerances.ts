@@ -71,6 +71,35 @@ export function encodingError(componentType: number, normalized: boolean): numbe
 }
 
 /**
+ * Half the step of one component as stored, in the decoded units tanframe computes in: 0 for
+ * float; 0.5 for integers that are not normalized (KHR_mesh_quantization POSITION and
+ * TEXCOORD, scaled by a node or texture transform); 0.5 / (2^(n-1) - 1) or 0.5 / (2^n - 1)
+ * for normalized signed or unsigned integers (glTF 2.0 specification 3.11).
+ */
+export function componentHalfStep(componentType: number, normalized: boolean): number {
+  let steps = 0;
+  switch (componentType) {
+    case 5120: steps = 127; break; // BYTE
+    case 5121: steps = 255; break; // UNSIGNED_BYTE
+    case 5122: steps = 32767; break; // SHORT
+    case 5123: steps = 65535; break; // UNSIGNED_SHORT
+    default: return 0; // FLOAT (and UNSIGNED_INT, which attributes do not use)
+  }
+  return normalized ? 0.5 / steps : 0.5;
+}
+
+/**
+ * UV-overlap test, absolute part, for a TEXCOORD stored with this component type: two
+ * triangles that only touched before rounding can penetrate by the displacement of a point
+ * (up to sqrt(2) half steps) plus that of an edge (as much again) after it, so the touching
+ * tolerance is UV_OVERLAP_ABSOLUTE plus 2 * sqrt(2) half steps, in the stored units. Float
+ * keeps UV_OVERLAP_ABSOLUTE.
+ */
+export function uvOverlapAbsolute(componentType: number, normalized: boolean): number {
+  return UV_OVERLAP_ABSOLUTE + 2 * Math.SQRT2 * componentHalfStep(componentType, normalized);
+}
+
+/**
  * Unit-length tolerance for a NORMAL or TANGENT stored with this component type:
  * UNIT_LENGTH_TOLERANCE plus the encoding's own error (encodingError), so a normalized BYTE
  * vector rounded correctly from a unit vector is unit (about 7.3e-3), SHORT about 5.3e-4,

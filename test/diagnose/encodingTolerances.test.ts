@@ -10,15 +10,20 @@
  */
 import { describe, expect, it } from 'vitest';
 import { findBadNormals } from '../../src/diagnose/badNormals.js';
+import { findUvOverlaps } from '../../src/diagnose/uvOverlap.js';
 import { isStoredTangentValid } from '../../src/diagnose/storedTangents.js';
 import { BYTE, FLOAT, SHORT } from '../../src/mesh/asset.js';
 import {
   FLOAT_TANGENT_VALIDITY,
   UNIT_LENGTH_TOLERANCE,
+  UV_OVERLAP_ABSOLUTE,
+  componentHalfStep,
   encodingError,
   tangentValidityTolerances,
   unitLengthTolerance,
+  uvOverlapAbsolute,
 } from '../../src/mesh/tolerances.js';
+import { UNSIGNED_SHORT } from '../../src/mesh/asset.js';
 
 /** Deterministic directions spread over the sphere (golden-angle spiral). */
 function directions(n: number): number[][] {
@@ -90,5 +95,37 @@ describe('encoding-aware tolerances', () => {
     stored.set([Math.sqrt(1 - c * c), 0, c, 1]);
     normal.set([0, 0, 1]);
     expect(isStoredTangentValid(stored, normal, 0, tol)).toBe(false);
+  });
+
+  it('integerTexcoordsTouchWithinTheirRounding', () => {
+    // Two triangles sharing the edge (0,0)-(100,100) in integer UV units (TEXCOORD as
+    // UNSIGNED_SHORT, KHR_mesh_quantization), the second's corner on that edge rounded half a
+    // step across it:   (0,100) 2      A = (0,0) (100,0) (100,100)
+    //                     |  B  /      B = (0,0) (100,100) (0,100), with (0,0) replaced by
+    //                     | / A |          (0.5,0): 0.35 units across A's diagonal
+    //               (0,0) 0 --- 1
+    const uvs = new Float32Array([0, 0, 100, 0, 100, 100, 0.5, 0, 100, 100, 0, 100]);
+    const indices = new Uint32Array([0, 1, 2, 3, 4, 5]);
+    expect(componentHalfStep(UNSIGNED_SHORT, false)).toBe(0.5);
+    expect(componentHalfStep(FLOAT, false)).toBe(0);
+    expect(findUvOverlaps(indices, uvs, 2).count).toBe(2); // float tolerance: an overlap
+    expect(findUvOverlaps(indices, uvs, 2, null, null, null, uvOverlapAbsolute(UNSIGNED_SHORT, false)).count).toBe(0);
+    expect(uvOverlapAbsolute(FLOAT, false)).toBe(UV_OVERLAP_ABSOLUTE);
+    // Three units across is more than rounding: still an overlap.
+    uvs[6] = 4;
+    expect(findUvOverlaps(indices, uvs, 2, null, null, null, uvOverlapAbsolute(UNSIGNED_SHORT, false)).count).toBe(2);
+  });
+
+  it('tinyFacesOfQuantizedPositionsDoNotVoteANormalFlipped', () => {
+    // Vertex 0 (normal +z) is used by one large face wound toward +z and by two slivers, one
+    // step across, wound toward -z: with float positions the slivers outvote the face; with
+    // positions rounded to integer steps their direction is within rounding and they abstain.
+    //   large: 0 (0,0) 1 (100,0) 2 (0,100) (+z); slivers: twice 0, 3 (1,1), 4 (2,1.5) (-z, area 0.25).
+    const positions = new Float32Array([0, 0, 0, 100, 0, 0, 0, 100, 0, 1, 1, 0, 2, 1, 0]);
+    const normals = new Float32Array([0, 0, 1, 0, 0, 1, 0, 0, 1, 0, 0, 1, 0, 0, 1]);
+    const indices = new Uint32Array([0, 1, 2, 0, 3, 4, 0, 3, 4]);
+    expect(findBadNormals(indices, positions, normals, 3, 5).flipped).toBe(3); // vertices 0, 3, 4
+    const q = findBadNormals(indices, positions, normals, 3, 5, UNIT_LENGTH_TOLERANCE, componentHalfStep(UNSIGNED_SHORT, false));
+    expect(q.flipped).toBe(0);
   });
 });
