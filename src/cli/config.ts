@@ -6,7 +6,7 @@
 import * as fs from 'node:fs';
 import * as path from 'node:path';
 import { TanframeError } from '../mesh/errors.js';
-import { CONFIG_FILE_NAME, checkConfig, matchesGlobs, settingsFor, waiversFor, type Config, type ConfigSettings } from '../lib/config.js';
+import { CONFIG_FILE_NAME, checkConfig, matchesGlobs, settingsFor, topSettings, waiversFor, type Config, type ConfigSettings } from '../lib/config.js';
 import { defaultProcessOptions, type GateLimit, type GateName, type ProcessOptions } from '../lib/options.js';
 import { formatLimit, parseLimit } from '../lib/gates.js';
 
@@ -101,7 +101,7 @@ function toOptions(s: ConfigSettings, o: Record<string, any>): ProcessOptions {
 }
 
 /** What a run takes from the command line and the config file together. */
-export interface RunSettings {
+export interface ResolvedSettings {
   /** The config file read, or null. */
   config: Config | null;
   /** Options for files no override matches (and for the report's `options`). */
@@ -119,11 +119,11 @@ export interface RunSettings {
  * config's top level, matching overrides (per file) and the command line, which wins.
  * Throws TanframeError 'bad-config' (exit 2) for a bad config, 'usage' for a bad --limit.
  */
-export function resolveSettings(o: Record<string, any>, cwd: string): RunSettings {
+export function resolveSettings(o: Record<string, any>, cwd: string): ResolvedSettings {
   const file = findConfigFile(o, cwd);
   const config = file ? readConfig(file, cwd) : null;
   const cli = commandLineSettings(o);
-  const top = layer(config ? settingsFor({ ...config, overrides: [] }, path.dirname(config.file)) : {}, cli);
+  const top = layer(config ? topSettings(config) : {}, cli);
   const options = toOptions(top, o);
   const merged: Record<string, any> = { ...o };
   merged.method = options.method;
@@ -157,7 +157,7 @@ export function resolveSettings(o: Record<string, any>, cwd: string): RunSetting
  * A job's own options and waivers from the config (nothing without a config file, so jobs
  * then run with the batch's options).
  */
-export function perFile(settings: RunSettings, file: string): { options?: ProcessOptions; waivers?: { gate: string; reason: string }[] } {
+export function perFile(settings: ResolvedSettings, file: string): { options?: ProcessOptions; waivers?: { gate: string; reason: string }[] } {
   if (!settings.config) return {};
   return settings.forFile(file);
 }

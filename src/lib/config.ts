@@ -166,6 +166,13 @@ export function matchesGlobs(config: Config, globs: string[], file: string): boo
   return picomatch(globs, { dot: true })(rel);
 }
 
+/** The top-level settings of `config` (for every file, before overrides). */
+export function topSettings(config: Config): ConfigSettings {
+  const out: ConfigSettings = {};
+  for (const k of SETTING_KEYS) if (config[k] !== undefined) (out as Record<string, unknown>)[k] = config[k];
+  return out;
+}
+
 /** The settings of `config` for absolute path `file`: the top level, then each matching override in order. */
 export function settingsFor(config: Config, file: string): ConfigSettings {
   const out: ConfigSettings = {};

@@ -24,8 +24,9 @@ export interface GateInfo {
  * - invalid-values: vertices holding a NaN or infinite value, over vertices;
  * - bad-normals: vertices whose stored normal is zero, not unit (for its encoding) or flipped, over vertices;
  * - tangent-mismatch: corners whose stored tangent is more than --tolerance degrees off the
- *   recomputed one or has the other sign, over the compared corners; an invalid stored
- *   tangent (not unit for its encoding, not orthogonal, w not +-1) trips it whatever the limit;
+ *   recomputed one or has the other sign, over the compared corners; and apart, vertices whose
+ *   stored tangent is invalid (not unit for its encoding, not orthogonal, w not +-1), over the
+ *   vertices of primitives with stored tangents: either part beyond the limit trips it;
  * - missing-tangents: triangles of normal-mapped primitives that store no TANGENT, over triangles;
  * - uv-overlap: triangles that partly overlap another one in UV space, over triangles;
  * - unchecked: the file had gates asked for and no primitive could be checked (no limit).
@@ -123,13 +124,22 @@ export function wasChecked(p: PrimitiveReport): boolean {
   return p.action !== 'skipped';
 }
 
+/** One gate's count and population; tangent-mismatch adds its invalid stored tangents (vertices). */
+export interface GateCount {
+  count: number;
+  population: number;
+  invalid: number;
+  invalidPopulation: number;
+}
+
 /**
  * A file's figure for each gate: the count and population of GATE_INFO over its checked
- * primitives, and (for tangent-mismatch) the invalid stored tangents that trip it anyway.
+ * primitives, and (for tangent-mismatch) the invalid stored tangents over the vertices that
+ * store one.
  */
-export function gateCounts(primitives: PrimitiveReport[]): Record<GateName, { count: number; population: number; invalid: number }> {
-  const z = () => ({ count: 0, population: 0, invalid: 0 });
-  const out = {} as Record<GateName, { count: number; population: number; invalid: number }>;
+export function gateCounts(primitives: PrimitiveReport[]): Record<GateName, GateCount> {
+  const z = () => ({ count: 0, population: 0, invalid: 0, invalidPopulation: 0 });
+  const out = {} as Record<GateName, GateCount>;
   for (const g of GATE_NAMES) out[g] = z();
   let checked = 0;
   for (const p of primitives) {
@@ -148,6 +158,7 @@ export function gateCounts(primitives: PrimitiveReport[]): Record<GateName, { co
     if (s) {
       add('tangent-mismatch', s.mismatched, s.compared);
       out['tangent-mismatch'].invalid += s.invalid;
+      out['tangent-mismatch'].invalidPopulation += vert;
     }
   }
   out.unchecked.count = primitives.length > 0 && checked === 0 ? 1 : 0;
@@ -171,7 +182,7 @@ export function gateFigures(primitives: PrimitiveReport[], options: ProcessOptio
     if (g === 'unchecked') tripped = unchecked;
     else {
       tripped = exceeds(c.count, c.population, limit);
-      if (g === 'tangent-mismatch' && c.invalid > 0) tripped = true;
+      if (g === 'tangent-mismatch' && exceeds(c.invalid, c.invalidPopulation, limit)) tripped = true;
     }
     const figure: GateFigure = {
       gate: g,
@@ -181,7 +192,10 @@ export function gateFigures(primitives: PrimitiveReport[], options: ProcessOptio
       limit: formatLimit(limit),
       tripped,
     };
-    if (g === 'tangent-mismatch') figure.invalid = c.invalid;
+    if (g === 'tangent-mismatch') {
+      figure.invalid = c.invalid;
+      figure.invalidOf = c.invalidPopulation;
+    }
     out.push(figure);
   }
   return out;

@@ -27,18 +27,22 @@ function storedMismatch(p: PrimitiveReport): number {
 }
 
 /**
- * The line a tripped gate prints: `degenerate-uv 12 > 0`, or with a percent limit
- * `tangent-mismatch 4.20% > 1% (120 of 2,860 corners)`; invalid stored tangents are added.
+ * The line a gate prints: `degenerate-uv 12 > 0`, or with a percent limit
+ * `tangent-mismatch 4.20% > 1% (120 of 2,860 corners)`; tangent-mismatch adds its invalid
+ * stored tangents when there are any (`, 3 invalid stored tangents of 400 vertices`).
  */
 export function gateLine(f: GateFigure): string {
   if (f.gate === 'unchecked') return 'unchecked: nothing could be checked';
-  const extra = f.invalid ? `, ${n(f.invalid)} invalid stored tangents` : '';
-  if (f.limit.endsWith('%')) {
-    const share = f.population > 0 ? (f.count * 100) / f.population : 0;
-    const over = share > Number(f.limit.slice(0, -1));
-    return `${f.gate} ${share.toFixed(2)}% ${over ? '>' : '<='} ${f.limit} (${n(f.count)} of ${n(f.population)} ${f.of}${extra})`;
+  const pct = f.limit.endsWith('%');
+  const limit = pct ? Number(f.limit.slice(0, -1)) : Number(f.limit);
+  const share = (count: number, of: number) => (of > 0 ? (count * 100) / of : 0);
+  const part = (count: number, of: number) => (pct ? share(count, of) > limit : count > limit) ? '>' : '<=';
+  const extra = f.invalid ? `${n(f.invalid)} invalid stored tangents of ${n(f.invalidOf ?? 0)} vertices` : '';
+  if (pct) {
+    const s = share(f.count, f.population);
+    return `${f.gate} ${s.toFixed(2)}% ${part(f.count, f.population)} ${f.limit} (${n(f.count)} of ${n(f.population)} ${f.of}${extra ? `; ${extra}, ${share(f.invalid!, f.invalidOf ?? 0).toFixed(2)}% ${part(f.invalid!, f.invalidOf ?? 0)} ${f.limit}` : ''})`;
   }
-  return `${f.gate} ${n(f.count)} ${f.count > Number(f.limit) ? '>' : '<='} ${f.limit}${extra ? ` (${extra.slice(2)})` : ''}`;
+  return `${f.gate} ${n(f.count)} ${part(f.count, f.population)} ${f.limit}${extra ? ` (${extra}, ${part(f.invalid!, f.invalidOf ?? 0)} ${f.limit})` : ''}`;
 }
 
 /** Findings of one primitive, summed (the order of rows and files); 0 when skipped. */

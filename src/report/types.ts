@@ -103,8 +103,12 @@ export interface GateFigure {
   /** The limit in force, as written: "0" or "1%". */
   limit: string;
   tripped: boolean;
-  /** tangent-mismatch only: invalid stored tangents (vertices), which trip it whatever the limit. */
+  /**
+   * tangent-mismatch only: vertices with an invalid stored tangent, and the vertices of the
+   * primitives that store tangents; judged against the same limit as the corners.
+   */
   invalid?: number;
+  invalidOf?: number;
 }
 
 /** Totals over all files. */

@@ -209,7 +209,7 @@ describe('audit finds planted defects exactly', () => {
     const lenient = await audit([grid('tangents-wrong'), '--fail-on', 'tangent-mismatch']);
     expect(lenient.code).toBe(0);
     expect(lenient.report.files[0].gateFigures).toEqual([
-      { gate: 'tangent-mismatch', count: 2, population: 384, of: 'corners', limit: '1%', tripped: false, invalid: 0 },
+      { gate: 'tangent-mismatch', count: 2, population: 384, of: 'corners', limit: '1%', tripped: false, invalid: 0, invalidOf: 384 },
     ]);
     const r = await audit([grid('tangents-wrong'), '--fail-on', 'tangent-mismatch', '--limit', 'tangent-mismatch=0']);
     expect(r.code).toBe(1);

@@ -85,14 +85,22 @@ describe('gate figures', () => {
     expect(exceeds(0, 0, { percent: 0 })).toBe(false);
   });
 
-  it('tangentMismatchCountsCornersWithADefaultOfOnePercentAndInvalidTangentsAlwaysTrip', () => {
+  it('tangentMismatchCountsCornersAndInvalidTangentsApartAgainstADefaultOfOnePercent', () => {
     const stored = (mismatched: number, compared: number, invalid = 0) => ({
       invalid, meanAngleDeg: 0, p95AngleDeg: 0, maxAngleDeg: 0, signMismatch: 0, compared, mismatched,
     });
     const o = opts({ failOn: ['tangent-mismatch'] });
     expect(trippedGates([prim(100, 100, { storedTangents: stored(3, 300) })], o)).toEqual([]); // 1.00%: not above
     expect(trippedGates([prim(100, 100, { storedTangents: stored(4, 300) })], o)).toEqual(['tangent-mismatch']);
-    expect(trippedGates([prim(100, 100, { storedTangents: stored(0, 300, 1) })], o)).toEqual(['tangent-mismatch']);
+    // Invalid stored tangents are vertices, judged over the vertices that store tangents.
+    expect(trippedGates([prim(100, 100, { storedTangents: stored(0, 300, 1) })], o)).toEqual([]); // 1 of 100: 1%
+    expect(trippedGates([prim(100, 100, { storedTangents: stored(0, 300, 2) })], o)).toEqual(['tangent-mismatch']);
+    const strict = opts({ failOn: ['tangent-mismatch'], limits: { 'tangent-mismatch': { count: 0 } } });
+    const [f] = gateFigures([prim(100, 100, { storedTangents: stored(0, 300, 1) })], strict, false);
+    expect(f).toMatchObject({ count: 0, population: 300, invalid: 1, invalidOf: 100, tripped: true });
+    expect(gateLine(f)).toBe('tangent-mismatch 0 <= 0 (1 invalid stored tangents of 100 vertices, > 0)');
+    const [g] = gateFigures([prim(100, 100, { storedTangents: stored(6, 300, 3) })], o, false);
+    expect(gateLine(g)).toBe('tangent-mismatch 2.00% > 1% (6 of 300 corners; 3 invalid stored tangents of 100 vertices, 3.00% > 1%)');
   });
 
   it('missingTangentsCountsTheTrianglesOfNormalMappedPrimitivesWithoutThem', () => {
