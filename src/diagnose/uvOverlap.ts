@@ -40,14 +40,13 @@ export interface UvOverlapStats {
  * Finds the triangles of one UV set that overlap another triangle of the same set in UV space
  * with positive area (a baked map cannot hold two values at one texel).
  * - Touching is not overlap: triangles sharing an edge or a vertex, or penetrating each other
- *   by no more than `touching` UV units (default UV_OVERLAP_ABSOLUTE; uvOverlapAbsolute gives
- *   the value for a quantized TEXCOORD) or UV_OVERLAP_RELATIVE of the smaller triangle's extent
+ *   by no more than `layout.touching` UV units (default UV_OVERLAP_ABSOLUTE; uvOverlapAbsolute
+ *   gives the value for a quantized TEXCOORD) or UV_OVERLAP_RELATIVE of the smaller triangle's extent
  *   along the separating edge normal, are not reported.
  * - Mirroring onto themselves is not overlap: a pair whose two UV triangles coincide exactly
  *   (the same three UV points, bit for bit, in any order) is intentional stacking, as when
- *   the left and right halves of a symmetric model share one set of UVs, and is skipped.
- *   Partial overlaps are reported, including stacked shells triangulated differently.
- *   Exact copies are grouped first (a hash of the sorted UV points), so only one triangle of
+ *   the left and right halves of a symmetric model share one set of UVs, and is skipped
+ *   (and marked stacked). Exact copies are grouped first (a hash of the sorted UV points), so only one triangle of
  *   each group enters the grid and thousands of stacked copies cost linear time; every copy
  *   takes its group's verdict.
  * - Degenerate-UV triangles (UV_DEGENERATE_RELATIVE) and triangles with a NaN or infinite UV
@@ -70,7 +69,7 @@ export interface UvOverlapStats {
  *   a fold and stays an overlap.
  * Returns count = triangles involved in at least one partial overlap, and the first MAX_LISTED
  * of their indices, ascending. When `marks` is given (length >= triangleCount), marks[t] is set
- * to 1 for each overlapping triangle and 0 otherwise; when `stacked` is given (same length) it
+ * to 1 for each overlapping triangle and 0 otherwise; when `layout.stacked` is given (same length) it
  * is set to 1 for each triangle lying exactly on another (an exact copy, or a stacked shell's
  * triangle overlapping its twin) and 0 otherwise; when `stats` is given it receives the
  * broad-phase figures. Memory: about 18 bytes per triangle plus the cell lists (4 bytes per cell and per
@@ -83,9 +82,10 @@ export function findUvOverlaps(
   triangleCount: number,
   marks: Uint8Array | null = null,
   stats: UvOverlapStats | null = null,
-  stacked: Uint8Array | null = null,
-  touching: number = UV_OVERLAP_ABSOLUTE,
+  layout: UvLayoutOptions = {},
 ): Finding {
+  const stacked = layout.stacked ?? null;
+  const touching = layout.touching ?? UV_OVERLAP_ABSOLUTE;
   assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
   assert(!marks || marks.length >= triangleCount, 'marks must hold one entry per triangle');
   assert(!stacked || stacked.length >= triangleCount, 'stacked must hold one entry per triangle');
@@ -253,6 +253,14 @@ export function findUvOverlaps(
     }
   }
   return findingFromMarks(flags, triangleCount);
+}
+
+/** What findUvOverlaps may also do and know besides partial overlaps. */
+export interface UvLayoutOptions {
+  /** Receives 1 per triangle lying exactly on another (stacked), 0 otherwise (triangleCount entries). */
+  stacked?: Uint8Array | null;
+  /** Absolute touching tolerance in UV units (default UV_OVERLAP_ABSOLUTE). */
+  touching?: number;
 }
 
 /** Per triangle its shell, and per shell two hashes of its UV points and its UV area. */

@@ -66,7 +66,7 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
   const validity = input.tangentValidity ?? FLOAT_TANGENT_VALIDITY;
   report.badNormals = { count: normals ? findBadNormals(indices, positions, normals, triangleCount, vertexCount, unitTolerance, input.positionHalfStep ?? 0).count : 0 };
   const stacked = new Uint8Array(triangleCount);
-  report.uvOverlap = findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null, null, stacked, input.uvTouching);
+  report.uvOverlap = findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null, null, { stacked, touching: input.uvTouching });
   report.stackedShells = findingFromMarks(stacked, triangleCount);
   let valid = false;
   if (storedTangents) {

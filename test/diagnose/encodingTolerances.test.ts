@@ -109,11 +109,11 @@ describe('encoding-aware tolerances', () => {
     expect(componentHalfStep(UNSIGNED_SHORT, false)).toBe(0.5);
     expect(componentHalfStep(FLOAT, false)).toBe(0);
     expect(findUvOverlaps(indices, uvs, 2).count).toBe(2); // float tolerance: an overlap
-    expect(findUvOverlaps(indices, uvs, 2, null, null, null, uvOverlapAbsolute(UNSIGNED_SHORT, false)).count).toBe(0);
+    expect(findUvOverlaps(indices, uvs, 2, null, null, { touching: uvOverlapAbsolute(UNSIGNED_SHORT, false) }).count).toBe(0);
     expect(uvOverlapAbsolute(FLOAT, false)).toBe(UV_OVERLAP_ABSOLUTE);
     // Three units across is more than rounding: still an overlap.
     uvs[6] = 4;
-    expect(findUvOverlaps(indices, uvs, 2, null, null, null, uvOverlapAbsolute(UNSIGNED_SHORT, false)).count).toBe(2);
+    expect(findUvOverlaps(indices, uvs, 2, null, null, { touching: uvOverlapAbsolute(UNSIGNED_SHORT, false) }).count).toBe(2);
   });
 
   it('tinyFacesOfQuantizedPositionsDoNotVoteANormalFlipped', () => {

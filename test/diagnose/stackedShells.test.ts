@@ -24,7 +24,7 @@ describe('stacked shells', () => {
   it('aCopyTriangulatedTheOtherWayIsStackedNotOverlapping', () => {
     const m = stackedQuads(QUAD);
     const stacked = new Uint8Array(4);
-    const overlap = findUvOverlaps(m.indices, m.uvs, m.triangleCount, null, null, stacked);
+    const overlap = findUvOverlaps(m.indices, m.uvs, m.triangleCount, null, null, { stacked });
     expect(overlap).toEqual({ count: 0, triangles: [] });
     expect([...stacked]).toEqual([1, 1, 1, 1]);
   });
@@ -34,7 +34,7 @@ describe('stacked shells', () => {
     // points and area as A, with the other UV orientation.
     const m = stackedQuads([1, 0, 0, 0, 0, 1, 1, 1]);
     const stacked = new Uint8Array(4);
-    expect(findUvOverlaps(m.indices, m.uvs, m.triangleCount, null, null, stacked).count).toBe(0);
+    expect(findUvOverlaps(m.indices, m.uvs, m.triangleCount, null, null, { stacked }).count).toBe(0);
     expect([...stacked]).toEqual([1, 1, 1, 1]);
   });
 
@@ -43,7 +43,7 @@ describe('stacked shells', () => {
     const indices = new Uint32Array([0, 1, 2, 3, 4, 5]);
     const uvs = new Float32Array([0, 0, 1, 0, 0, 1, 1, 0, 0, 1, 0, 0]);
     const stacked = new Uint8Array(2);
-    expect(findUvOverlaps(indices, uvs, 2, null, null, stacked).count).toBe(0);
+    expect(findUvOverlaps(indices, uvs, 2, null, null, { stacked }).count).toBe(0);
     expect([...stacked]).toEqual([1, 1]);
   });
 
@@ -51,7 +51,7 @@ describe('stacked shells', () => {
     // Shell B moved right by 0.5: same shape, other points: it overlaps A partly.
     const m = stackedQuads([0.5, 0, 1.5, 0, 1.5, 1, 0.5, 1]);
     const stacked = new Uint8Array(4);
-    const overlap = findUvOverlaps(m.indices, m.uvs, m.triangleCount, null, null, stacked);
+    const overlap = findUvOverlaps(m.indices, m.uvs, m.triangleCount, null, null, { stacked });
     expect(overlap.count).toBe(4);
     expect([...stacked]).toEqual([0, 0, 0, 0]);
   });
@@ -61,7 +61,7 @@ describe('stacked shells', () => {
     const uvs = new Float32Array([...QUAD, ...QUAD]);
     const indices = new Uint32Array([0, 1, 2, 0, 2, 3, 5, 6, 7]);
     const stacked = new Uint8Array(3);
-    const overlap = findUvOverlaps(indices, uvs, 3, null, null, stacked);
+    const overlap = findUvOverlaps(indices, uvs, 3, null, null, { stacked });
     expect(overlap.count).toBe(3);
     expect([...stacked]).toEqual([0, 0, 0]);
   });
@@ -73,7 +73,7 @@ describe('stacked shells', () => {
     const uvs = new Float32Array([0, 0, 1, 0, 1, 1, 0, 1, 0.8, 0.2]);
     const indices = new Uint32Array([0, 1, 2, 0, 2, 4]);
     const stacked = new Uint8Array(2);
-    expect(findUvOverlaps(indices, uvs, 2, null, null, stacked).count).toBe(2);
+    expect(findUvOverlaps(indices, uvs, 2, null, null, { stacked }).count).toBe(2);
     expect([...stacked]).toEqual([0, 0]);
   });
 });
