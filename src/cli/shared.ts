@@ -71,7 +71,7 @@ function gateList(value: string): GateName[] {
   return names as GateName[];
 }
 
-function collect(value: string, previous: string[] | undefined): string[] {
+function limitArg(value: string, previous: string[] | undefined): string[] {
   try {
     parseLimit(value);
   } catch (err) {
@@ -98,7 +98,7 @@ export function addSharedOptions(cmd: Command): Command {
     .option('--uv <n>', 'TEXCOORD set to derive frames from (default: the normal texture\'s set, else 0)', intArg(0))
     .option('--all-primitives', 'also primitives whose material has no normal texture')
     .option('--fail-on <gates>', `comma list of gates: ${GATE_NAMES.join(', ')}`, gateList)
-    .option('--limit <gate=n|gate=p%>', 'repeatable: the gate trips when its count exceeds n, or its share of what it counts exceeds p percent (defaults: tangent-mismatch=1%, the others 0)', collect)
+    .option('--limit <gate=n|gate=p%>', 'repeatable: the gate trips when its count exceeds n, or its share of what it counts exceeds p percent (defaults: tangent-mismatch=1%, the others 0)', limitArg)
     .option('--max-degenerate-uv <n>', 'same as --limit degenerate-uv=<n>', intArg(0))
     .option('--tolerance <deg>', 'angle beyond which a stored tangent counts as mismatched (default 1)', numberArg(0, 180))
     .option('--config <file>', `read settings from this file instead of the nearest tanframe.config.json`)
