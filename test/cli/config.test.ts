@@ -209,6 +209,19 @@ describe('tanframe.config.json', () => {
     expect(fs.readFileSync(path.join(root, 'w.html'), 'utf8')).toContain('waived: degenerate-uv 5 &gt; 0 \u2014 collapsed on purpose, replaced next sprint');
   });
 
+  it('bakeReadsTheSameFile', async () => {
+    writeConfig(project, {
+      failOn: ['degenerate-uv'],
+      waivers: [{ files: ['props/legacy/**'], gates: ['degenerate-uv'], reason: 'kept as it is' }],
+    });
+    const gated = await runCli(['bake', 'props/crate.glb', '--dry-run', '--json', '--jobs', '1'], project);
+    expect(gated.code).toBe(1);
+    expect(JSON.parse(gated.stdout).files[0].gates).toEqual(['degenerate-uv']);
+    const waived = await runCli(['bake', 'props/legacy/old.glb', '--dry-run', '--json', '--jobs', '1'], project);
+    expect(waived.code).toBe(0);
+    expect(JSON.parse(waived.stdout).files[0].waived).toEqual([{ gate: 'degenerate-uv', reason: 'kept as it is' }]);
+  });
+
   it('configAndNoConfigChooseTheFile', async () => {
     writeConfig(project, { failOn: ['degenerate-uv'] });
     const other = path.join(root, 'strict.json');
