@@ -60,6 +60,7 @@ function gateList(file: string, key: string, x: unknown): GateName[] {
   for (const g of list) {
     if (!(GATE_NAMES as readonly string[]).includes(g)) fail(file, key, `unknown gate '${g}' (gates: ${GATE_NAMES.join(', ')})`);
   }
+  if (new Set(list).size !== list.length) fail(file, key, 'a gate is named twice');
   return list as GateName[];
 }
 
@@ -126,10 +127,11 @@ export function checkConfig(json: unknown, file: string, shownAs: string = file)
   const name = shownAs;
   if (!isObject(json)) fail(name, '(top level)', 'expected a JSON object');
   unknownKeys(name, '', json, TOP_KEYS);
-  if (json.schema !== undefined && json.schema !== CONFIG_SCHEMA) fail(name, 'schema', `expected "${CONFIG_SCHEMA}"`);
+  if (json.schema === undefined) fail(name, 'schema', `missing (expected "${CONFIG_SCHEMA}")`);
+  if (json.schema !== CONFIG_SCHEMA) fail(name, 'schema', `expected "${CONFIG_SCHEMA}"`);
   const config: Config = { file, exclude: [], overrides: [], waivers: [] };
   settings(name, '', json, config);
-  if (json.exclude !== undefined) config.exclude = stringList(name, 'exclude', json.exclude, false);
+  if (json.exclude !== undefined) config.exclude = stringList(name, 'exclude', json.exclude, true);
   if (json.overrides !== undefined) {
     if (!Array.isArray(json.overrides)) fail(name, 'overrides', 'expected a list of { files, ...settings }');
     json.overrides.forEach((o: unknown, i: number) => {

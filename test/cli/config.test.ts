@@ -44,8 +44,10 @@ afterAll(() => {
   fs.rmSync(root, { recursive: true, force: true });
 });
 
+/** Writes a config; an object gets `"schema": "tanframe-config/1"` first unless it names its own. */
 function writeConfig(dir: string, config: unknown): void {
-  fs.writeFileSync(path.join(dir, 'tanframe.config.json'), typeof config === 'string' ? config : JSON.stringify(config, null, 2));
+  const text = typeof config === 'string' ? config : JSON.stringify({ schema: 'tanframe-config/1', ...(config as object) }, null, 2);
+  fs.writeFileSync(path.join(dir, 'tanframe.config.json'), text);
 }
 
 async function audit(cwd: string, args: string[]): Promise<{ code: number; stdout: string; stderr: string; report: any }> {
@@ -225,7 +227,7 @@ describe('tanframe.config.json', () => {
   it('configAndNoConfigChooseTheFile', async () => {
     writeConfig(project, { failOn: ['degenerate-uv'] });
     const other = path.join(root, 'strict.json');
-    fs.writeFileSync(other, JSON.stringify({ failOn: ['degenerate-uv'], limits: { 'degenerate-uv': 3 } }));
+    fs.writeFileSync(other, JSON.stringify({ schema: 'tanframe-config/1', failOn: ['degenerate-uv'], limits: { 'degenerate-uv': 3 } }));
     expect((await audit(project, ['props/crate.glb'])).code).toBe(1);
     expect((await audit(project, ['props/crate.glb', '--config', '../strict.json'])).code).toBe(0);
     expect((await audit(project, ['props/crate.glb', '--no-config'])).code).toBe(0);
@@ -245,6 +247,9 @@ describe('tanframe.config.json', () => {
       [{ waivers: [{ files: ['x/**'], gates: ['uv-overlap'] }] }, /waivers\[0\]\.reason: missing/],
       [{ waivers: [{ files: ['x/**'], gates: ['uv-overlap'], reason: ' ' }] }, /waivers\[0\]\.reason: expected a non-empty string/],
       [{ schema: 'tanframe-config/2' }, /schema: expected "tanframe-config\/1"/],
+      ['{ "failOn": [] }', /schema: missing/],
+      [{ exclude: [] }, /exclude: expected at least one entry/],
+      [{ failOn: ['uv-overlap', 'uv-overlap'] }, /failOn: a gate is named twice/],
       [{ uv: -1 }, /uv: expected an integer >= 0/],
       ['{ "failOn": [', /not valid JSON/],
     ];
