@@ -3,7 +3,9 @@
 // /usr/bin/chromium through playwright-core; .ci/run installs it), where computeFrames runs
 // on test meshes; the results must equal Node's bit for bit (the solve is deterministic
 // float64 arithmetic stored as float32, which every conforming JavaScript engine performs
-// identically: ECMAScript's Number and Math.fround semantics).
+// identically: ECMAScript's Number and Math.fround semantics). Also the main entry as a web
+// application's Vite build takes it (Node.js built-ins replaced by empty modules): it must
+// load in the page without throwing, since nothing runs at import time.
 import { existsSync } from 'node:fs';
 import * as path from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -32,6 +34,20 @@ async function bundleFrames(): Promise<{ code: string; bytes: number }> {
   });
   const code = result.outputFiles[0].text;
   return { code, bytes: Buffer.byteLength(code) };
+}
+
+/** Vite's production build of a page importing `tanframe` (the main entry): its chunks by file name. */
+async function viteBuildOfMainEntry(): Promise<Map<string, string>> {
+  const { build } = await import('vite');
+  const out: any = await build({
+    configFile: false,
+    logLevel: 'silent',
+    root: repoRoot,
+    build: { lib: { entry: path.join(repoRoot, 'dist/index.js'), formats: ['es'], fileName: 'bundle' }, write: false, minify: false },
+  });
+  const chunks = new Map<string, string>();
+  for (const o of (Array.isArray(out) ? out : [out]).flatMap((r: any) => r.output)) if (o.type === 'chunk') chunks.set(o.fileName, o.code);
+  return chunks;
 }
 
 interface Case {
@@ -110,6 +126,47 @@ describe('tanframe/frames in a browser', () => {
       // The mirrored sheet really split vertices, so the split path ran in the browser too.
       expect(computeFrames(cases()[1], cases()[1].options).stats.splitVertices).toBeGreaterThan(0);
       expect(errors).toEqual([]);
+    } finally {
+      await browser.close();
+    }
+  });
+
+  it.skipIf(!hasChromium)('viteBuildOfTheMainEntryLoadsInChromium', async () => {
+    const chunks = await viteBuildOfMainEntry();
+    expect(chunks.has('bundle.js')).toBe(true);
+    const { chromium } = await import('playwright-core');
+    const browser = await chromium.launch({ executablePath: CHROMIUM, args: ['--no-sandbox'] });
+    try {
+      const page = await browser.newPage();
+      const errors: string[] = [];
+      page.on('pageerror', (e) => errors.push(String(e)));
+      // The built files served from memory at a made-up origin.
+      await page.route('http://tanframe.invalid/**', (route) => {
+        const name = new URL(route.request().url()).pathname.slice(1);
+        if (name === 'index.html') {
+          return route.fulfill({
+            contentType: 'text/html',
+            body: "<!doctype html><script type=module>import * as t from './bundle.js'; window.tanframe = t; window.loaded = true;</script>",
+          });
+        }
+        const code = chunks.get(name);
+        return code === undefined ? route.fulfill({ status: 404, body: '' }) : route.fulfill({ contentType: 'text/javascript', body: code });
+      });
+      await page.goto('http://tanframe.invalid/index.html');
+      await page.waitForFunction('window.loaded === true || false', null, { timeout: 20_000 }).catch(() => undefined);
+      expect(errors).toEqual([]);
+      expect(await page.evaluate('window.loaded === true')).toBe(true);
+      const c = cases()[0];
+      const node = bits(computeFrames({ positions: c.positions, normals: c.normals, uvs: c.uvs, indices: c.indices }, c.options));
+      const viaMain = await page.evaluate(
+        ({ p, n, uv, idx, options }) => {
+          const r = (window as any).tanframe.computeFrames(
+            { positions: new Float32Array(p), normals: new Float32Array(n), uvs: new Float32Array(uv), indices: new Uint32Array(idx) }, options);
+          return Array.from(new Uint32Array(r.tangents.buffer, r.tangents.byteOffset, r.tangents.length));
+        },
+        { p: Array.from(c.positions), n: Array.from(c.normals), uv: Array.from(c.uvs), idx: Array.from(c.indices), options: c.options },
+      );
+      expect(viaMain).toEqual(node.tangentBits);
     } finally {
       await browser.close();
     }
