@@ -1,6 +1,8 @@
 /**
- * tanframe's library API. `computeFrames` is the stable contract (DESIGN.md); the file-level
- * functions are the same ones the CLI uses.
+ * tanframe's library API (the `tanframe` entry, without the command line: that is
+ * `tanframe/cli`; `computeFrames` alone, with no Node.js imports, is `tanframe/frames`).
+ * `computeFrames` is the stable contract (DESIGN.md); the file-level functions are the same
+ * ones the CLI uses. Every type an exported signature names is exported here too.
  */
 export { computeFrames } from './frames/computeFrames.js';
 export type { FrameInput, FrameOptions, FrameResult, FrameStats, FrameMethod, TangentWeight, UvOrigin } from './mesh/types.js';

@@ -80,6 +80,7 @@ const KIND_NAMES: Record<ImageKind, string> = {
  * MAX_IMAGE_SIDE, and 'read-failed' for a damaged PNG. Messages are one line.
  */
 export function decodePng(bytes: Uint8Array): PngImage {
+  if (!(bytes instanceof Uint8Array)) throw new TanframeError('invalid-argument', 'assertion failed: decodePng needs a Uint8Array');
   const kind = detectImageKind(bytes);
   if (kind !== 'png') {
     const what = kind === 'unknown' ? 'not a PNG image' : `${KIND_NAMES[kind]} images are not supported`;

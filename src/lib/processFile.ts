@@ -44,6 +44,7 @@ export interface FileOutcome {
 
 /** Reads any supported mesh file by its extension, within `limits` (default limits when omitted). */
 export async function readAsset(file: string, limits: ReadLimits = {}): Promise<Asset> {
+  assert(typeof file === 'string' && file.length > 0, 'readAsset: file must be a path');
   const ext = path.extname(file).toLowerCase();
   if (ext === '.glb' || ext === '.gltf') return readGltf(file, limits);
   if (ext === '.obj') return readObj(file, limits);

@@ -137,7 +137,7 @@ describe('package entries', () => {
   });
 
   it('contractBreachesThrowTanframeErrorWithAStableCode', async () => {
-    const { computeFrames, readAssetBytes, encodePng, TanframeError } = await import('tanframe');
+    const { computeFrames, readAsset, readAssetBytes, decodePng, encodePng, TanframeError } = await import('tanframe');
     const breaches: (() => unknown)[] = [
       () => computeFrames(undefined as any),
       () => computeFrames({ positions: [0, 0, 0] as any, normals: new Float32Array(3), uvs: new Float32Array(2) }),
@@ -152,6 +152,8 @@ describe('package entries', () => {
       expect((thrown as InstanceType<typeof TanframeError>).code).toBe('invalid-argument');
     }
     await expect(readAssetBytes('not bytes' as any, 'a.glb')).rejects.toMatchObject({ name: 'TanframeError', code: 'invalid-argument' });
+    await expect(readAsset(42 as any)).rejects.toMatchObject({ name: 'TanframeError', code: 'invalid-argument' });
+    expect(() => decodePng('png' as any)).toThrow(expect.objectContaining({ code: 'invalid-argument' }));
   });
 });
 
