@@ -10,7 +10,9 @@ import * as path from 'node:path';
 import type { Asset } from '../mesh/asset.js';
 import { TanframeError } from '../mesh/errors.js';
 import type { OutputFile } from '../io/files.js';
+import { isBufferFileOf } from '../io/gltfWrite.js';
 import { isInside, realPathOfNearestExisting, resolveResourceUri } from '../io/uri.js';
+import type { JobWrites } from './writePlan.js';
 
 /** Real path of `p` through its deepest existing ancestor, or `p` itself when that fails. */
 function realOrSelf(p: string): string {
@@ -58,13 +60,16 @@ async function holds(p: string, bytes: Uint8Array): Promise<boolean> {
  * ('usage'). A file whose path is one the asset was read from (the input, its .bin, its
  * images) is dropped when it already holds the same bytes (an image copied onto itself);
  * with other bytes it is refused ('usage') unless the bake is in place, so an input is
- * never modified otherwise.
+ * never modified otherwise. With the run's write plan for this job (`writes`), every file must
+ * be one it planned, or the buffer named by its content beside the main output (named only
+ * now); and no file may be a symbolic link ('usage'): the late half of the write plan's guard.
  */
-export async function guardOutputs(files: OutputFile[], output: string, input: string, asset: Asset): Promise<OutputFile[]> {
+export async function guardOutputs(files: OutputFile[], output: string, input: string, asset: Asset, writes?: JobWrites): Promise<OutputFile[]> {
   const main = path.resolve(output);
   const root = path.dirname(main);
   const realRoot = realOrSelf(root);
-  const inPlace = main === path.resolve(input);
+  const inPlace = realOrSelf(main) === realOrSelf(path.resolve(input));
+  const planned = writes ? new Set(writes.files.map((p) => path.resolve(p))) : null;
   const protectedFiles = inputFiles(asset, input);
   const seen = new Set<string>();
   const kept: OutputFile[] = [];
@@ -81,6 +86,12 @@ export async function guardOutputs(files: OutputFile[], output: string, input: s
     if (protectedFiles.has(real)) {
       if (await holds(real, file.bytes)) continue;
       if (!inPlace) throw new TanframeError('usage', `the output file '${shown}' would overwrite a file the input is read from; choose another output folder or name`);
+    }
+    if (planned && !planned.has(abs) && !(path.dirname(abs) === root && isBufferFileOf(main, path.basename(abs)))) {
+      throw new TanframeError('usage', `the output file '${shown}' is not in the run's write plan`);
+    }
+    if ((await fsp.lstat(abs).catch(() => null))?.isSymbolicLink()) {
+      throw new TanframeError('usage', `the output file '${shown}' is a symbolic link; tanframe writes through a link only when it is named itself`);
     }
     kept.push(file);
   }
