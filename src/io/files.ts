@@ -196,7 +196,11 @@ async function currentState(target: string, bytes: Uint8Array): Promise<{ mode: 
  * Test seam: called after every other file of an asset is in place and before its main file
  * (the .gltf JSON) is renamed. Only tests set it, to stop a run at that moment.
  */
-export const writeHooks: { beforeMainRename?: (main: string) => void | Promise<void> } = {};
+export const writeHooks: {
+  beforeMainRename?: (main: string) => void | Promise<void>;
+  /** Called after the main file is in place and before what the old asset named is removed. */
+  afterMainRename?: (main: string) => void | Promise<void>;
+} = {};
 
 /** Throws (EISDIR) when `target` exists as a folder, so no rename starts that would fail on it. */
 async function checkReplaceable(target: string): Promise<void> {
@@ -270,6 +274,7 @@ export async function writeFilesAtomic(files: OutputFile[], options: AssetWriteO
       await fsp.rename(temps[i], path.resolve(files[i].path));
       temps[i] = '';
     }
+    if (order.length > 0) await writeHooks.afterMainRename?.(main);
   } catch (err) {
     await removeQuietly(temps.filter((t) => !!t));
     throw new TanframeError('write-failed', `cannot write '${current}': ${describeFsError(err)}`);

@@ -58,7 +58,8 @@ async function holds(p: string, bytes: Uint8Array): Promise<boolean> {
  * are the same path. Every file must lie inside the main output's folder, lexically and
  * after resolving symbolic links ('bad-uri' otherwise); two files may not share a path
  * ('usage'). A file whose path is one the asset was read from (the input, its .bin, its
- * images) is dropped when it already holds the same bytes (an image copied onto itself);
+ * images) is passed on unchecked when it already holds the same bytes (an image copied onto
+ * itself: writeFilesAtomic leaves equal bytes alone);
  * with other bytes it is refused ('usage') unless the bake is in place, so an input is
  * never modified otherwise. With the run's write plan for this job (`writes`), every file must
  * be one it planned, or the buffer named by its content beside the main output (named only
@@ -84,7 +85,12 @@ export async function guardOutputs(files: OutputFile[], output: string, input: s
     if (seen.has(real)) throw new TanframeError('usage', `two output files would share the path '${shown}'`);
     seen.add(real);
     if (protectedFiles.has(real)) {
-      if (await holds(real, file.bytes)) continue;
+      // Copied onto itself unchanged: kept in the list (the writer leaves equal bytes alone, and
+      // must know the new asset names this file), never written.
+      if (await holds(real, file.bytes)) {
+        kept.push(file);
+        continue;
+      }
       if (!inPlace) throw new TanframeError('usage', `the output file '${shown}' would overwrite a file the input is read from; choose another output folder or name`);
     }
     if (planned && !planned.has(abs) && !(path.dirname(abs) === root && isBufferFileOf(main, path.basename(abs)))) {

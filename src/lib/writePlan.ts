@@ -312,17 +312,6 @@ export async function planRun(req: RunRequest): Promise<RunPlan> {
     for (const f of r?.files ?? []) plan.read(f.path, input);
   }
 
-  const files = new Map<string, string>();
-  for (const f of req.files) {
-    const ext = path.extname(f.path).toLowerCase();
-    const role = `${f.option} ${plan.shown(f.path)}`;
-    if (NOT_A_REPORT.includes(ext)) {
-      throw new TanframeError('usage', `${role} names a mesh file, not a report (did the shell expand a pattern? quote it)`);
-    }
-    files.set(f.option, plan.write(f.path, role, { named: true }));
-  }
-  for (const d of req.folders) plan.folder(d.path, `${d.option} ${plan.shown(d.path)}`, d.mayWrite);
-
   const jobs: (JobWrites | { refused: string })[] = [];
   const images: { job: number; uri: string; source: string; target: string; outDir: string }[] = [];
   const folderCache = new Map<string, Map<string, string[]>>();
@@ -376,6 +365,18 @@ export async function planRun(req: RunRequest): Promise<RunPlan> {
       }
     }
   }
+
+  // Named files after the meshes, so a report named like a mesh output says which one.
+  const files = new Map<string, string>();
+  for (const f of req.files) {
+    const role = `${f.option} ${plan.shown(f.path)}`;
+    const target = plan.write(f.path, role, { named: true });
+    if (NOT_A_REPORT.includes(path.extname(f.path).toLowerCase())) {
+      throw new TanframeError('usage', `${role} names a mesh file, not a report (did the shell expand a pattern? quote it)`);
+    }
+    files.set(f.option, target);
+  }
+  for (const d of req.folders) plan.folder(d.path, `${d.option} ${plan.shown(d.path)}`, d.mayWrite);
 
   // Images: one file per distinct content on each name.
   const byTarget = new Map<string, typeof images>();
