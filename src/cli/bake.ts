@@ -74,12 +74,13 @@ export async function runBake(inputs: string[], o: Record<string, any>, io: CliI
         reports.push(failed(display(f.path), 'usage', `--in-place keeps the file type; write --format ${o.format} with -o`));
         continue;
       }
-      meshes.push({ input: f.path, output: f.path, inPlace: true, format: containerOf(f.path), named: true });
+      meshes.push({ input: f.path, output: f.path, inPlace: true, format: containerOf(f.path), named: true, root: path.dirname(f.path) });
     } else if (target) {
       const output = target.kind === 'file' ? target.path : path.join(target.path, outputRelativeName(f.relative, o.format ?? null));
-      meshes.push({ input: f.path, output, inPlace: false, format: target.kind === 'file' ? target.format : containerOf(output), named: target.kind === 'file' });
+      const root = target.kind === 'file' ? path.dirname(target.path) : target.path;
+      meshes.push({ input: f.path, output, inPlace: false, format: target.kind === 'file' ? target.format : containerOf(output), named: target.kind === 'file', root });
     } else {
-      meshes.push({ input: f.path, output: '', inPlace: false, format: 'glb', named: false });
+      meshes.push({ input: f.path, output: '', inPlace: false, format: 'glb', named: false, root: '' });
     }
     planned.push(f);
   }

@@ -36,6 +36,8 @@ export interface WriteOptions {
   named?: boolean;
   /** Key (see WritePlan.key) of the one read file this write may replace (the input of an in-place bake). */
   replaces?: string;
+  /** The folder the user named (-o): no folder between it and the file may be a symbolic link. */
+  root?: string;
 }
 
 /** One run's writes and reads, compared by real path. */
@@ -83,6 +85,7 @@ export class WritePlan {
    * not name, a file the run reads (other than `options.replaces`), or already planned.
    */
   write(abs: string, role: string, options: WriteOptions = {}): string {
+    if (options.root) this.noLinkedFolders(options.root, abs, role);
     const target = this.destination(abs, role, !!options.named);
     const k = this.key(target);
     const read = this.reads.get(k);
@@ -128,6 +131,31 @@ export class WritePlan {
     }
     for (const e of names) {
       if (e.isSymbolicLink() && mayWrite(e.name)) this.destination(path.join(abs, e.name), `${role}: ${this.shown(path.join(abs, e.name))}`, false);
+    }
+  }
+
+  /** Refuses a symbolic link among the folders strictly between `root` and `abs` (nobody named them). */
+  private noLinkedFolders(root: string, abs: string, role: string): void {
+    const rel = path.relative(path.resolve(root), path.dirname(path.resolve(abs)));
+    if (rel === '' || rel.startsWith('..') || path.isAbsolute(rel)) return;
+    let p = path.resolve(root);
+    for (const part of rel.split(path.sep)) {
+      p = path.join(p, part);
+      let st: fs.Stats;
+      try {
+        st = fs.lstatSync(p);
+      } catch {
+        return;
+      }
+      if (st.isSymbolicLink()) {
+        let to = '';
+        try {
+          to = this.shown(fs.realpathSync(p));
+        } catch {
+          to = fs.readlinkSync(p);
+        }
+        throw new TanframeError('usage', `${role} would be written through ${this.shown(p)}, a symbolic link to ${to}; tanframe writes through a link only when it is named itself`);
+      }
     }
   }
 
@@ -194,6 +222,8 @@ export interface PlannedMesh {
   format: 'glb' | 'gltf';
   /** The user named the output path itself (one input, `-o file`, or in place). */
   named: boolean;
+  /** The folder the user named for it: -o, the output file's folder, or the input's folder in place. */
+  root: string;
 }
 
 /** The writes of one bake job, as the plan settled them (structured-clone safe: it goes to a worker). */
@@ -313,7 +343,7 @@ export async function planRun(req: RunRequest): Promise<RunPlan> {
   }
 
   const jobs: (JobWrites | { refused: string })[] = [];
-  const images: { job: number; uri: string; source: string; target: string; outDir: string }[] = [];
+  const images: { job: number; uri: string; source: string; target: string; outDir: string; root: string }[] = [];
   const folderCache = new Map<string, Map<string, string[]>>();
   for (let i = 0; i < req.meshes.length; i++) {
     const m = req.meshes[i];
@@ -322,7 +352,7 @@ export async function planRun(req: RunRequest): Promise<RunPlan> {
     const role = m.inPlace ? `the in-place output ${plan.shown(m.input)}` : `the output ${plan.shown(m.output)} of ${plan.shown(m.input)}`;
     let output: string;
     try {
-      output = plan.write(m.output, role, { named: m.named, replaces: m.inPlace ? inputKey : undefined });
+      output = plan.write(m.output, role, { named: m.named, replaces: m.inPlace ? inputKey : undefined, root: m.root });
     } catch (err) {
       if (!m.inPlace && plan.key(m.output) === inputKey) {
         throw new TanframeError('usage', `${plan.shown(m.input)}: its output would overwrite the input itself; use --in-place to replace it`);
@@ -348,7 +378,7 @@ export async function planRun(req: RunRequest): Promise<RunPlan> {
       } catch {
         continue;
       }
-      images.push({ job: i, uri: f.uri, source: f.path, target: path.join(outDir, ...rel.split('/')), outDir });
+      images.push({ job: i, uri: f.uri, source: f.path, target: path.join(outDir, ...rel.split('/')), outDir, root: m.root });
     }
     if (m.format === 'gltf') {
       // Buffers of the asset being replaced, and buffers other .gltf files beside it read.
@@ -401,7 +431,7 @@ export async function planRun(req: RunRequest): Promise<RunPlan> {
           const uri = taggedUri(x.uri, tag);
           (jobs[x.job] as JobWrites).imageUris[x.uri] = uri;
           const target = path.join(x.outDir, ...uriToRelativePath(uri).split('/'));
-          if (!plan.plans(plan.key(target))) plan.write(target, `the image ${plan.shown(target)} copied for ${plan.shown(req.meshes[x.job].input)}`);
+          if (!plan.plans(plan.key(target))) plan.write(target, `the image ${plan.shown(target)} copied for ${plan.shown(req.meshes[x.job].input)}`, { root: x.root });
           (jobs[x.job] as JobWrites).files.push(target);
         }
       }
@@ -411,9 +441,9 @@ export async function planRun(req: RunRequest): Promise<RunPlan> {
     const readers = plan.readers(k);
     if (readers.size > 0 && (await hashOf(first.target)) !== (await hashOf(first.source))) {
       // Another input reads this file and the copy would change it.
-      plan.write(first.target, `the image ${plan.shown(first.target)} copied for ${plan.shown(req.meshes[first.job].input)}`);
+      plan.write(first.target, `the image ${plan.shown(first.target)} copied for ${plan.shown(req.meshes[first.job].input)}`, { root: first.root });
     }
-    if (readers.size === 0) plan.write(first.target, `the image ${plan.shown(first.target)} copied for ${plan.shown(req.meshes[first.job].input)}`);
+    if (readers.size === 0) plan.write(first.target, `the image ${plan.shown(first.target)} copied for ${plan.shown(req.meshes[first.job].input)}`, { root: first.root });
     for (const x of list) (jobs[x.job] as JobWrites).files.push(x.target);
   }
   return { plan, jobs, files };

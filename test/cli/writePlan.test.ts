@@ -225,6 +225,26 @@ describe('the write plan refuses the run before any work (exit 2, one line namin
   });
 });
 
+describe('files named only after reading pass the same guard right before they are written', () => {
+  it('a symbolic link planted where the content-named buffer goes fails that file (exit 3), its target untouched', async () => {
+    const dir = path.join(tmp, 'planted-bin');
+    await writeQuad(path.join(dir, 'in'), 'crate');
+    expect((await runCli(['bake', 'in/crate.gltf', '-o', 'probe/crate.gltf', '--quiet'], dir)).code).toBe(0);
+    const binName = fs.readdirSync(path.join(dir, 'probe')).find((n) => n.endsWith('.bin'))!;
+    fs.mkdirSync(path.join(dir, 'out'));
+    // The link leads to a file of the user's inside the output folder (a link leading outside
+    // is refused as landing outside the output folder).
+    fs.writeFileSync(path.join(dir, 'out', 'victim.bin'), 'keep me');
+    fs.symlinkSync('victim.bin', path.join(dir, 'out', binName));
+    const r = await runCli(['bake', 'in/crate.gltf', '-o', 'out/crate.gltf', '--json'], dir);
+    expect(r.code).toBe(3);
+    expect(oneLine(r.stderr)).toMatch(new RegExp(`crate\\.gltf: .*${binName.replace(/\./g, '\\.')}' is a symbolic link`));
+    expect(JSON.parse(r.stdout).files[0].error.code).toBe('usage');
+    expect(fs.readFileSync(path.join(dir, 'out', 'victim.bin'), 'utf8')).toBe('keep me');
+    expect(fs.readdirSync(path.join(dir, 'out')).sort()).toEqual([binName, 'victim.bin'].sort());
+  });
+});
+
 describe('images that would share one name in one output folder', () => {
   it('different contents get distinct names, each asset\'s JSON pointing at its own; equal contents share one file', async () => {
     const dir = path.join(tmp, 'image-clash');
