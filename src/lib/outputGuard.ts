@@ -11,7 +11,7 @@ import type { Asset } from '../mesh/asset.js';
 import { TanframeError } from '../mesh/errors.js';
 import type { OutputFile } from '../io/files.js';
 import { isBufferFileOf } from '../io/gltfWrite.js';
-import { isInside, realPathOfNearestExisting, resolveResourceUri } from '../io/uri.js';
+import { isInside, realPathOfNearestExisting, resolveResourceUri, uriToRelativePath } from '../io/uri.js';
 import type { JobWrites } from './writePlan.js';
 
 /** Real path of `p` through its deepest existing ancestor, or `p` itself when that fails. */
@@ -62,8 +62,9 @@ async function holds(p: string, bytes: Uint8Array): Promise<boolean> {
  * itself: writeFilesAtomic leaves equal bytes alone);
  * with other bytes it is refused ('usage') unless the bake is in place, so an input is
  * never modified otherwise. With the run's write plan for this job (`writes`), every file must
- * be one it planned, or the buffer named by its content beside the main output (named only
- * now); and no file may be a symbolic link ('usage'): the late half of the write plan's guard.
+ * be one it planned, the buffer named by its content beside the main output (named only now),
+ * or a copy of one of the input's own buffers at its URI beside the output; and no file may be
+ * a symbolic link ('usage'): the late half of the write plan's guard.
  */
 export async function guardOutputs(files: OutputFile[], output: string, input: string, asset: Asset, writes?: JobWrites): Promise<OutputFile[]> {
   const main = path.resolve(output);
@@ -71,6 +72,18 @@ export async function guardOutputs(files: OutputFile[], output: string, input: s
   const realRoot = realOrSelf(root);
   const inPlace = realOrSelf(main) === realOrSelf(path.resolve(input));
   const planned = writes ? new Set(writes.files.map((p) => path.resolve(p))) : null;
+  // A .gltf written as the input's own bytes names its buffers by their input URIs: their copies
+  // beside the output are the input's own files mirrored, allowed as well.
+  if (planned && asset.container === 'gltf' && Array.isArray(asset.json?.buffers)) {
+    for (const b of asset.json.buffers) {
+      if (typeof b?.uri !== 'string' || /^data:/i.test(b.uri)) continue;
+      try {
+        planned.add(path.resolve(root, ...uriToRelativePath(b.uri).split('/')));
+      } catch {
+        // A URI the reader refused never gets here.
+      }
+    }
+  }
   const protectedFiles = inputFiles(asset, input);
   const seen = new Set<string>();
   const kept: OutputFile[] = [];
