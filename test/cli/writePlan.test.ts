@@ -209,6 +209,13 @@ describe('the write plan refuses the run before any work (exit 2, one line namin
     expect(named.code).toBe(0);
     expect(fs.lstatSync(path.join(dir, 'named.glb')).isSymbolicLink()).toBe(true);
     expect((await readAsset(path.join(dir, 'target.glb'))).primitives[0].attributes.TANGENT).toBeDefined();
+    // A named --report link: the same.
+    fs.writeFileSync(path.join(dir, 'report-target.json'), '{}');
+    fs.symlinkSync('report-target.json', path.join(dir, 'report.json'));
+    const report = await runCli(['audit', 'in/b.glb', '--report', 'report.json', '--quiet'], dir);
+    expect(report.code).toBe(0);
+    expect(fs.lstatSync(path.join(dir, 'report.json')).isSymbolicLink()).toBe(true);
+    expect(JSON.parse(fs.readFileSync(path.join(dir, 'report-target.json'), 'utf8')).schema).toBe('tanframe-report/1');
   });
 
   it('refuses a symbolic link planted in --uv-maps (its target untouched)', async () => {
