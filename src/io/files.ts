@@ -290,6 +290,8 @@ export async function writeFilesAtomic(files: OutputFile[], options: AssetWriteO
     throw new TanframeError('write-failed', `cannot write '${current}': ${describeFsError(err)}`);
   }
   const written = new Set(files.map((f) => path.resolve(f.path)));
+  // Removal only follows a main file that is part of this write: it names what the asset keeps.
+  if (!written.has(main)) return;
   const doomed = (options.removeAfter ?? []).map((p) => path.resolve(p)).filter((p) => !written.has(p));
   if (options.leftovers) {
     const dir = path.dirname(main);
