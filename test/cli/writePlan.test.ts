@@ -369,6 +369,27 @@ describe('--in-place', () => {
     await expectValid(target);
   });
 
+  it('a .gltf link: beside its target, the target is baked and the link kept; from another folder, refused for that file', async () => {
+    const dir = path.join(tmp, 'inplace-gltf-link');
+    const target = await writeQuad(dir, 'real');
+    fs.symlinkSync('real.gltf', path.join(dir, 'alias.gltf'));
+    const r = await runCli(['bake', 'alias.gltf', '--in-place'], dir);
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    expect(fs.readlinkSync(path.join(dir, 'alias.gltf'))).toBe('real.gltf');
+    expect((await readAsset(target)).primitives[0].attributes.TANGENT).toBeDefined();
+    await expectValid(target);
+    // A link in another folder: its URIs resolve from the link's folder, the target's from its own.
+    const other = path.join(tmp, 'inplace-gltf-link-other');
+    fs.mkdirSync(other);
+    fs.symlinkSync(target, path.join(other, 'far.gltf'));
+    const before = tree(dir);
+    const far = await runCli(['bake', 'far.gltf', '--in-place'], other);
+    expect(far.code).toBe(3);
+    expect(oneLine(far.stderr)).toMatch(/far\.gltf: --in-place: the \.gltf is a symbolic link into another folder/);
+    expect(tree(dir)).toEqual(before);
+  });
+
   it('keeps embedded data: buffers embedded and a .glb a .glb', async () => {
     const dir = path.join(tmp, 'inplace-embedded');
     const { json, bin } = quad(false);
