@@ -24,7 +24,7 @@ import * as path from 'node:path';
 import { TanframeError } from '../mesh/errors.js';
 import { listAssetReferences, type AssetReferences } from '../io/assetRefs.js';
 import { readRegularFile } from '../io/files.js';
-import { sniffImageType } from '../io/gltfWrite.js';
+import { BUFFER_HASH_DIGITS, sniffImageType } from '../io/gltfWrite.js';
 import { isInside, realPathOfNearestExisting, uriToRelativePath } from '../io/uri.js';
 
 /** Extensions a report, JUnit or HTML file never has: naming one is a mistake (often a shell-expanded `*.glb`). */
@@ -265,8 +265,8 @@ export interface RunPlan {
   files: Map<string, string>;
 }
 
-/** Hex digits of a content hash in file names: 64 bits, deterministic, short. Our choice. */
-export const NAME_HASH_DIGITS = 16;
+/** Hex digits of a content hash in file names: 64 bits, deterministic, short (the same as buffer names). Our choice. */
+export const NAME_HASH_DIGITS = BUFFER_HASH_DIGITS;
 
 /** First NAME_HASH_DIGITS hex digits of the SHA-256 of `bytes`. */
 export function contentTag(bytes: Uint8Array): string {
