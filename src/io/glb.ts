@@ -13,6 +13,7 @@
 import { encodeSync, parseSync } from '@loaders.gl/core';
 import { GLBLoader, GLBWriter } from '@loaders.gl/gltf';
 import { TanframeError } from '../mesh/errors.js';
+import { MAX_JSON_DEPTH, checkJsonBudget, jsonParseReason } from './jsonBudget.js';
 
 /** 'glTF' read as a little-endian uint32. Source: glTF 2.0 specification, 4.4.2. */
 export const GLB_MAGIC = 0x46546c67;
@@ -110,9 +111,8 @@ function parseWithLoader(buffer: ArrayBuffer): { json: unknown; binChunks: { byt
   try {
     return parseSync(buffer, GLBLoader) as any;
   } catch (err) {
-    const text = String((err as Error)?.message ?? err).split('\n')[0];
-    if (err instanceof SyntaxError) throw new TanframeError('bad-json', `the JSON chunk does not parse: ${text}`);
-    throw new TanframeError('bad-glb', `the GLB container does not parse: ${text}`);
+    if (err instanceof SyntaxError) throw new TanframeError('bad-json', `the JSON chunk does not parse (${jsonParseReason(err)})`);
+    throw new TanframeError('bad-glb', 'the GLB container does not parse');
   }
 }
 
@@ -132,6 +132,7 @@ export function parseGlb(bytes: Uint8Array): GlbContents {
   } catch {
     throw new TanframeError('bad-json', 'the JSON chunk is not valid UTF-8');
   }
+  checkJsonBudget(new Uint8Array(buffer, jsonSpan.start, jsonSpan.length), MAX_JSON_DEPTH, 'the JSON chunk');
   const parsed = parseWithLoader(buffer);
   if (parsed.json === null || typeof parsed.json !== 'object' || Array.isArray(parsed.json)) {
     throw new TanframeError('bad-gltf', 'the JSON chunk is not a JSON object');

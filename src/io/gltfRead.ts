@@ -38,6 +38,7 @@ import {
   type ViewTable,
 } from './gltfAccessor.js';
 import { accessorRefs, bufferViewRefs, type IndexRef } from './gltfRefs.js';
+import { MAX_JSON_DEPTH, checkJsonBudget, jsonParseReason } from './jsonBudget.js';
 import { checkAttributeFormat, formatName } from './gltfSemantics.js';
 import { decodeDracoPrimitive, readDracoHeader } from './draco.js';
 import { triangleCount } from '../mesh/triangulate.js';
@@ -68,13 +69,6 @@ const SAFE_REQUIRED_EXTENSIONS = new Set([
 ]);
 
 const DRACO = 'KHR_draco_mesh_compression';
-
-/**
- * Deepest JSON nesting accepted. glTF documents nest a few levels (extras a few more); far
- * deeper input is hostile and would exhaust the stack when the writer copies or serialises it.
- * Common practice (a resource limit).
- */
-const MAX_JSON_DEPTH = 512;
 
 /** Everything decoding needs, shared by the helpers below. */
 interface ReadContext {
@@ -111,8 +105,12 @@ function arrayOf(json: any, key: string): any[] {
   return v;
 }
 
-/** Parses .gltf text: UTF-8 (BOM tolerated), JSON, an object. */
+/**
+ * Parses .gltf text: UTF-8 (BOM tolerated), depth and size-aware budget checked on the bytes
+ * before parsing (checkJsonBudget), JSON, an object. A parse error names the position only.
+ */
 function parseGltfJson(bytes: Uint8Array): any {
+  checkJsonBudget(bytes, MAX_JSON_DEPTH, 'the JSON');
   let text: string;
   try {
     text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
@@ -123,21 +121,10 @@ function parseGltfJson(bytes: Uint8Array): any {
   try {
     json = JSON.parse(text);
   } catch (err) {
-    throw new TanframeError('bad-json', `the JSON does not parse: ${String((err as Error).message).split('\n')[0]}`);
+    throw new TanframeError('bad-json', `the JSON does not parse (${jsonParseReason(err)})`);
   }
   if (!isObject(json)) badGltf('the JSON is not an object');
   return json;
-}
-
-/** Refuses JSON nested deeper than MAX_JSON_DEPTH (iterative walk, no recursion). */
-function checkJsonDepth(json: unknown): void {
-  const stack: [unknown, number][] = [[json, 1]];
-  while (stack.length > 0) {
-    const [v, depth] = stack.pop()!;
-    if (v === null || typeof v !== 'object') continue;
-    if (depth > MAX_JSON_DEPTH) throw new TanframeError('bad-json', `the JSON nests deeper than ${MAX_JSON_DEPTH} levels`);
-    for (const child of Object.values(v as object)) if (child !== null && typeof child === 'object') stack.push([child, depth + 1]);
-  }
 }
 
 /** Checks asset.version (2.x) and the shape of the top-level arrays we use. */
@@ -563,7 +550,6 @@ export async function readGltfBytes(bytes: Uint8Array, sourcePath: string, limit
   if (bytes.length === 0) throw new TanframeError('empty-file', 'the file is empty (0 bytes)');
   const isGlb = looksLikeGlb(bytes) || path.extname(sourcePath).toLowerCase() === '.glb';
   const { json, bin } = isGlb ? parseGlb(bytes) : { json: parseGltfJson(bytes), bin: null };
-  checkJsonDepth(json);
   checkTopLevel(json);
   checkRequiredExtensions(json);
   const baseDir = path.dirname(path.resolve(sourcePath));
