@@ -190,10 +190,9 @@ export function manySmallObjects(count) {
 
 let encoderModule = null;
 
-/** Encodes a triangle mesh with the `draco3d` encoder (the package @loaders.gl/draco depends on). */
+/** Encodes a triangle mesh with the encoder of the `draco3d` package (whose decoder we use). */
 async function dracoStream(g) {
-  const req = createRequire(createRequire(import.meta.url).resolve('@loaders.gl/draco'));
-  encoderModule ??= req('draco3d').createEncoderModule({});
+  encoderModule ??= createRequire(import.meta.url)('draco3d').createEncoderModule({});
   const m = await encoderModule;
   const encoder = new m.Encoder(), builder = new m.MeshBuilder(), mesh = new m.Mesh();
   builder.AddFacesToMesh(mesh, g.idx.length / 3, g.idx);
