@@ -325,3 +325,17 @@ function glbBytesOfText(text: string): Uint8Array {
   out.set(t, 20);
   return out;
 }
+
+describe.skipIf(!haveFifo)('planning reads references as safely as the readers', () => {
+  // Found while merging the write plan (issue 11): listing an input's references opened a
+  // named pipe without O_NONBLOCK (waiting for a writer) and parsed JSON without the budget.
+  it('a pipe named like a GLB and JSON past the budget give no references, at once', async () => {
+    const { listAssetReferences } = await import('../../src/io/assetRefs.js');
+    const dir = path.join(root, `plan${counter++}`);
+    fs.mkdirSync(dir);
+    expect(mkfifo(path.join(dir, 'a.glb'))).toBe(true);
+    expect(await listAssetReferences(path.join(dir, 'a.glb'))).toBeNull();
+    fs.writeFileSync(path.join(dir, 'dense.gltf'), `{"asset":{"version":"2.0"},"extras":[${'{},'.repeat(4_000_000)}{}]}`);
+    expect(await listAssetReferences(path.join(dir, 'dense.gltf'))).toBeNull();
+  });
+});
