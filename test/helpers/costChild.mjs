@@ -1,15 +1,15 @@
 // Child process of test/helpers/costGrowth.ts: runs one task on one size and prints what it
-// cost. Argument 1 is a JSON spec { module, export, dir, args, warmupDir }. The task module is
-// loaded through the TypeScript hooks (tsLoader.mjs), so it runs the sources the test sees.
+// cost. Argument 1 is a JSON spec { module, export, dir, args, warmupDir }. A .ts task module
+// is loaded through the TypeScript hooks (tsLoader.mjs).
 // Sequence: optional untimed warm-up on `warmupDir` (JIT), gc, reset of the peak-RSS mark
 // (Linux: "5" to /proc/self/clear_refs), base RSS, the timed run, peak RSS (VmHWM, else
 // process.resourceUsage().maxRSS). Output: one line `COST-RESULT <json>` on stdout.
 import { readFileSync, writeFileSync } from 'node:fs';
 import { register } from 'node:module';
 
-register(new URL('./tsLoader.mjs', import.meta.url));
-
 const spec = JSON.parse(process.argv[2]);
+// TypeScript task modules load through the test hooks (seconds per process); .mjs/.js directly.
+if (spec.module.endsWith('.ts')) register(new URL('./tsLoader.mjs', import.meta.url));
 
 /** VmHWM / VmRSS in bytes from /proc/self/status, or null off Linux. */
 function procKb(field) {

@@ -14,16 +14,19 @@
  *   expectBoundedGrowth(r); // time and memory within 2x of linear, or refused with a code
  *
  * - `files(scale)` returns the files of one size (name -> bytes or text), written into a fresh
- *   folder; the task runs with that folder as its first argument.
+ *   folder; the task runs with that folder as its first argument. `scale` may be fractional
+ *   (the warm-up input is scale 1/8): round counts up.
  * - `task` names an exported function of a module: `{ module: URL or path, export, args }`.
- *   It is called as `fn(folder, ...args)` in the child (TypeScript sources load directly).
- *   `costTask(name, ...args)` names one of the ready tasks of test/helpers/costTasks.ts:
+ *   It is called as `fn(folder, ...args)` in the child. A .ts module loads through the test's
+ *   TypeScript hooks (a few seconds per child); .mjs / .js modules load directly.
+ *   `costTask(name, ...args)` names one of the ready tasks of test/helpers/costTasks.mjs, which
+ *   run the built library in dist/ (`npm test` builds first; build before running one file):
  *   'cliJson' (runs the CLI in-process; a failed file counts as refused with its report code),
  *   'readAsset', 'auditFile', 'decodePngFile', 'convertMapFiles'. A task refuses by throwing a
  *   TanframeError (any code but 'internal') or by returning `{ refused: code }`.
- * - Each size runs `runs` times (default 2) and the smallest time and memory are kept (the
- *   machine may be shared). Before the timed run the child warms up on the x1 input, so the
- *   JIT's first compile is not charged to the small size.
+ * - Each size runs `runs` times (default 3) and the smallest time and memory are kept (the
+ *   machine may be shared). Before the timed run the child warms up on an input of an eighth
+ *   of x1, so the JIT's first compile is not charged to the small size.
  * - Memory is the growth of peak resident memory over the child's resident memory just before
  *   the timed run. Below `memoryFloor` bytes (default 16 MiB) growth counts as `memoryFloor`:
  *   heap growth comes in steps of a few MB, so smaller x1 figures are noise. Choose sizes whose
@@ -54,7 +57,7 @@ export interface GrowthCase {
   task: CostTask;
   /** Size ratio of the two runs (default 4). */
   ratio?: number;
-  /** Runs per size, best kept (default 2). */
+  /** Runs per size, best kept (default 3). */
   runs?: number;
   /** Memory growth below this counts as this much (bytes; default 16 MiB). */
   memoryFloor?: number;
@@ -94,7 +97,7 @@ export function costScale(): number {
 
 /** A ready task of test/helpers/costTasks.ts by name. */
 export function costTask(name: string, ...args: unknown[]): CostTask {
-  return { module: new URL('./costTasks.ts', import.meta.url), export: name, args };
+  return { module: new URL('./costTasks.mjs', import.meta.url), export: name, args };
 }
 
 function writeFiles(dir: string, files: Record<string, Uint8Array | string>): number {
@@ -132,19 +135,21 @@ function runChild(task: CostTask, dir: string, warmupDir: string | null): Promis
 /** Builds both sizes, runs the task on each in child processes and returns what each cost. */
 export async function measureGrowth(c: GrowthCase): Promise<GrowthResult> {
   const ratio = c.ratio ?? 4;
-  const runs = c.runs ?? 2;
+  const runs = c.runs ?? 3;
   const k = costScale();
   const root = fs.mkdtempSync(path.join(os.tmpdir(), 'tanframe-cost-'));
   try {
     const smallDir = path.join(root, 'x1');
     const largeDir = path.join(root, `x${ratio}`);
+    const warmDir = path.join(root, 'warm-up');
+    writeFiles(warmDir, c.files(k / 8));
     const smallBytes = writeFiles(smallDir, c.files(k));
     const largeBytes = writeFiles(largeDir, c.files(k * ratio));
     const sizes: SizeCost[] = [];
     for (const [scale, dir, bytes] of [[k, smallDir, smallBytes], [k * ratio, largeDir, largeBytes]] as const) {
       let ms = Infinity, memory = Infinity, refused: string | null = null, detail: string | null = null;
       for (let i = 0; i < runs; i++) {
-        const r = await runChild(c.task, dir, smallDir);
+        const r = await runChild(c.task, dir, warmDir);
         if (r.error) throw new Error(`${c.name} (x${scale}): the task failed: ${r.error}`);
         ms = Math.min(ms, r.ms);
         memory = Math.min(memory, Math.max(0, r.peakRss - r.baseRss));
@@ -153,7 +158,9 @@ export async function measureGrowth(c: GrowthCase): Promise<GrowthResult> {
       }
       sizes.push({ scale, bytes, ms, memory, refused, detail });
     }
-    return { name: c.name, ratio, memoryFloor: c.memoryFloor ?? 16 * 1024 * 1024, small: sizes[0], large: sizes[1] };
+    const result = { name: c.name, ratio, memoryFloor: c.memoryFloor ?? 16 * 1024 * 1024, small: sizes[0], large: sizes[1] };
+    console.log(describeGrowth(result));
+    return result;
   } finally {
     fs.rmSync(root, { recursive: true, force: true });
   }
