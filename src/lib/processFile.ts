@@ -10,6 +10,7 @@ import { writeFilesAtomic } from '../io/files.js';
 import { readGltf } from '../io/gltfRead.js';
 import { encodeGltf } from '../io/gltfWrite.js';
 import type { ReadLimits } from '../io/limits.js';
+import { capWarnings } from '../mesh/text.js';
 import { readObj } from '../io/objRead.js';
 import type { FileReport } from '../report/types.js';
 import type { UvPicture } from '../report/uvPicture.js';
@@ -101,7 +102,7 @@ export async function processFileOutcome(job: FileJob, options: ProcessOptions):
   let pictures: UvPicture[] = [];
   try {
     const asset = await readAsset(job.input, { maxTriangles: options.maxTriangles });
-    report.warnings.push(...asset.warnings);
+    report.warnings = capWarnings(asset.warnings);
     for (const ext of asset.decompressed ?? []) {
       report.notes.push(job.command === 'bake' ? `decompressed ${ext} (written uncompressed)` : `decompressed ${ext}`);
     }

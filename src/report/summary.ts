@@ -3,6 +3,7 @@
  * table of its primitives' findings (worst first), then a closing total. Colour only when the
  * caller says the stream is a terminal and NO_COLOR is unset.
  */
+import { warningTotal } from '../mesh/text.js';
 import type { FileReport, PrimitiveReport, Report } from './types.js';
 
 /** Styling switch for the summary. */
@@ -137,7 +138,8 @@ function cleanLine(f: FileReport, style: SummaryStyle): string {
   const tri = done.reduce((a, p) => a + p.triangles, 0);
   const target = f.output ? ` -> ${f.output}` : '';
   const notes = (f.notes ?? []).map((note) => `, ${note}`).join('');
-  const extra = `${f.warnings.length ? `, ${f.warnings.length} warning${f.warnings.length === 1 ? '' : 's'}` : ''}${notes}`;
+  const warnings = warningTotal(f.warnings);
+  const extra = `${warnings ? `, ${n(warnings)} warning${warnings === 1 ? '' : 's'}` : ''}${notes}`;
   return `${paint(style.color, '32', 'ok       ')}${f.input}${target}  (${done.length} of ${f.primitives.length} primitives, ${n(tri)} triangles, no findings${extra})`;
 }
 
