@@ -7,6 +7,7 @@ import * as path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { Command, InvalidArgumentError, Option } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
+import { cleanText } from '../mesh/text.js';
 import { GATE_NAMES, defaultProcessOptions, type GateName, type ProcessOptions } from '../lib/options.js';
 import { writeFilesAtomic } from '../io/files.js';
 import { DEFAULT_MAX_TRIANGLES } from '../io/limits.js';
@@ -134,7 +135,7 @@ export function exitStatus(files: FileReport[]): number {
 /** Prints failures (one line each, on stderr), then the summary or JSON, and writes --report. */
 export async function emitReport(report: Report, o: Record<string, any>, io: CliIo): Promise<void> {
   for (const f of report.files) {
-    if (f.status === 'failed') io.stderr(`tanframe: ${f.input}: ${f.error?.message ?? 'failed'}\n`);
+    if (f.status === 'failed') io.stderr(`tanframe: ${cleanText(f.input)}: ${cleanText(f.error?.message ?? 'failed')}\n`);
   }
   if (o.report) {
     const target = path.resolve(io.cwd, o.report);

@@ -6,7 +6,7 @@
  * Parses the text of a .mtl file into the few material properties tanframe carries
  * into glTF: diffuse colour, diffuse texture and normal texture (with its scale).
  */
-import { MAX_WARNINGS_PER_FILE, capWarnings } from '../mesh/text.js';
+import { MAX_WARNINGS_PER_FILE, capWarnings, quoteText } from '../mesh/text.js';
 
 /** A texture statement of a material: the file it names and the options we keep. */
 export interface MtlTexture {
@@ -101,7 +101,8 @@ function parseTextureArgs(args: string, line: number, label: string, warnings: W
     const opt = m[1]!.toLowerCase();
     const arity = TEXTURE_OPTIONS[opt];
     if (!arity) {
-      warnings.push(`${label} line ${line}: unknown texture option '${m[1]}' skipped`);
+      if (warnings.open) warnings.push(`${label} line ${line}: unknown texture option '${quoteText(m[1]!, 40)}' skipped`);
+      else warnings.dropped++;
       nextToken();
       continue;
     }

@@ -105,3 +105,14 @@ export function capWarnings(warnings: readonly string[], dropped = 0): string[] 
   if (total > out.length) out.push(notListedLine(out.length, total));
   return out;
 }
+
+/**
+ * Text for XML, SVG or HTML content and attributes: `cleanText` (control and XML-invalid
+ * characters as visible escapes, one line), then `&`, `<`, `>`, `"` and `'` as entities.
+ * Source: XML 1.0 section 2.2 (Char) and 2.4 (character data), HTML5 (same five characters).
+ */
+export function markupText(s: string): string {
+  return cleanText(s).replace(/[&<>"']/g, (c) => MARKUP_ENTITIES[c]!);
+}
+
+const MARKUP_ENTITIES: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' };
