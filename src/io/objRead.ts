@@ -124,6 +124,9 @@ function isSpace(c: number): boolean {
     c === 0x2028 || c === 0x2029 || c === 0x202f || c === 0x205f || c === 0x3000;
 }
 
+/** A line continuation inside a joined range: the backslash, trailing white space, the newline. */
+const CONTINUATION_RE = /\\[^\S\n]*\n/g;
+
 /**
  * Index of the backslash that continues the physical line text[start, end) (the last
  * character before trailing white space), or -1 when the line does not continue.
@@ -170,26 +173,23 @@ function parseObjText(text: string, limits: ReadLimits): ObjText {
     const startLine = lineNo;
     let line: string;
     // Line continuation: a backslash at the end of a line (before trailing white space) joins
-    // the next one. Pieces are collected and joined once, and each physical line is scanned
-    // once, so a long chain of continued lines costs its length, not its square.
+    // the next one. The physical lines of a continued line are found first, each scanned once,
+    // then joined by one replace over the whole range, so a long chain costs its length.
     let cut = continuationAt(text, pos, end);
     if (cut < 0 || end + 1 >= len) {
       line = text.slice(pos, end);
-      pos = end + 1;
     } else {
-      const pieces: string[] = [];
+      const from = pos;
       while (cut >= 0 && end + 1 < len) {
-        pieces.push(text.slice(pos, cut), ' ');
         pos = end + 1;
         end = text.indexOf('\n', pos);
         if (end < 0) end = len;
         lineNo++;
         cut = continuationAt(text, pos, end);
       }
-      pieces.push(text.slice(pos, end));
-      pos = end + 1;
-      line = pieces.join('');
+      line = text.slice(from, end).replace(CONTINUATION_RE, ' ');
     }
+    pos = end + 1;
     const hash = line.indexOf('#');
     if (hash >= 0) line = line.slice(0, hash);
     line = line.trim();

@@ -39,3 +39,22 @@ describe('OBJ reading cost', () => {
     expectBoundedGrowth(r);
   });
 });
+
+/** An OBJ triangle whose material's texture statement carries `options` unknown options. */
+function manyUnknownOptions(options: number): Record<string, string> {
+  return {
+    'a.obj': 'mtllib a.mtl\nv 0 0 0\nv 1 0 0\nv 0 1 0\nvt 0 0\nvt 1 0\nvt 0 1\nusemtl m\nf 1/1 2/2 3/3\n',
+    'a.mtl': `newmtl m\nmap_Kd ${'-x '.repeat(Math.ceil(options))}a.png\n`,
+  };
+}
+
+describe('warnings cost', () => {
+  it('grows linearly with an MTL line of unknown options, and the report stays short', async () => {
+    const r = await measureGrowth({
+      name: 'MTL line of unknown texture options',
+      files: (scale) => manyUnknownOptions(50_000 * scale),
+      task: costTask('cliJson', 'audit', 'a.obj'),
+    });
+    expectBoundedGrowth(r);
+  });
+});

@@ -44,12 +44,15 @@ export async function readAsset(dir, file) {
   await readAssetFile(path.join(dir, file));
 }
 
-/** Audits `file` through processFile (read, solve, diagnose), in-process; a failure refuses. */
-export async function auditFile(dir, file) {
+/**
+ * Audits `file` through processFile (read, solve, diagnose), in-process; a failure refuses.
+ * `options` overrides ProcessOptions fields (e.g. { allPrimitives: true }).
+ */
+export async function auditFile(dir, file, options = {}) {
   const input = path.join(dir, file);
   const r = await processFile(
     { command: 'audit', input, output: null, format: null, dryRun: true, displayInput: file, displayOutput: null },
-    defaultProcessOptions(),
+    { ...defaultProcessOptions(), ...options },
   );
   if (r.status === 'failed') {
     if (r.error.code === 'internal') throw new Error(`internal error: ${r.error.message}`);
