@@ -24,7 +24,7 @@ describe('OBJ reading cost', () => {
   it('grows linearly with a chain of continued lines', async () => {
     const r = await measureGrowth({
       name: 'OBJ continuation chain',
-      files: (scale) => ({ 'a.obj': continuedObj(40_000 * scale) }),
+      files: (scale) => ({ 'a.obj': continuedObj(160_000 * scale) }),
       task: costTask('readAsset', 'a.obj'),
     });
     expectBoundedGrowth(r);
@@ -49,7 +49,7 @@ function manyUnknownOptions(options: number): Record<string, string> {
 }
 
 describe('warnings cost', () => {
-  it('grows linearly with an MTL line of unknown options, and the report stays short', async () => {
+  it('grows linearly with an MTL line of unknown options', async () => {
     const r = await measureGrowth({
       name: 'MTL line of unknown texture options',
       files: (scale) => manyUnknownOptions(50_000 * scale),
