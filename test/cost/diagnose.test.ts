@@ -39,7 +39,7 @@ describe('diagnostics cost', () => {
   it('grows linearly with near-stacked UV copies', async () => {
     const r = await measureGrowth({
       name: 'UV overlap of near-stacked copies',
-      files: (scale) => ({ 'stacked.glb': nearStackedGlb(64 * scale) }),
+      files: (scale) => ({ 'stacked.glb': nearStackedGlb(256 * scale) }),
       task: costTask('auditFile', 'stacked.glb', { allPrimitives: true }),
     });
     expectBoundedGrowth(r);
