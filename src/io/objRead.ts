@@ -124,9 +124,6 @@ function isSpace(c: number): boolean {
     c === 0x2028 || c === 0x2029 || c === 0x202f || c === 0x205f || c === 0x3000;
 }
 
-/** A line continuation inside a joined range: the backslash, trailing white space, the newline. */
-const CONTINUATION_RE = /\\[^\S\n]*\n/g;
-
 /**
  * Index of the backslash that continues the physical line text[start, end) (the last
  * character before trailing white space), or -1 when the line does not continue.
@@ -173,21 +170,30 @@ function parseObjText(text: string, limits: ReadLimits): ObjText {
     const startLine = lineNo;
     let line: string;
     // Line continuation: a backslash at the end of a line (before trailing white space) joins
-    // the next one. The physical lines of a continued line are found first, each scanned once,
-    // then joined by one replace over the whole range, so a long chain costs its length.
+    // the next one, the backslash becoming a space. Each physical line is scanned once; only
+    // pieces with text are kept (a run of empty continued lines becomes one run of spaces),
+    // and everything is joined once, so a long chain costs its length.
     let cut = continuationAt(text, pos, end);
     if (cut < 0 || end + 1 >= len) {
       line = text.slice(pos, end);
     } else {
-      const from = pos;
+      const pieces: string[] = [];
+      let spaces = 0;
       while (cut >= 0 && end + 1 < len) {
+        if (cut > pos) {
+          if (spaces > 0) pieces.push(' '.repeat(spaces));
+          pieces.push(text.slice(pos, cut));
+          spaces = 0;
+        }
+        spaces++; // the backslash
         pos = end + 1;
         end = text.indexOf('\n', pos);
         if (end < 0) end = len;
         lineNo++;
         cut = continuationAt(text, pos, end);
       }
-      line = text.slice(from, end).replace(CONTINUATION_RE, ' ');
+      pieces.push(' '.repeat(spaces), text.slice(pos, end));
+      line = pieces.join('');
     }
     pos = end + 1;
     const hash = line.indexOf('#');
