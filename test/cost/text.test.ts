@@ -24,7 +24,7 @@ describe('OBJ reading cost', () => {
   it('grows linearly with a chain of continued lines', async () => {
     const r = await measureGrowth({
       name: 'OBJ continuation chain',
-      files: (scale) => ({ 'a.obj': continuedObj(160_000 * scale) }),
+      files: (scale) => ({ 'a.obj': continuedObj(640_000 * scale) }),
       task: costTask('readAsset', 'a.obj'),
     });
     expectBoundedGrowth(r);
