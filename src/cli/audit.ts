@@ -38,7 +38,7 @@ export async function runAudit(inputs: string[], o: Record<string, any>, io: Cli
     command: 'audit', input: f.path, output: null, format: null, dryRun: true, displayInput: display(f.path), displayOutput: null,
   }));
   const batch = await runBatch(jobs, options, o, io);
-  reports.push(...batch.reports);
+  for (const r of batch.reports) reports.push(r); // no spread: a batch may hold any number of files
   const seconds = (performance.now() - started) / 1000;
   const report = buildReport('audit', toolVersion(), options.method, reportOptions(o), sortReports(reports), seconds);
   await writeReportFiles(report, o, io, batch.pictures);
