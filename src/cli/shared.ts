@@ -7,7 +7,7 @@ import * as path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { Command, InvalidArgumentError, Option } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
-import { cleanText } from '../mesh/text.js';
+import { cleanText, jsonText } from '../mesh/text.js';
 import { GATE_NAMES, defaultProcessOptions, type GateName, type ProcessOptions } from '../lib/options.js';
 import { writeFilesAtomic } from '../io/files.js';
 import { DEFAULT_MAX_TRIANGLES } from '../io/limits.js';
@@ -140,11 +140,11 @@ export async function emitReport(report: Report, o: Record<string, any>, io: Cli
   if (o.report) {
     const target = path.resolve(io.cwd, o.report);
     try {
-      await writeFilesAtomic([{ path: target, bytes: new TextEncoder().encode(JSON.stringify(report, null, 2) + '\n') }]);
+      await writeFilesAtomic([{ path: target, bytes: new TextEncoder().encode(jsonText(report) + '\n') }]);
     } catch (err) {
       throw new TanframeError('write-failed', `cannot write the report ${o.report}: ${(err as Error).message}`);
     }
   }
-  if (o.json) io.stdout(JSON.stringify(report, null, 2) + '\n');
+  if (o.json) io.stdout(jsonText(report) + '\n');
   else if (!o.quiet) io.stdout(renderSummary(report, { color: io.isTTY && !io.env.NO_COLOR }));
 }

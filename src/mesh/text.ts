@@ -116,3 +116,14 @@ export function markupText(s: string): string {
 }
 
 const MARKUP_ENTITIES: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' };
+
+/**
+ * JSON text of `value` (JSON.stringify with `indent`) with the characters JSON leaves raw but a
+ * terminal may act on or a line reader split at (DEL, C1 controls U+0080 to U+009F, U+2028,
+ * U+2029) written as `\uXXXX` escapes: the same JSON value, safe to print. JSON.stringify
+ * already escapes C0 controls and lone surrogates. Source: RFC 8259 section 7 (any character
+ * may be escaped as \uXXXX).
+ */
+export function jsonText(value: unknown, indent = 2): string {
+  return JSON.stringify(value, null, indent).replace(/[\u007f-\u009f\u2028\u2029]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
+}

@@ -65,6 +65,11 @@ describe('control characters from files', () => {
     const svgs = fs.readdirSync(path.join(tmp, 'maps'));
     expect(svgs).toEqual(['in_named.glb__m0p0.svg']);
     expect(fs.readFileSync(path.join(tmp, 'maps', svgs[0]), 'utf8')).toContain('hull\\u001b]0;owned\\u0007');
+    // --json prints the same names as JSON escapes (C1 controls too), and they parse back.
+    const j = await runCli(['audit', 'in', '--json', '--jobs', '1', '--all-primitives'], tmp);
+    expect(j.stdout).not.toMatch(RAW_CONTROL);
+    const named = JSON.parse(j.stdout).files.find((f: any) => f.input === 'in/named.glb');
+    expect(named.primitives[0].meshName).toBe(`hull${EVIL}`);
     if (hasXmllint) {
       for (const f of ['j.xml', path.join('maps', svgs[0])]) {
         const v = spawnSync('xmllint', ['--noout', path.join(tmp, f)], { encoding: 'utf8' });

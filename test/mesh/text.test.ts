@@ -1,6 +1,6 @@
 // The one sanitiser for text from files, and the warnings cap (src/mesh/text.ts).
 import { describe, expect, it } from 'vitest';
-import { MAX_WARNINGS_PER_FILE, capWarnings, cleanText, markupText, quoteText, warningTotal } from '../../src/mesh/text.js';
+import { MAX_WARNINGS_PER_FILE, capWarnings, cleanText, jsonText, markupText, quoteText, warningTotal } from '../../src/mesh/text.js';
 
 /** Characters XML 1.0 allows (section 2.2, the Char production). Source: XML 1.0 Fifth Edition. */
 const XML_CHAR = /^[\t\n\r\u0020-\uD7FF\uE000-\uFFFD\u{10000}-\u{10FFFF}]*$/u;
@@ -63,5 +63,15 @@ describe('capWarnings', () => {
   it('leaves a short list as it is', () => {
     expect(capWarnings(['a', 'b'])).toEqual(['a', 'b']);
     expect(warningTotal(['a', 'b'])).toBe(2);
+  });
+});
+
+describe('jsonText', () => {
+  it('escapes what JSON leaves raw but a terminal acts on, and parses back to the same value', () => {
+    const value = { name: 'a\u009b31m\u007f\u2028b\u001b', n: 1 };
+    const text = jsonText(value, 0); // compact: no newlines of its own
+    expect(text).not.toMatch(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]/);
+    expect(text).toContain('a\\u009b31m\\u007f\\u2028b\\u001b');
+    expect(JSON.parse(text)).toEqual(value);
   });
 });
