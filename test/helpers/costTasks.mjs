@@ -9,9 +9,12 @@ import * as fs from 'node:fs';
 import * as path from 'node:path';
 import { pathToFileURL } from 'node:url';
 
-// COST_DIST names another build's dist/index.js (to measure an older build against this one).
-const lib = await import(process.env.COST_DIST ? pathToFileURL(process.env.COST_DIST).href : '../../dist/index.js');
-const { convertNormalMap, decodePng, defaultProcessOptions, mapPartsForAsset, processFile, readAsset: readAssetFile, runCli: main } = lib;
+// COST_DIST names another build's dist/index.js (to measure an older build against this one);
+// the command line is the cli/main.js beside it.
+const libUrl = process.env.COST_DIST ? pathToFileURL(process.env.COST_DIST).href : new URL('../../dist/index.js', import.meta.url).href;
+const lib = await import(libUrl);
+const { convertNormalMap, decodePng, defaultProcessOptions, mapPartsForAsset, processFile, readAsset: readAssetFile } = lib;
+const { main } = await import(new URL('./cli/main.js', libUrl).href);
 
 /** Runs `tanframe <argv> --json` in-process in `dir`; a failed file is refused with its report code. */
 export async function cliJson(dir, ...argv) {
