@@ -151,7 +151,7 @@ export async function emitReport(report: Report, o: Record<string, any>, io: Cli
     try {
       await writeFilesAtomic([{ path: target, bytes: new TextEncoder().encode(jsonText(report) + '\n') }]);
     } catch (err) {
-      io.stderr(`tanframe: --report ${o.report}: ${String((err as Error)?.message ?? err).split('\n')[0]}\n`);
+      io.stderr(`tanframe: --report ${cleanText(String(o.report))}: ${cleanText(String((err as Error)?.message ?? err).split('\n')[0]!)}\n`);
       failed = 1;
     }
   }
