@@ -28,7 +28,7 @@ export function registerAudit(program: Command, io: CliIo, done: (code: number) 
 export async function runAudit(inputs: string[], o: Record<string, any>, io: CliIo): Promise<number> {
   const started = performance.now();
   const options = toProcessOptions(o);
-  const expanded = await expandInputs(inputs, io.cwd);
+  const expanded = await expandInputs(inputs, io.cwd, { exclude: o.exclude });
   const display = (abs: string) => path.relative(io.cwd, abs) || abs;
   const reports: FileReport[] = expanded.problems.map((p) => ({
     input: p.input, output: null, status: 'failed' as const, error: { code: 'read-failed', message: p.message },

@@ -57,7 +57,7 @@ export async function runBake(inputs: string[], o: Record<string, any>, io: CliI
   options.normals = o.normals;
   options.smoothAngle = o.smoothAngle;
   options.tangentType = o.tangentType;
-  const expanded = await expandInputs(inputs, io.cwd);
+  const expanded = await expandInputs(inputs, io.cwd, { exclude: o.exclude, skipFolders: o.out ? [o.out] : [] });
   const files = shardOf(expanded.files, o.shard);
   const singleFile = inputs.length === 1 && expanded.files.length === 1 && expanded.files[0].relative === path.basename(expanded.files[0].path) &&
     fs.existsSync(path.resolve(io.cwd, inputs[0])) && fs.statSync(path.resolve(io.cwd, inputs[0])).isFile();
