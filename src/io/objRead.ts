@@ -545,9 +545,11 @@ export async function readObj(path: string, limits: ReadLimits = {}): Promise<As
   const library = new Map<string, MtlMaterial>();
   const mtlDirOf = new Map<MtlMaterial, string>();
   let mtlMissing = false;
+  const materialLibraries: string[] = [];
   for (const lib of o.mtllibs) {
     const uri = fileNameToUri(lib.file, '');
     const res = await resolveResourceUri(uri, baseDir);
+    if (res.kind === 'file') materialLibraries.push(res.path);
     let mtlText: string;
     if (res.kind === 'data') {
       mtlText = new TextDecoder('utf-8').decode(res.bytes);
@@ -673,6 +675,7 @@ export async function readObj(path: string, limits: ReadLimits = {}): Promise<As
     json,
     buffers: [],
     externalImages,
+    materialLibraries,
     primitives,
     warnings,
   };

@@ -13,6 +13,7 @@ import type { ReadLimits } from '../io/limits.js';
 import { readObj } from '../io/objRead.js';
 import type { FileReport } from '../report/types.js';
 import type { UvPicture } from '../report/uvPicture.js';
+import { unchangedOutputs } from './assetFiles.js';
 import { solveAsset } from './bakeAsset.js';
 import { guardOutputs } from './outputGuard.js';
 import { trippedGates } from './gates.js';
@@ -112,7 +113,9 @@ export async function processFileOutcome(job: FileJob, options: ProcessOptions):
     report.gates = trippedGates(solved.primitives, options);
     if (job.command === 'bake' && job.output) {
       const format = outputFormat(asset.container, job.format);
-      const files = await guardOutputs(encodeGltf(asset, solved.replacements, { format, outPath: job.output }), job.output, job.input, asset);
+      const unchanged = await unchangedOutputs(asset, job.input, job.output, format, solved.replacements.size > 0);
+      if (unchanged) report.notes = [unchanged.length === 0 ? 'nothing to bake: left as it was' : 'nothing to bake: written as the input\'s bytes'];
+      const files = await guardOutputs(unchanged ?? encodeGltf(asset, solved.replacements, { format, outPath: job.output }), job.output, job.input, asset);
       if (!job.dryRun) await writeFilesAtomic(files);
       report.output = job.dryRun ? null : job.displayOutput;
     }
