@@ -10,6 +10,7 @@ import type { FileJob } from '../lib/processFile.js';
 import { buildReport } from '../report/json.js';
 import type { FileReport } from '../report/types.js';
 import { addSharedOptions, emitReport, exitStatus, shardOf, toProcessOptions, toolVersion, type CliIo } from './shared.js';
+import { RunState, STATE_FILE_NAME } from '../lib/runState.js';
 import { runBatch } from './batch.js';
 import { writeReportFiles } from './outputs.js';
 
@@ -40,7 +41,8 @@ export function registerBake(program: Command, io: CliIo, done: (code: number) =
       return x;
     }, 60)
     .addOption(new Option('--tangent-type <type>', 'TANGENT component type').choices(['float', 'snorm16', 'snorm8']).default('float'))
-    .option('--dry-run', 'do everything but write the meshes', false);
+    .option('--dry-run', 'do everything but write the meshes', false)
+    .option('--force', `bake every file, ignoring the state of earlier runs (${STATE_FILE_NAME})`, false);
   addSharedOptions(cmd);
   cmd.action(async (inputs: string[], o: Record<string, any>) => {
     done(await runBake(inputs, o, io));
@@ -96,8 +98,13 @@ export async function runBake(inputs: string[], o: Record<string, any>, io: CliI
       displayInput: display(f.path), displayOutput: output ? display(output) : null,
     });
   }
-  const batch = await runBatch(jobs, options, o, io);
+  const state = outAbs && outIsFolder && !o.dryRun ? await RunState.open(outAbs, {
+    version: toolVersion(), options, force: !!o.force, inputs: files.map((f) => f.path), warn: (m) => io.stderr(`tanframe: warning: ${m}\n`),
+  }) : null;
+  const pending = state ? await state.pending(jobs, reports) : jobs;
+  const batch = await runBatch(pending, options, o, io, state ? (i, outcome) => state.take(pending[i], outcome.report, outcome.record) : undefined);
   reports.push(...batch.reports);
+  await state?.save();
   const seconds = (performance.now() - started) / 1000;
   const report = buildReport('bake', toolVersion(), options.method, reportOptions(o), sortReports(reports), seconds);
   await writeReportFiles(report, o, io, batch.pictures);

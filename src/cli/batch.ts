@@ -3,7 +3,7 @@
  * progress bar, and the pictures streamed to --uv-maps / --html as files finish.
  */
 import * as os from 'node:os';
-import type { FileJob } from '../lib/processFile.js';
+import type { FileJob, FileOutcome } from '../lib/processFile.js';
 import type { ProcessOptions } from '../lib/options.js';
 import type { FileReport } from '../report/types.js';
 import { PictureOutputs } from './outputs.js';
@@ -23,13 +23,14 @@ export function fileTimeoutMs(o: Record<string, any>): number {
 
 /**
  * Runs `jobs` and returns their reports in job order, with the pictures (when --uv-maps or
- * --html asks for them) written or kept for the page.
+ * --html asks for them) written or kept for the page. `onOutcome` sees each job's outcome.
  */
 export async function runBatch(
   jobs: FileJob[],
   options: ProcessOptions,
   o: Record<string, any>,
   io: CliIo,
+  onOutcome?: (index: number, outcome: FileOutcome) => void,
 ): Promise<{ reports: FileReport[]; pictures: PictureOutputs }> {
   const pictures = new PictureOutputs(o, io);
   const withPictures = pictures.wanted ? jobs.map((j) => ({ ...j, pictures: true })) : jobs;
@@ -40,6 +41,7 @@ export async function runBatch(
       threads: threadCount(o),
       fileTimeoutMs: fileTimeoutMs(o),
       workerScript: io.workerScript,
+      onOutcome,
       onPictures: pictures.wanted ? (_i, list) => pictures.take(list) : undefined,
       onProgress: bar ? (done, _total, input) => bar.update(done, input) : undefined,
     });

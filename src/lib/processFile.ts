@@ -14,6 +14,7 @@ import { readObj } from '../io/objRead.js';
 import type { FileReport } from '../report/types.js';
 import type { UvPicture } from '../report/uvPicture.js';
 import { unchangedOutputs } from './assetFiles.js';
+import { recordParts, sha256File, type RecordParts } from './runState.js';
 import { solveAsset } from './bakeAsset.js';
 import { guardOutputs } from './outputGuard.js';
 import { trippedGates } from './gates.js';
@@ -34,12 +35,16 @@ export interface FileJob {
   displayOutput: string | null;
   /** Also return UV picture data for primitives with findings (--uv-maps, --html). */
   pictures?: boolean;
+  /** Also measure what the run's state records (RecordParts) for this bake. */
+  record?: boolean;
 }
 
 /** A file's report and, when the job asked for them, its UV pictures (never in the JSON report). */
 export interface FileOutcome {
   report: FileReport;
   pictures: UvPicture[];
+  /** What the state records, when the job asked for it and the bake wrote its outputs. */
+  record?: RecordParts;
 }
 
 /** Reads any supported mesh file by its extension, within `limits` (default limits when omitted). */
@@ -100,7 +105,9 @@ export async function processFileOutcome(job: FileJob, options: ProcessOptions):
     seconds: 0,
   };
   let pictures: UvPicture[] = [];
+  let record: RecordParts | undefined;
   try {
+    const inputSha = job.record && job.output && !job.dryRun ? await sha256File(job.input) : null;
     const asset = await readAsset(job.input, { maxTriangles: options.maxTriangles });
     report.warnings.push(...asset.warnings);
     for (const ext of asset.decompressed ?? []) {
@@ -115,8 +122,10 @@ export async function processFileOutcome(job: FileJob, options: ProcessOptions):
       const format = outputFormat(asset.container, job.format);
       const unchanged = await unchangedOutputs(asset, job.input, job.output, format, solved.replacements.size > 0);
       if (unchanged) report.notes = [unchanged.length === 0 ? 'nothing to bake: left as it was' : 'nothing to bake: written as the input\'s bytes'];
-      const files = await guardOutputs(unchanged ?? encodeGltf(asset, solved.replacements, { format, outPath: job.output }), job.output, job.input, asset);
+      const planned = unchanged ?? encodeGltf(asset, solved.replacements, { format, outPath: job.output });
+      const files = await guardOutputs(planned, job.output, job.input, asset);
       if (!job.dryRun) await writeFilesAtomic(files);
+      if (inputSha) record = await recordParts(inputSha, asset, job.input, planned);
       report.output = job.dryRun ? null : job.displayOutput;
     }
   } catch (err) {
@@ -126,7 +135,8 @@ export async function processFileOutcome(job: FileJob, options: ProcessOptions):
     report.gates = [];
     report.notes = [];
     pictures = [];
+    record = undefined;
   }
   report.seconds = (performance.now() - started) / 1000;
-  return { report, pictures };
+  return record ? { report, pictures, record } : { report, pictures };
 }

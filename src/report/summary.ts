@@ -133,6 +133,7 @@ function fileBlock(f: FileReport, style: SummaryStyle): string[] {
 }
 
 function cleanLine(f: FileReport, style: SummaryStyle): string {
+  if (f.status === 'up-to-date') return `${paint(style.color, '32', 'up-to-date ')}${f.input}${f.output ? ` -> ${f.output}` : ''}`;
   const done = f.primitives.filter((p) => p.action !== 'skipped');
   const tri = done.reduce((a, p) => a + p.triangles, 0);
   const target = f.output ? ` -> ${f.output}` : '';
@@ -170,7 +171,7 @@ export function renderSummary(report: Report, style: SummaryStyle): string {
   if (clean > SUMMARY_CLEAN_FILES) lines.push(`         ... ${n(clean - SUMMARY_CLEAN_FILES)} more files without findings`);
   const gated = report.files.filter((f) => f.gates.length > 0).length;
   const totals = [
-    `${n(s.files)} file${s.files === 1 ? '' : 's'}: ${n(s.ok)} ok, ${n(s.failed)} failed, ${n(gated)} gated`,
+    `${n(s.files)} file${s.files === 1 ? '' : 's'}: ${n(s.ok)} ok, ${s.upToDate ? `${n(s.upToDate)} up-to-date, ` : ''}${n(s.failed)} failed, ${n(gated)} gated`,
     `${n(s.triangles)} triangles`,
     `${n(s.degenerateUv)} degenerate UV`,
     `${s.seconds.toFixed(2)} s`,

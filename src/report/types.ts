@@ -63,7 +63,8 @@ export interface PrimitiveReport {
 export interface FileReport {
   input: string;
   output: string | null;
-  status: 'ok' | 'failed' | 'skipped';
+  /** 'up-to-date': bake skipped the file, its outputs match the state of an earlier run (no primitives listed). */
+  status: 'ok' | 'failed' | 'skipped' | 'up-to-date';
   error: { code: string; message: string } | null;
   gates: string[];
   primitives: PrimitiveReport[];
@@ -83,6 +84,8 @@ export interface ReportSummary {
   ok: number;
   failed: number;
   skipped: number;
+  /** Files bake skipped as up-to-date. */
+  upToDate: number;
   triangles: number;
   degenerateUv: number;
   degenerateGeometry: number;

@@ -43,7 +43,7 @@ describe('bake into a folder inside its input folder', () => {
   it('never re-bakes its own outputs, however often it runs', async () => {
     const nest = await grids('nest', ['a.glb', 'sub/b.glb']);
     for (let run = 0; run < 2; run++) {
-      const r = await runCli(['bake', 'nest', '-o', 'nest/baked', '--json', '--jobs', '1'], tmp);
+      const r = await runCli(['bake', 'nest', '-o', 'nest/baked', '--json', '--jobs', '1', '--file-timeout', '0'], tmp);
       expect(r.code, r.stderr).toBe(0);
       const report = JSON.parse(r.stdout);
       expect(report.files.map((f: any) => f.input).sort()).toEqual(['nest/a.glb', 'nest/sub/b.glb']);
@@ -56,7 +56,7 @@ describe('--exclude', () => {
   it('leaves matching files out of a bake, and may be given more than once', async () => {
     await grids('ex-bake', ['keep.glb', 'wip/draft.glb', 'third_party/lib.glb']);
     const out = path.join(tmp, 'ex-bake-out');
-    const r = await runCli(['bake', 'ex-bake', '-o', out, '--exclude', 'wip', '--exclude', 'ex-bake/third_party/**', '--json', '--jobs', '1'], tmp);
+    const r = await runCli(['bake', 'ex-bake', '-o', out, '--exclude', 'wip', '--exclude', 'ex-bake/third_party/**', '--json', '--jobs', '1', '--file-timeout', '0'], tmp);
     expect(r.code, r.stderr).toBe(0);
     expect(JSON.parse(r.stdout).files.map((f: any) => f.input)).toEqual(['ex-bake/keep.glb']);
     expect(listed(out).filter((f) => f.endsWith('.glb'))).toEqual(['keep.glb']);

@@ -142,7 +142,8 @@ describe('outputs stay inside -o', () => {
     const r = await runCli(['bake', src, '-o', out, '--all-primitives', '--json', '--jobs', '1'], tmp);
     expect(r.stderr).toBe('');
     expect(r.code).toBe(0);
-    expect(Object.keys(tree(out)).sort()).toEqual(['..x.glb', '.hidden.glb', path.join('sub', '..y.glb')].sort());
+    // Besides the outputs, a bake into a folder keeps its state file there (DESIGN.md, Guarantees).
+    expect(Object.keys(tree(out)).sort()).toEqual(['..x.glb', '.hidden.glb', '.tanframe-state.json', path.join('sub', '..y.glb')].sort());
     // Nothing landed beside -o.
     expect(fs.readdirSync(tmp).filter((n) => n.endsWith('.glb'))).toEqual([]);
   });
@@ -158,7 +159,7 @@ describe('outputs stay inside -o', () => {
     const r = await runCli(['bake', src, '-o', out, '--quiet'], tmp);
     expect(r.stderr).toBe('');
     expect(r.code).toBe(0);
-    expect(Object.keys(tree(out)).sort()).toEqual(['props/quad.bin', 'props/quad.gltf', 'props/textures/normal.png']);
+    expect(Object.keys(tree(out)).sort()).toEqual(['.tanframe-state.json', 'props/quad.bin', 'props/quad.gltf', 'props/textures/normal.png']);
     expect(tree(real)).toEqual(before);
   });
 });
