@@ -70,9 +70,10 @@ export function globMatcher(glob: string): (relativePath: string) => boolean {
 /** What a folder walk leaves out besides the fixed rules (node_modules, names starting with '.'). */
 export interface DiscoveryOptions {
   /**
-   * --exclude globs, relative to `cwd`. A glob without '/' is matched against the name of each
-   * file and folder (so `wip` leaves out every folder named wip); one with '/' against the path
-   * relative to `cwd` of the file and of each folder above it.
+   * --exclude globs. A glob without '/' is matched against the name of each file and folder
+   * (so `wip` leaves out every folder named wip); one with '/' against the path of each file
+   * and folder relative to `cwd`, and relative to the folder being walked (the folder input,
+   * or the glob's base), so `wip/**` leaves out `assets/wip/` in a walk of `assets`.
    */
   exclude?: string[];
   /** Folders never walked into (the run's own output folder); compared by real path. */
@@ -84,26 +85,28 @@ export function isSkippedFolderName(name: string): boolean {
   return name === 'node_modules' || name.startsWith('.');
 }
 
-/** The --exclude test of one path (absolute), compiled once per run. */
-function excluder(globs: string[], cwd: string): (abs: string) => boolean {
+/** The --exclude test of one path (absolute) found walking `base`, compiled once per run. */
+function excluder(globs: string[], cwd: string): (abs: string, base: string) => boolean {
   if (globs.length === 0) return () => false;
   const byName = globs.filter((g) => !g.includes('/')).map(globMatcher);
   const byPath = globs.filter((g) => g.includes('/')).map((g) => globMatcher(g.replace(/^\.\//, '')));
-  return (abs: string) => {
-    const rel = toPosix(path.relative(cwd, abs));
+  return (abs: string, base: string) => {
     if (byName.some((m) => m(path.basename(abs)))) return true;
-    return byPath.some((m) => m(rel));
+    const fromCwd = toPosix(path.relative(cwd, abs));
+    const fromBase = toPosix(path.relative(base, abs));
+    return byPath.some((m) => m(fromCwd) || m(fromBase));
   };
 }
 
 interface WalkRules {
-  /** True for a file or folder (absolute path) to leave out. */
-  excluded: (abs: string) => boolean;
+  /** True for a file or folder (absolute path) found walking `base` to leave out. */
+  excluded: (abs: string, base: string) => boolean;
   /** Real paths of folders never entered. */
   skip: Set<string>;
 }
 
-async function walk(dir: string, visited: Set<string>, out: string[], rules: WalkRules, root = false): Promise<void> {
+async function walk(dir: string, visited: Set<string>, out: string[], rules: WalkRules, base: string): Promise<void> {
+  const root = dir === base;
   let real: string;
   try {
     real = await fs.realpath(dir);
@@ -121,7 +124,7 @@ async function walk(dir: string, visited: Set<string>, out: string[], rules: Wal
   entries.sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0));
   for (const e of entries) {
     const p = path.join(dir, e.name);
-    if (rules.excluded(p)) continue;
+    if (rules.excluded(p, base)) continue;
     let isDir = e.isDirectory();
     let isFile = e.isFile();
     if (e.isSymbolicLink()) {
@@ -133,7 +136,7 @@ async function walk(dir: string, visited: Set<string>, out: string[], rules: Wal
         continue;
       }
     }
-    if (isDir && !isSkippedFolderName(e.name)) await walk(p, visited, out, rules);
+    if (isDir && !isSkippedFolderName(e.name)) await walk(p, visited, out, rules, base);
     else if (isFile) out.push(p);
   }
 }
@@ -182,7 +185,7 @@ export async function expandInputs(inputs: string[], cwd: string, discovery: Dis
     }
     if (st?.isDirectory()) {
       const found: string[] = [];
-      await walk(abs, new Set(), found, rules, true);
+      await walk(abs, new Set(), found, rules, abs);
       const meshes = found.filter(isMeshFile);
       if (meshes.length === 0) problems.push({ input, message: 'no .glb, .gltf or .obj files in this folder' });
       for (const f of meshes) await add(f, path.relative(abs, f));
@@ -193,7 +196,7 @@ export async function expandInputs(inputs: string[], cwd: string, discovery: Dis
       const base = path.resolve(cwd, scan.base === '' ? '.' : scan.base);
       const matches = globMatcher(scan.prefix + scan.glob);
       const found: string[] = [];
-      await walk(base, new Set(), found, rules, true);
+      await walk(base, new Set(), found, rules, base);
       const hits = found.filter((f) => isMeshFile(f) && matches(toPosix(path.relative(base, f))));
       if (hits.length === 0) problems.push({ input, message: 'the pattern matches no .glb, .gltf or .obj file' });
       for (const f of hits) await add(f, path.relative(base, f));

@@ -143,6 +143,11 @@ describe('folder walks', () => {
     expect(await found(['.'], root, { exclude: ['props/legacy', 'third_party/**'] })).toEqual(['e.glb', 'props/a.glb']);
   });
 
+  it('--exclude with a slash also matches paths from the folder being walked', async () => {
+    const root = tree('exbase', ['assets/a.glb', 'assets/wip/b.glb', 'other/wip/c.glb']);
+    expect(await found(['assets', 'other'], root, { exclude: ['wip/**'] })).toEqual(['assets/a.glb']);
+  });
+
   it('--exclude applies to globs as well', async () => {
     const root = tree('exglob', ['a.glb', 'b.glb', 'sub/c.glb']);
     expect(await found(['**/*.glb'], root, { exclude: ['b.glb'] })).toEqual(['a.glb', 'sub/c.glb']);
