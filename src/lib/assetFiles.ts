@@ -20,6 +20,17 @@ export interface ReferencedFile {
   kind: 'buffer' | 'image' | 'material-library';
 }
 
+/** True when nothing is at `p`, or exactly `bytes`. */
+async function holdsOrAbsent(p: string, bytes: Uint8Array): Promise<boolean> {
+  let current: Buffer;
+  try {
+    current = await readRegularFile(p);
+  } catch (err) {
+    return (err as NodeJS.ErrnoException).code === 'ENOENT';
+  }
+  return current.byteLength === bytes.byteLength && Buffer.compare(current, bytes) === 0;
+}
+
 function toPosix(p: string): string {
   return p.split(path.sep).join('/');
 }
@@ -62,7 +73,10 @@ export function referencedFiles(asset: Asset, input: string): ReferencedFile[] {
  * `output`, and each buffer and image file it references (present on disk) at the same
  * relative path beside `output`, byte for byte, so compression, layout and every byte the
  * file holds stay as they were. Files are read anew; a file that vanished since the read
- * fails the file ('read-failed'), as a missing input would.
+ * fails the file ('read-failed'), as a missing input would. When a copied buffer would replace
+ * a different file already at its destination, null: the encoder's layout then keeps the
+ * replaced asset whole (a copy replaces the buffer before the JSON, and a reader between the
+ * two would see the old JSON over the new buffer).
  */
 export async function unchangedOutputs(asset: Asset, input: string, output: string, format: 'glb' | 'gltf', changed: boolean): Promise<OutputFile[] | null> {
   if (changed || asset.container === 'obj' || asset.container !== format) return null;
@@ -81,7 +95,9 @@ export async function unchangedOutputs(asset: Asset, input: string, output: stri
       if (ref.kind === 'buffer' && (err as NodeJS.ErrnoException).code === 'ENOENT') continue;
       throw new TanframeError('read-failed', `cannot copy '${ref.relative}': ${(err as Error).message}`);
     }
-    files.push({ path: path.join(outDir, ...ref.relative.split('/')), bytes });
+    const target = path.join(outDir, ...ref.relative.split('/'));
+    if (ref.kind === 'buffer' && !(await holdsOrAbsent(target, bytes))) return null;
+    files.push({ path: target, bytes });
   }
   return files;
 }

@@ -63,7 +63,7 @@ describe('a file with nothing to bake', () => {
     fs.writeFileSync(input, glbBytes(json, bin));
     fs.writeFileSync(path.join(dir, 'tex', 'colour.png'), PNG_BYTES);
     const out = path.join(tmp, 'glb-out', 'quad.glb');
-    const r = await runCli(['bake', input, '-o', out, '--json', '--jobs', '1'], tmp);
+    const r = await runCli(['bake', input, '-o', out, '--json', '--jobs', '1', '--file-timeout', '0'], tmp);
     expect(r.code, r.stderr).toBe(0);
     expect(bytesOf(out).equals(bytesOf(input))).toBe(true);
     // The image the GLB names by URI is copied beside it (a re-encode would embed it).
@@ -82,7 +82,7 @@ describe('a file with nothing to bake', () => {
     fs.mkdirSync(path.join(dir, 'tex'), { recursive: true });
     fs.writeFileSync(path.join(dir, 'tex', 'colour.png'), PNG_BYTES);
     const out = path.join(tmp, 'gltf-out');
-    const r = await runCli(['bake', dir, '-o', out, '--jobs', '1', '--quiet'], tmp);
+    const r = await runCli(['bake', dir, '-o', out, '--jobs', '1', '--file-timeout', '0', '--quiet'], tmp);
     expect(r.code, r.stderr).toBe(0);
     for (const rel of ['quad.gltf', 'quad.bin', 'tex/colour.png']) {
       expect(bytesOf(path.join(out, rel)).equals(bytesOf(path.join(dir, rel))), rel).toBe(true);
@@ -90,12 +90,34 @@ describe('a file with nothing to bake', () => {
     expect(input.endsWith('quad.gltf')).toBe(true);
   });
 
+  it('is encoded, not copied, when its .bin would replace a different file already in the output folder', async () => {
+    // A copy renames the buffer before the JSON: a reader in between would see the old JSON over
+    // the new buffer. The encoder's layout is used instead.
+    const dir = path.join(tmp, 'gltf-over');
+    const { json, bin } = plainQuad();
+    delete json.images;
+    delete json.textures;
+    delete json.materials[0].pbrMetallicRoughness;
+    await writeGltf(dir, 'quad', json, bin);
+    const out = path.join(tmp, 'gltf-over-out');
+    fs.mkdirSync(out, { recursive: true });
+    const stale = new Uint8Array(bin.length + 8).fill(7);
+    fs.writeFileSync(path.join(out, 'quad.bin'), stale);
+    fs.writeFileSync(path.join(out, 'quad.gltf'), JSON.stringify({ asset: { version: '2.0' }, buffers: [{ uri: 'quad.bin', byteLength: stale.length }] }));
+    const r = await runCli(['bake', dir, '-o', out, '--jobs', '1', '--file-timeout', '0', '--json'], tmp);
+    expect(r.code, r.stderr).toBe(0);
+    expect(JSON.parse(r.stdout).files[0].notes).not.toContain("nothing to bake: written as the input's bytes");
+    // Source: Khronos gltf-validator.
+    const v = await validateGltfFile(path.join(out, 'quad.gltf'));
+    expect(v.errors, v.messages.join('; ')).toBe(0);
+  });
+
   it('is copied when --keep-existing keeps every stored tangent', async () => {
     const dir = path.join(tmp, 'kept');
     // A grid whose stored tangents are the exact frame (gridAsset): all valid, all kept.
     const input = await writeGridGlb(dir, 'grid', gridAsset(2, true));
     const out = path.join(tmp, 'kept-out.glb');
-    const r = await runCli(['bake', input, '-o', out, '--keep-existing', '--json', '--jobs', '1'], tmp);
+    const r = await runCli(['bake', input, '-o', out, '--keep-existing', '--json', '--jobs', '1', '--file-timeout', '0'], tmp);
     expect(r.code, r.stderr).toBe(0);
     expect(JSON.parse(r.stdout).files[0].primitives[0].action).toBe('kept');
     expect(bytesOf(out).equals(bytesOf(input))).toBe(true);
@@ -105,7 +127,7 @@ describe('a file with nothing to bake', () => {
     const dir = path.join(tmp, 'baked');
     const input = await writeGridGlb(dir, 'grid', gridAsset(2, false));
     const out = path.join(tmp, 'baked-out.glb');
-    const r = await runCli(['bake', input, '-o', out, '--jobs', '1', '--quiet'], tmp);
+    const r = await runCli(['bake', input, '-o', out, '--jobs', '1', '--file-timeout', '0', '--quiet'], tmp);
     expect(r.code, r.stderr).toBe(0);
     expect(bytesOf(out).equals(bytesOf(input))).toBe(false);
   });
@@ -120,7 +142,7 @@ describe('a file with nothing to bake', () => {
     const input = path.join(dir, 'quad.glb');
     fs.writeFileSync(input, glbBytes(json, bin));
     const out = path.join(tmp, 'convert-out', 'quad.gltf');
-    const r = await runCli(['bake', input, '-o', out, '--format', 'gltf', '--jobs', '1', '--quiet'], tmp);
+    const r = await runCli(['bake', input, '-o', out, '--format', 'gltf', '--jobs', '1', '--file-timeout', '0', '--quiet'], tmp);
     expect(r.code, r.stderr).toBe(0);
     expect(JSON.parse(fs.readFileSync(out, 'utf8')).buffers[0].uri).toBe('quad.bin');
     // Source: Khronos gltf-validator.
@@ -140,7 +162,7 @@ describe('a file with nothing to bake', () => {
     fs.writeFileSync(input, original);
     const old = new Date('2020-01-02T03:04:05Z');
     fs.utimesSync(input, old, old);
-    const r = await runCli(['bake', input, '--in-place', '--json', '--jobs', '1'], tmp);
+    const r = await runCli(['bake', input, '--in-place', '--json', '--jobs', '1', '--file-timeout', '0'], tmp);
     expect(r.code, r.stderr).toBe(0);
     expect(JSON.parse(r.stdout).files[0].notes).toContain('nothing to bake: left as it was');
     expect(bytesOf(input).equals(Buffer.from(original))).toBe(true);
@@ -152,7 +174,7 @@ describe('a file with nothing to bake', () => {
     // Source: shared Khronos sample Box/glTF-Draco (KHR_draco_mesh_compression, no normal texture).
     const src = path.join(samples, 'Box', 'glTF-Draco');
     const out = path.join(tmp, 'draco-out');
-    const r = await runCli(['bake', path.join(src, 'Box.gltf'), '-o', path.join(out, 'Box.gltf'), '--jobs', '1', '--quiet'], tmp);
+    const r = await runCli(['bake', path.join(src, 'Box.gltf'), '-o', path.join(out, 'Box.gltf'), '--jobs', '1', '--file-timeout', '0', '--quiet'], tmp);
     expect(r.code, r.stderr).toBe(0);
     for (const rel of ['Box.gltf', 'Box.bin']) expect(bytesOf(path.join(out, rel)).equals(bytesOf(path.join(src, rel))), rel).toBe(true);
     // Source: Khronos gltf-validator.
