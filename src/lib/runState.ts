@@ -95,7 +95,7 @@ export async function sha256File(file: string): Promise<string | null> {
   if (!st?.isFile()) return null;
   return new Promise((resolve) => {
     const hash = createHash('sha256');
-    const stream = createReadStream(file);
+    const stream = createReadStream(file, { highWaterMark: 1 << 20 });
     stream.on('data', (chunk) => hash.update(chunk));
     stream.on('error', () => resolve(null));
     stream.on('end', () => resolve(hash.digest('hex')));
