@@ -8,7 +8,7 @@ import type { Asset } from '../mesh/asset.js';
 import { assert, TanframeError } from '../mesh/errors.js';
 import { writeFilesAtomic } from '../io/files.js';
 import { readGltf, readGltfBytes } from '../io/gltfRead.js';
-import { encodeGltf } from '../io/gltfWrite.js';
+import { encodeGltf, isBufferFileOf } from '../io/gltfWrite.js';
 import type { ReadLimits } from '../io/limits.js';
 import { readObj, readObjBytes } from '../io/objRead.js';
 import { memoryResources, type AssetResources } from '../io/resources.js';
@@ -20,6 +20,7 @@ import { solveAsset } from './bakeAsset.js';
 import { guardOutputs } from './outputGuard.js';
 import { trippedGates } from './gates.js';
 import type { ProcessOptions } from './options.js';
+import type { JobWrites } from './writePlan.js';
 
 /** What to do with one file. */
 export interface FileJob {
@@ -36,6 +37,8 @@ export interface FileJob {
   displayOutput: string | null;
   /** Also return UV picture data for primitives with findings (--uv-maps, --html). */
   pictures?: boolean;
+  /** What the run's write plan settled for this job (bake): where it writes, image names, buffers to remove. */
+  writes?: JobWrites;
   /** Also measure what the run's state records (RecordParts) for this bake. */
   record?: boolean;
 }
@@ -142,11 +145,23 @@ export async function processFileOutcome(job: FileJob, options: ProcessOptions):
     report.gates = trippedGates(solved.primitives, options);
     if (job.command === 'bake' && job.output) {
       const format = outputFormat(asset.container, job.format);
-      const unchanged = await unchangedOutputs(asset, job.input, job.output, format, solved.replacements.size > 0);
+      const w = job.writes;
+      const out = w?.output ?? job.output;
+      // A copy keeps the input's image URIs: when the plan renamed one, the file is encoded.
+      const renamed = Object.keys(w?.imageUris ?? {}).length > 0;
+      const unchanged = await unchangedOutputs(asset, job.input, out, format, solved.replacements.size > 0 || renamed, w?.files);
       if (unchanged) report.notes = [unchanged.length === 0 ? 'nothing to bake: left as it was' : 'nothing to bake: written as the input\'s bytes'];
-      const planned = unchanged ?? encodeGltf(asset, solved.replacements, { format, outPath: job.output });
-      const files = await guardOutputs(planned, job.output, job.input, asset);
-      if (!job.dryRun) await writeFilesAtomic(files);
+      const planned = unchanged ?? encodeGltf(asset, solved.replacements, { format, outPath: out, imageUris: w?.imageUris, embedBuffers: w?.embedBuffers && asset.container === 'gltf' });
+      const files = await guardOutputs(planned, out, job.input, asset, w);
+      // In place with nothing to bake, nothing is written (and nothing the file names is removed).
+      if (!job.dryRun && !(unchanged && unchanged.length === 0)) {
+        await writeFilesAtomic(files, {
+          main: out,
+          removeAfter: w?.removeAfter,
+          leftovers: format === 'gltf' ? { match: (name) => isBufferFileOf(out, name), keep: w?.keep ?? [] } : undefined,
+        });
+        report.notes.push(...(w?.notes ?? []));
+      }
       if (inputSha) record = await recordParts(inputSha, asset, job.input, planned);
       report.output = job.dryRun ? null : job.displayOutput;
     }

@@ -292,18 +292,18 @@ describe('a state that cannot be trusted', () => {
 });
 
 describe('the state file is never an input', () => {
-  it('naming it as an input is a usage error (exit 2) and nothing is written', async () => {
+  it('naming it as an input refuses the run (exit 2, the write plan names it) and nothing is written', async () => {
     const src = await source('as-input');
     const out = path.join(tmp, 'as-input-out');
     await bake(src, out);
     const before = mtimes(out);
     const r = await runCli(['bake', path.join(out, STATE_FILE_NAME), path.join(src, 'a.glb'), '-o', out, '--jobs', '1', '--file-timeout', '0'], tmp);
     expect(r.code).toBe(2);
-    expect(r.stderr).toMatch(/state file of the output folder; it cannot be an input/);
+    expect(r.stderr).toMatch(/^tanframe: the state file .*\.tanframe-state\.json would overwrite .*, which the run reads/);
     expect(mtimes(out)).toEqual(before);
   });
 
-  it('when an input references the state file, the state is not written (a warning says so)', async () => {
+  it('an input referencing the state file refuses the run before anything is written (exit 2)', async () => {
     const src = path.join(tmp, 'refers');
     await writeQuadGltf(src, 'quad');
     // The .gltf names an image inside the output folder, at the state file's path.
@@ -315,7 +315,9 @@ describe('the state file is never an input', () => {
     const precious = new Uint8Array([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 42]);
     fs.writeFileSync(path.join(src, 'baked', STATE_FILE_NAME), precious);
     const r = await runCli(['bake', src, '-o', path.join(src, 'baked'), '--jobs', '1', '--file-timeout', '0', '--quiet'], tmp);
-    expect(r.stderr).toMatch(/warning: .*not writing .*\.tanframe-state\.json: .*quad\.gltf reads or writes/);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/^tanframe: the state file .*\.tanframe-state\.json would overwrite .*, which the run reads/);
     expect(new Uint8Array(fs.readFileSync(path.join(src, 'baked', STATE_FILE_NAME)))).toEqual(precious);
+    expect(fs.readdirSync(path.join(src, 'baked'))).toEqual([STATE_FILE_NAME]);
   });
 });
