@@ -30,9 +30,12 @@
  * are hashed right after the read (a file swapped in that instant is the one gap). A state
  * file that is not valid JSON, has another schema or a malformed record is ignored with a
  * warning and replaced when the run saves; `--force` ignores it without a warning. The state
- * is written atomically after the outputs. It is never one of the run's inputs: naming it as
- * an input is a usage error, and when a file of the run references it or would be written at
- * its path, the state is not written (a warning says so).
+ * is written atomically after the outputs. It is never one of the run's inputs: `bake` lists
+ * it in the run's write plan before any work (a run that reads it, as an input or a file an
+ * input references, or plans another file at its path, is refused with exit status 2);
+ * RunState checks again on its own (naming it as an input is a usage error, and when a
+ * finished file turns out to reference it or to have written it, the state is not written
+ * and a warning says so).
  */
 import { createHash } from 'node:crypto';
 import { createReadStream } from 'node:fs';
