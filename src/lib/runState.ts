@@ -87,6 +87,9 @@ export interface StateJob {
   record?: boolean;
 }
 
+/** Jobs whose records are checked at once (file reads overlap hashing). Our choice. */
+const CHECKS_AT_ONCE = 4;
+
 /** SHA-256 (hex) of the bytes in memory. */
 export function sha256Bytes(bytes: Uint8Array): string {
   return createHash('sha256').update(bytes).digest('hex');
@@ -258,19 +261,30 @@ export class RunState {
    * the others are returned, marked so the worker measures their record.
    */
   async pending<J extends StateJob>(jobs: J[], reports: FileReport[]): Promise<J[]> {
+    // Up to CHECKS_AT_ONCE jobs are checked at once, so reading one file overlaps hashing another.
+    const seconds: (number | null)[] = new Array(jobs.length).fill(null);
+    let next = 0;
+    const check = async () => {
+      while (next < jobs.length) {
+        const i = next++;
+        const started = performance.now();
+        if (await this.upToDate(jobs[i])) seconds[i] = (performance.now() - started) / 1000;
+      }
+    };
+    await Promise.all(Array.from({ length: Math.min(CHECKS_AT_ONCE, jobs.length) }, check));
     const out: J[] = [];
-    for (const job of jobs) {
-      const started = performance.now();
-      if (await this.upToDate(job)) {
+    jobs.forEach((job, i) => {
+      const s = seconds[i];
+      if (s !== null) {
         reports.push({
           input: job.displayInput, output: job.displayOutput, status: 'up-to-date', error: null,
-          gates: [], primitives: [], warnings: [], notes: [], seconds: (performance.now() - started) / 1000,
+          gates: [], primitives: [], warnings: [], notes: [], seconds: s,
         });
-        continue;
+        return;
       }
       job.record = true;
       out.push(job);
-    }
+    });
     return out;
   }
 
