@@ -110,7 +110,7 @@ export async function runBake(inputs: string[], o: Record<string, any>, io: CliI
   }) : null;
   const pending = state ? await state.pending(jobs, reports) : jobs;
   const batch = await runBatch(pending, options, o, io, run.plan, state ? (i, outcome) => state.take(pending[i], outcome.report, outcome.record) : undefined);
-  reports.push(...batch.reports);
+  for (const r of batch.reports) reports.push(r); // no spread: a batch may hold any number of files
   await state?.save();
   const seconds = (performance.now() - started) / 1000;
   const report = buildReport('bake', toolVersion(), options.method, reportOptions(o), sortReports(reports), seconds);
