@@ -91,6 +91,32 @@ f 1/1 2/2 3/3 4/4\n`);
     expect(tris(a)).toEqual([0, 1, 2, 0, 2, 3]);
   });
 
+  it('measures the texture-space diagonals on v as the file stores it, not on 1 - v', async () => {
+    // Source: METHODS.md step 7 (diagonal measured on the file's float32 coordinates, before any
+    // change of v origin). A square UV cell of side 0.1 turned by 30 degrees, coordinates written
+    // to 6 decimals: both diagonals are 0.02 long up to rounding, so float32 rounding decides.
+    //          2 (0.856218, 0.536603)
+    //        /    \
+    //   3 (0.769615, 0.486603)   1 (0.906218, 0.45)
+    //        \    /
+    //          0 (0.819615, 0.4)
+    // On the stored v: |uv2-uv0|^2 < |uv3-uv1|^2 -> diagonal 0-2. On fround(1 - v) the order
+    // reverses (1-3 would win), which is what measuring after the conversion picked.
+    const uv = [[0.819615, 0.4], [0.906218, 0.45], [0.856218, 0.536603], [0.769615, 0.486603]];
+    const f = Math.fround;
+    const d2 = (p: number[], q: number[]) => {
+      const du = f(f(q[0]!) - f(p[0]!)), dv = f(f(q[1]!) - f(p[1]!));
+      return f(f(du * du) + f(dv * dv));
+    };
+    const flip = (p: number[]) => [p[0]!, 1 - p[1]!];
+    expect(d2(uv[0]!, uv[2]!)).toBeLessThan(d2(uv[1]!, uv[3]!)); // stored v: 0-2 shorter
+    expect(d2(flip(uv[1]!), flip(uv[3]!))).toBeLessThan(d2(flip(uv[0]!), flip(uv[2]!))); // 1 - v: 1-3 shorter
+    const a = await readText(`v 0 0 0\nv 1 0 0\nv 1 1 0\nv 0 1 0
+${uv.map((p) => `vt ${p[0]} ${p[1]}`).join('\n')}
+f 1/1 2/2 3/3 4/4\n`);
+    expect(tris(a)).toEqual([0, 1, 2, 0, 2, 3]);
+  });
+
   it('fans polygons with more than four corners and keeps one face id per polygon', async () => {
     // pentagon 0..4 followed by a triangle
     const a = await readText(`v 0 0 0\nv 1 0 0\nv 2 1 0\nv 1 2 0\nv 0 1 0
