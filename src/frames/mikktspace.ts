@@ -51,8 +51,9 @@ function newFrame(store: FrameStore): number {
  * triangle corner (corner c = triangle c/3, slot c%3) the id of its frame in `cornerFrame`.
  * A frame is xyz unit, w = +1 for an orientation-preserving group, -1 otherwise. `vSign` is +1
  * when v grows upward and -1 for glTF's top-left origin (negates every dv). `faces`, when
- * given, holds an original face id per triangle; consecutive triangles with the same id (a
- * split quad) are forced to one orientation. Corners with no usable direction get the
+ * given, holds an original face id per triangle; exactly two consecutive triangles with the
+ * same id (a split quad) are forced to one orientation, while three or more (a fanned polygon)
+ * are independent triangles. Corners with no usable direction get the
  * documented fallback (see fallback.ts). Returns the frames and the counts.
  * Preconditions: indices hold 3 * triangleCount entries < vertexCount; normals are unit;
  * cornerFrame.length >= 3 * triangleCount.
@@ -149,17 +150,24 @@ export function computeMikktspaceFrames(
     }
   }
 
-  // Split quads (same face id on consecutive triangles) share one orientation.
+  // Split quads (exactly two consecutive triangles with one face id) share one orientation.
+  // A longer run is a polygon with more corners, fanned by the caller: the method takes only
+  // triangles and quads, so its triangles stay independent (METHODS.md step 7).
   if (faces) {
-    for (let t = 0; t + 1 < triangleCount; t++) {
-      if (faces[t] !== faces[t + 1]) continue;
-      const fa = flags[t], fb = flags[t + 1];
-      if ((fa | fb) & DEGENERATE) continue;
-      if ((fa & ORIENT_PRESERVING) === (fb & ORIENT_PRESERVING)) continue;
-      let first = (fb & GROUP_WITH_ANY) !== 0;
-      if (!first) first = uvArea(uvs, wi, t, vSign) >= uvArea(uvs, wi, t + 1, vSign);
-      const src = first ? t : t + 1, dst = first ? t + 1 : t;
-      flags[dst] = (flags[dst] & ~ORIENT_PRESERVING) | (flags[src] & ORIENT_PRESERVING);
+    let t = 0;
+    while (t < triangleCount) {
+      let end = t + 1;
+      while (end < triangleCount && faces[end] === faces[t]) end++;
+      if (end - t === 2) {
+        const fa = flags[t], fb = flags[t + 1];
+        if (!((fa | fb) & DEGENERATE) && (fa & ORIENT_PRESERVING) !== (fb & ORIENT_PRESERVING)) {
+          let first = (fb & GROUP_WITH_ANY) !== 0;
+          if (!first) first = uvArea(uvs, wi, t, vSign) >= uvArea(uvs, wi, t + 1, vSign);
+          const src = first ? t : t + 1, dst = first ? t + 1 : t;
+          flags[dst] = (flags[dst] & ~ORIENT_PRESERVING) | (flags[src] & ORIENT_PRESERVING);
+        }
+      }
+      t = end;
     }
   }
 

@@ -8,6 +8,7 @@ import * as path from 'node:path';
 // @ts-ignore -- the validator ships no type declarations
 import validator from 'gltf-validator';
 import { objAttributesAsGltf, readObj } from '../../src/io/objRead.js';
+import { computeFrames } from '../../src/frames/computeFrames.js';
 import { TanframeError } from '../../src/mesh/errors.js';
 import type { Asset } from '../../src/mesh/asset.js';
 
@@ -123,6 +124,31 @@ f 1/1 2/2 3/3 4/4\n`);
 f 1 2 3 4 5\nf 1 3 4\n`);
     expect(tris(a)).toEqual([0, 1, 2, 0, 2, 3, 0, 3, 4, 0, 2, 3]);
     expect(Array.from(a.primitives[0]!.faces!)).toEqual([0, 0, 0, 1]);
+  });
+
+  it("solves a hexagon's fan triangles as independent triangles (no split inside the face from forced orientations)", async () => {
+    // Source: METHODS.md step 7: polygons beyond quads are fanned from corner 0 and their
+    // triangles are independent. Hexagon face with UVs along a zigzag, so the fan triangles
+    // alternate orientation (det of (0,1,2) > 0, (0,2,3) < 0, (0,3,4) > 0, (0,4,5) < 0, OBJ v up):
+    //   uv: 0 (0,0)  1 (1,0)  2 (1,1)  3 (2,1)  4 (4,3)  5 (5,3)
+    const a = await readText(`v 1 0 0\nv 0.5 0.866 0\nv -0.5 0.866 0\nv -1 0 0\nv -0.5 -0.866 0\nv 0.5 -0.866 0
+vt 0 0\nvt 1 0\nvt 1 1\nvt 2 1\nvt 4 3\nvt 5 3\nvn 0 0 1
+f 1/1/1 2/2/1 3/3/1 4/4/1 5/5/1 6/6/1\n`);
+    const p = a.primitives[0]!;
+    expect(Array.from(p.faces!)).toEqual([0, 0, 0, 0]);
+    const input = {
+      positions: p.attributes.POSITION!.array as Float32Array,
+      normals: p.attributes.NORMAL!.array as Float32Array,
+      uvs: p.attributes.TEXCOORD_0!.array as Float32Array,
+      indices: p.indices!,
+    };
+    const withFace = computeFrames({ ...input, faces: p.faces }, { method: 'mikktspace' });
+    const apart = computeFrames(input, { method: 'mikktspace' });
+    expect(Array.from(withFace.tangents)).toEqual(Array.from(apart.tangents));
+    expect(Array.from(withFace.indices)).toEqual(Array.from(apart.indices));
+    // Per triangle w (glTF origin): +1, -1, +1, -1, so the face really holds both sides.
+    const w = [0, 1, 2, 3].map((t) => withFace.tangents[withFace.indices[t * 3 + 1]! * 4 + 3]);
+    expect(w).toEqual([1, -1, 1, -1]);
   });
 });
 
