@@ -62,5 +62,12 @@ export interface FrameResult {
   indices: Uint32Array;
   /** For each output vertex, the input vertex it copies. */
   sourceVertex: Uint32Array;
+  /**
+   * Per corner of `indices` (3 per triangle): 1 where the method defines no tangent (no
+   * contributing triangle reaches the corner's vertex, e.g. every triangle around it is
+   * degenerate in UV) and the documented fallback was written, else 0. A file made by another
+   * implementation of the method holds that implementation's default there (METHODS.md step 8).
+   */
+  undefinedCorners: Uint8Array;
   stats: FrameStats;
 }
