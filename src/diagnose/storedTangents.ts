@@ -99,8 +99,11 @@ export function isStoredTangentSetValid(stored: Float32Array, normals: Float32Ar
  *   file holds some implementation's default (METHODS.md step 8). Counted in `undefinedFrames`;
  * - else its stored tangent is invalid (isStoredTangentValid against `normals`, which may be
  *   null: not unit, not orthogonal to the normal, w not +-1, or not finite): it says nothing
- *   about the method (glTF 2.0 requires TANGENT xyz unit and w = +-1). Counted as `invalid`,
- *   which counts input VERTICES in [0, vertexCount), used by a triangle or not.
+ *   about the method (glTF 2.0 requires TANGENT xyz unit and w = +-1; the Khronos validator
+ *   reports xyz with | |xyz| - 1 | > 0.00674 as non-unit and any other w as an invalid sign,
+ *   read from the code of gltf-validator 2.0.0-dev.3.10, not from memory; the unit test here
+ *   is isStoredTangentValid's, with the tolerance of src/mesh/tolerances.ts). Counted as
+ *   `invalid`, which counts input VERTICES in [0, vertexCount), used by a triangle or not.
  * p95 is the nearest-rank 95th percentile of the sorted corner angles (float64). `mismatched`
  * counts the compared corners with angle > toleranceDeg or a sign mismatch. With nothing
  * compared the three angles are 0.
