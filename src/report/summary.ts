@@ -59,6 +59,7 @@ function storedCell(p: PrimitiveReport): string {
   if (s.mismatched) parts.push(`${n(s.mismatched)} off`);
   if (s.signMismatch) parts.push(`${n(s.signMismatch)} sign`);
   if (s.invalid) parts.push(`${n(s.invalid)} invalid`);
+  if (s.undefinedFrames) parts.push(`${n(s.undefinedFrames)} undefined`);
   return parts.join(', ');
 }
 
