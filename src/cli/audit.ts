@@ -31,7 +31,7 @@ export async function runAudit(inputs: string[], given: Record<string, any>, io:
   const started = performance.now();
   const settings = resolveSettings(given, io.cwd);
   const { options, o } = settings;
-  const expanded = await expandInputs(inputs, io.cwd);
+  const expanded = await expandInputs(inputs, io.cwd, { exclude: o.exclude });
   expanded.files = expanded.files.filter((f) => !(settings.excluded(f.path) && !namedExplicitly(inputs, f.path, io.cwd)));
   const display = (abs: string) => path.relative(io.cwd, abs) || abs;
   const reports: FileReport[] = expanded.problems.map((p) => ({

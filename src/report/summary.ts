@@ -99,6 +99,7 @@ function storedCell(p: PrimitiveReport): string {
   if (s.mismatched) parts.push(`${n(s.mismatched)} off`);
   if (s.signMismatch) parts.push(`${n(s.signMismatch)} sign`);
   if (s.invalid) parts.push(`${n(s.invalid)} invalid`);
+  if (s.undefinedFrames) parts.push(`${n(s.undefinedFrames)} undefined`);
   return parts.join(', ');
 }
 
@@ -190,6 +191,7 @@ function fileBlock(f: FileReport, style: SummaryStyle): string[] {
 }
 
 function cleanLine(f: FileReport, style: SummaryStyle): string {
+  if (f.status === 'up-to-date') return `${paint(style.color, '32', 'up-to-date ')}${f.input}${f.output ? ` -> ${f.output}` : ''}`;
   const done = f.primitives.filter((p) => p.action !== 'skipped');
   const tri = done.reduce((a, p) => a + p.triangles, 0);
   const target = f.output ? ` -> ${cleanText(f.output)}` : '';
@@ -200,8 +202,7 @@ function cleanLine(f: FileReport, style: SummaryStyle): string {
   const warnings = warningTotal(f.warnings);
   const extra = `${layout ? `; notes: ${layout}` : ''}${skipped ? `; ${skipped}` : ''}${waived}` +
     `${warnings ? `, ${n(warnings)} warning${warnings === 1 ? '' : 's'}` : ''}${notes}`;
-  const status = f.status === 'up-to-date' ? paint(style.color, '2', 'up to date ') : paint(style.color, '32', 'ok       ');
-  return `${status}${cleanText(f.input)}${target}  (${done.length} of ${f.primitives.length} primitives, ${n(tri)} triangles, no findings${extra})`;
+  return `${paint(style.color, '32', 'ok       ')}${cleanText(f.input)}${target}  (${done.length} of ${f.primitives.length} primitives, ${n(tri)} triangles, no findings${extra})`;
 }
 
 /** Files worst first: by severity, then by findings, then by name. */

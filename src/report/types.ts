@@ -12,12 +12,18 @@ export interface TriangleFinding {
 
 /** Stored-vs-recomputed tangent comparison. */
 export interface StoredTangentReport {
+  /** Input vertices whose stored tangent is invalid (not unit, not orthogonal, w not +-1, not finite); not compared. */
   invalid: number;
+  /**
+   * Corners not compared because the recomputed frame is undefined there (no contributing
+   * triangle reaches the vertex; the file holds some default, tanframe its fallback).
+   */
+  undefinedFrames: number;
   meanAngleDeg: number;
   p95AngleDeg: number;
   maxAngleDeg: number;
   signMismatch: number;
-  /** Corners compared (valid stored tangent, finite recomputed one). */
+  /** Corners compared (valid stored tangent, defined recomputed frame). */
   compared: number;
   /** Corners whose angle exceeds the `--tolerance` or whose sign differs. */
   mismatched: number;
@@ -74,7 +80,8 @@ export interface FileReport {
   output: string | null;
   /**
    * 'unchecked': gates were asked for and no primitive could be checked (each says why in
-   * skipReason); 'up-to-date': bake skipped the file, nothing changed since the last run.
+   * skipReason); 'up-to-date': bake skipped the file, its outputs match the state of an
+   * earlier run (no primitives listed).
    */
   status: 'ok' | 'failed' | 'skipped' | 'up-to-date' | 'unchecked';
   error: { code: string; message: string } | null;
