@@ -106,7 +106,7 @@ export async function runConvertMap(o: Record<string, any>, io: CliIo): Promise<
   if (!greenOnly && !o.mesh) throw new TanframeError('usage', '--mesh is required to convert between spaces or tangent methods');
   const inAbs = path.resolve(io.cwd, o.in), outAbs = path.resolve(io.cwd, o.out);
   if (path.extname(outAbs).toLowerCase() !== '.png') {
-    throw new TanframeError('unsupported-format', `${o.out}: convert-map writes PNG only (give the output a .png name)`);
+    throw new TanframeError('usage', `${o.out}: convert-map writes PNG only (give the output a .png name)`);
   }
   if (inAbs === outAbs) throw new TanframeError('usage', `${o.out}: the output would overwrite the input map; write it elsewhere`);
 

@@ -62,7 +62,9 @@ export async function main(argv: string[], io: CliIo = processIo()): Promise<num
     }
     if (err instanceof TanframeError) {
       io.stderr(`tanframe: ${cleanText(err.message)}\n`);
-      return err.code === 'write-failed' ? 3 : 2;
+      // Usage and configuration errors: nothing was processed (2); anything else is an input or
+      // output that failed (3).
+      return err.code === 'usage' || err.code === 'bad-config' || err.code === 'internal' || err.code === 'invalid-argument' ? 2 : 3;
     }
     const e = err as Error;
     io.stderr(`tanframe: internal error: ${cleanText(e?.message ?? String(err))}\n`);

@@ -139,7 +139,8 @@ describe('fixtures/maps: convert-map refuses with a reason and writes nothing', 
         ? ['convert-map', '--mesh', path.join('fixtures', 'maps', name), '--in', input, '--out', out, '--from', 'tangent', '--to', 'object']
         : ['convert-map', '--in', input, '--out', out, '--from', 'tangent', '--to', 'tangent', '--out-green', 'down'];
       const r = await runCli(args, repo);
-      expect(r.code).toBe(2);
+      // DESIGN.md, Exit status: an input that could not be read or processed is 3.
+      expect(r.code).toBe(3);
       expectOneLine(r.stderr, input);
       expect(fs.existsSync(out)).toBe(false);
       // The stable code, through the library calls convert-map makes.

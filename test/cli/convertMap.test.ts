@@ -187,7 +187,7 @@ describe('convert-map on an analytic sphere', () => {
   });
 });
 
-describe('convert-map errors: one line, exit 2, nothing written', () => {
+describe('convert-map errors: one line, exit 2 for usage and 3 for an input that cannot be used, nothing written', () => {
   const crateArgs = () => ['--mesh', path.join(crate, 'crate.gltf'), '--in', path.join(crate, 'crate_normal.png')];
 
   it('refuses JPEG input by name', async () => {
@@ -195,25 +195,25 @@ describe('convert-map errors: one line, exit 2, nothing written', () => {
     fs.writeFileSync(jpg, Buffer.from([0xff, 0xd8, 0xff, 0xe0, 0, 16, 0x4a, 0x46, 0x49, 0x46, 0, 1, 1, 0]));
     const out = path.join(tmp, 'never.png');
     const r = await runCli(['convert-map', '--in', jpg, '--out', out, '--from', 'tangent', '--to', 'tangent', '--out-green', 'down'], repo);
-    expect(r.code).toBe(2);
+    expect(r.code).toBe(3);
     expect(r.stderr).toBe(`tanframe: ${jpg}: JPEG images are not supported (convert-map reads and writes PNG only)\n`);
     expect(fs.existsSync(out)).toBe(false);
   });
 
   it('refuses a non-PNG output name, a missing mesh, and options that do not apply', async () => {
     const out = path.join(tmp, 'x.png');
-    const cases: [string[], RegExp][] = [
+    const cases: [string[], RegExp, number?][] = [
       [[...crateArgs(), '--out', path.join(tmp, 'x.jpg'), '--from', 'tangent', '--to', 'object'], /x\.jpg: convert-map writes PNG only/],
       [['--in', path.join(crate, 'crate_normal.png'), '--out', out, '--from', 'tangent', '--to', 'object'], /--mesh is required/],
       [[...crateArgs(), '--out', out, '--from', 'tangent', '--to', 'object', '--to-method', 'lengyel'], /--to-method applies to a tangent-space output only/],
       [[...crateArgs(), '--out', out, '--from', 'tangent', '--to', 'tangent'], /nothing to convert/],
       [['--mesh', path.join(tmp, 'missing.glb'), '--in', path.join(crate, 'crate_normal.png'), '--out', out, '--from', 'tangent', '--to', 'object'],
-        /^tanframe: .*missing\.glb: cannot read: not found\n$/],
+        /^tanframe: .*missing\.glb: cannot read: not found\n$/, 3],
       [[...crateArgs(), '--out', path.join(crate, 'crate_normal.png'), '--from', 'tangent', '--to', 'object'], /would overwrite the input/],
     ];
-    for (const [args, message] of cases) {
+    for (const [args, message, code] of cases) {
       const r = await runCli(['convert-map', ...args], repo);
-      expect(r.code, args.join(' ')).toBe(2);
+      expect(r.code, args.join(' ')).toBe(code ?? 2);
       expect(r.stderr).toMatch(message);
       expect(r.stderr.trim().split('\n')).toHaveLength(1);
     }
@@ -224,7 +224,7 @@ describe('convert-map errors: one line, exit 2, nothing written', () => {
     const grey = path.join(tmp, 'grey.png');
     writePng(grey, { width: 4, height: 4, channels: 1, depth: 8, data: new Uint8Array(16).fill(200) });
     const r = await runCli(['convert-map', ...crateArgs().slice(0, 2), '--in', grey, '--out', path.join(tmp, 'g.png'), '--from', 'tangent', '--to', 'object'], repo);
-    expect(r.code).toBe(2);
+    expect(r.code).toBe(3);
     expect(r.stderr).toBe(`tanframe: ${grey}: a grey image holds no normal directions: convert-map needs an RGB or RGBA PNG\n`);
   });
 });
