@@ -16,7 +16,7 @@ import { memoryResources, type AssetResources } from '../io/resources.js';
 import type { FileReport } from '../report/types.js';
 import type { UvPicture } from '../report/uvPicture.js';
 import { unchangedOutputs } from './assetFiles.js';
-import { hashFileStamped, recordParts, type RecordParts } from './runState.js';
+import { recordParts, sha256File, type RecordParts } from './runState.js';
 import { solveAsset } from './bakeAsset.js';
 import { guardOutputs } from './outputGuard.js';
 import { gateFigures, wasChecked } from './gates.js';
@@ -160,7 +160,7 @@ export async function processFileOutcome(job: FileJob, batchOptions: ProcessOpti
   let pictures: UvPicture[] = [];
   let record: RecordParts | undefined;
   try {
-    const inputHash = job.record && job.output && !job.dryRun ? await hashFileStamped(job.input) : null;
+    const inputSha = job.record && job.output && !job.dryRun ? await sha256File(job.input) : null;
     const asset = await readAsset(job.input, { maxTriangles: options.maxTriangles });
     report.warnings = capWarnings(asset.warnings).map((w) => quoteText(w, MAX_MESSAGE_LENGTH));
     for (const ext of asset.decompressed ?? []) {
@@ -190,10 +190,7 @@ export async function processFileOutcome(job: FileJob, batchOptions: ProcessOpti
         });
         report.notes.push(...(w?.notes ?? []));
       }
-      if (inputHash?.sha256) {
-        const written = !job.dryRun && !(unchanged && unchanged.length === 0);
-        record = await recordParts({ sha256: inputHash.sha256, stamp: inputHash.stamp }, asset, job.input, planned, written);
-      }
+      if (inputSha) record = await recordParts(inputSha, asset, job.input, planned);
       report.output = job.dryRun ? null : job.displayOutput;
     }
   } catch (err) {

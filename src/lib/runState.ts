@@ -25,16 +25,6 @@
  * would trip none again); a file that failed or tripped a gate loses its record and runs
  * every time. Records of outputs this run did not touch are kept (other runs into the folder).
  *
- * Stamps: beside each hash a record keeps the file's stamp (size, modification and change
- * times in nanoseconds, inode and device), taken just before the file is hashed, or just after
- * an output is written. A file whose stamp is unchanged is taken to hold the bytes it had, so
- * a rerun hashes only what was touched (common practice in version-control indexes; the
- * change time cannot be set back by hand, so editing a file and restoring its modification
- * time still changes its stamp). The record keeps the stamp sealed with the hash (a digest of
- * both), so a hash changed by hand no longer matches its stamp. A stamp is recorded only when the file system keeps
- * sub-millisecond times (change time not a whole millisecond) and the file did not change
- * while it was hashed; otherwise the file is hashed on every check.
- *
  * Trust: the input is hashed before the reader reads it and the outputs from the bytes
  * written, so a file edited during the run only makes the next run redo it. Referenced files
  * are hashed right after the read (a file swapped in that instant is the one gap). A state
@@ -64,11 +54,10 @@ export const STATE_FILE_NAME = '.tanframe-state.json';
 /** The state file's schema tag. */
 export const STATE_SCHEMA = 'tanframe-state/1';
 
-/** A file and the SHA-256 of its bytes (hex), null for a file that was absent; `stamp` see the module doc. */
+/** A file and the SHA-256 of its bytes (hex), null for a file that was absent. */
 export interface HashedFile {
   path: string;
   sha256: string | null;
-  stamp?: string;
 }
 
 /** One output's record. */
@@ -83,8 +72,6 @@ export interface StateRecord {
 /** What a bake measured for the state (absolute paths): passed from the worker to the run. */
 export interface RecordParts {
   input: string;
-  /** The input's stamp, taken before it was hashed (absent: none to trust). */
-  inputStamp?: string;
   references: HashedFile[];
   outputs: HashedFile[];
 }
@@ -122,57 +109,14 @@ export async function sha256File(file: string): Promise<string | null> {
 }
 
 /**
- * The file's stamp (see the module doc): size, modification and change times in nanoseconds,
- * inode and device; null when it is absent, not a regular file, or its file system keeps
- * coarse times (a stamp there could miss an edit made in the same tick).
- */
-export async function fileStamp(file: string): Promise<string | null> {
-  const st = await fsp.stat(file, { bigint: true }).catch(() => null);
-  if (!st?.isFile() || st.ctimeNs % 1_000_000n === 0n) return null;
-  return `${st.size}:${st.mtimeNs}:${st.ctimeNs}:${st.ino}:${st.dev}`;
-}
-
-/** A file's hash with the stamp taken before hashing; no stamp when the file changed meanwhile. */
-export async function hashFileStamped(file: string): Promise<{ sha256: string | null; stamp?: string }> {
-  const before = await fileStamp(file);
-  const sha256 = await sha256File(file);
-  const after = before === null ? null : await fileStamp(file);
-  return before !== null && before === after && sha256 !== null ? { sha256, stamp: sealStamp(before, sha256) } : { sha256 };
-}
-
-/**
- * The stamp as recorded: a digest of the file's stamp together with its hash, so a record
- * whose hash was changed by hand no longer matches its stamp (it is hashed again).
- */
-export function sealStamp(stamp: string, sha256: string): string {
-  return createHash('sha256').update(`${stamp}|${sha256}`).digest('hex').slice(0, 32);
-}
-
-/** True when `file` holds the bytes recorded in `rec`: its stamp is unchanged, or its hash equals. */
-async function holds(file: string, rec: HashedFile): Promise<boolean> {
-  if (rec.stamp !== undefined && rec.sha256 !== null) {
-    const now = await fileStamp(file);
-    if (now !== null && sealStamp(now, rec.sha256) === rec.stamp) return true;
-  }
-  return (await sha256File(file)) === rec.sha256;
-}
-
-/**
  * What the worker measures for the state after a bake: the input's hash (taken before the
  * read), the hash of every file the asset references (absent ones null) and of every planned
  * output (from its bytes).
  */
-export async function recordParts(input: { sha256: string; stamp?: string }, asset: Asset, inputPath: string, planned: OutputFile[], written: boolean): Promise<RecordParts> {
+export async function recordParts(inputSha: string, asset: Asset, input: string, planned: OutputFile[]): Promise<RecordParts> {
   const references: HashedFile[] = [];
-  for (const ref of referencedFiles(asset, inputPath)) references.push({ path: ref.path, ...(await hashFileStamped(ref.path)) });
-  const outputs: HashedFile[] = [];
-  for (const f of planned) {
-    const stamp = written ? await fileStamp(f.path) : null;
-    const sha256 = sha256Bytes(f.bytes);
-    const fits = stamp !== null && stamp.startsWith(`${f.bytes.length}:`);
-    outputs.push({ path: path.resolve(f.path), sha256, ...(fits ? { stamp: sealStamp(stamp, sha256) } : {}) });
-  }
-  return { input: input.sha256, ...(input.stamp !== undefined ? { inputStamp: input.stamp } : {}), references, outputs };
+  for (const ref of referencedFiles(asset, input)) references.push({ path: ref.path, sha256: await sha256File(ref.path) });
+  return { input: inputSha, references, outputs: planned.map((f) => ({ path: path.resolve(f.path), sha256: sha256Bytes(f.bytes) })) };
 }
 
 /** JSON with object keys sorted at every level, so equal options give equal text. */
@@ -192,8 +136,7 @@ function toPosix(p: string): string {
 const HEX64 = /^[0-9a-f]{64}$/;
 
 function isHashed(v: any, nullable: boolean): v is HashedFile {
-  return v !== null && typeof v === 'object' && typeof v.path === 'string' && (HEX64.test(v.sha256) || (nullable && v.sha256 === null)) &&
-    (v.stamp === undefined || typeof v.stamp === 'string');
+  return v !== null && typeof v === 'object' && typeof v.path === 'string' && (HEX64.test(v.sha256) || (nullable && v.sha256 === null));
 }
 
 function isRecord(r: any): r is StateRecord {
@@ -301,13 +244,14 @@ export class RunState {
     if (this.settings.force || !job.output) return false;
     const r = this.records.get(this.key(job));
     if (!r || r.tool !== this.settings.version || canonical(r.options) !== canonical(this.optionsOf(job))) return false;
-    if (!(await holds(job.input, r.input))) return false;
+    if ((await sha256File(job.input)) !== r.input.sha256) return false;
     const inputDir = path.dirname(path.resolve(job.input));
     for (const ref of r.references) {
-      if (!(await holds(path.resolve(inputDir, ...ref.path.split('/')), ref))) return false;
+      const abs = path.resolve(inputDir, ...ref.path.split('/'));
+      if ((await sha256File(abs)) !== ref.sha256) return false;
     }
     for (const out of r.outputs) {
-      if (!(await holds(path.resolve(this.folder, ...out.path.split('/')), out))) return false;
+      if ((await sha256File(path.resolve(this.folder, ...out.path.split('/')))) !== out.sha256) return false;
     }
     return true;
   }
@@ -360,11 +304,11 @@ export class RunState {
     if (touches) this.blocked = `${job.displayInput} reads or writes ${touches.path}`;
     const inputDir = path.dirname(path.resolve(job.input));
     this.records.set(key, {
-      input: { path: toPosix(path.relative(this.folder, path.resolve(job.input))), sha256: parts.input, ...stampOf(parts.inputStamp) },
-      references: parts.references.map((f) => ({ path: toPosix(path.relative(inputDir, f.path)), sha256: f.sha256, ...stampOf(f.stamp) })),
+      input: { path: toPosix(path.relative(this.folder, path.resolve(job.input))), sha256: parts.input },
+      references: parts.references.map((f) => ({ path: toPosix(path.relative(inputDir, f.path)), sha256: f.sha256 })),
       options: this.optionsOf(job),
       tool: this.settings.version,
-      outputs: parts.outputs.map((f) => ({ path: toPosix(path.relative(this.folder, f.path)), sha256: f.sha256, ...stampOf(f.stamp) })),
+      outputs: parts.outputs.map((f) => ({ path: toPosix(path.relative(this.folder, f.path)), sha256: f.sha256 })),
     });
   }
 
@@ -387,10 +331,6 @@ export class RunState {
       this.settings.warn(`${(err as Error).message}; the next run redoes every file`);
     }
   }
-}
-
-function stampOf(stamp: string | undefined): { stamp?: string } {
-  return stamp === undefined ? {} : { stamp };
 }
 
 async function realOrSelf(p: string): Promise<string> {
