@@ -238,7 +238,7 @@ export function renderSummary(report: Report, style: SummaryStyle): string {
     `${n(s.withFindings ?? 0)} with findings`,
     `${n(gated)} gated`,
     `${n(s.unchecked ?? 0)} unchecked`,
-    `${n(s.upToDate ?? 0)} up to date`,
+    `${n(s.upToDate ?? 0)} up-to-date`,
     `${n(s.failed)} failed`,
   ];
   if (s.skipped) counts.push(`${n(s.skipped)} skipped`);

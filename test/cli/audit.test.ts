@@ -395,7 +395,7 @@ describe('human summary', () => {
     const col = header.indexOf('UV degen') + 'UV degen'.length;
     expect(row.slice(0, col).trimEnd().endsWith(' 3')).toBe(true);
     expect(lines[at('clean')]).toMatch(/^ok\s+.*no findings/);
-    expect(plain.stdout).toMatch(/total: 3 files: 1 clean, 1 with findings, 1 gated, 0 unchecked, 0 up to date, 0 failed \|/);
+    expect(plain.stdout).toMatch(/total: 3 files: 1 clean, 1 with findings, 1 gated, 0 unchecked, 0 up-to-date, 0 failed \|/);
 
     const tty = await runCli(args, tmp, {}, { stdoutIsTTY: true });
     expect(tty.stdout).toMatch(/\u001b\[31;1mgated/);

@@ -95,7 +95,7 @@ describe('unchecked files', () => {
     expect(r.code).toBe(0);
     expect(r.stdout).toMatch(/^unchecked props\/crate\.glb\n\s+nothing could be checked: 0 of 1 primitives checked\n\s+1 primitive skipped \(no-texcoord 1\)$/m);
     expect(r.stdout).not.toMatch(/^ok /m);
-    expect(r.stdout).toMatch(/total: 2 files: 0 clean, 0 with findings, 0 gated, 2 unchecked, 0 up to date, 0 failed \|/);
+    expect(r.stdout).toMatch(/total: 2 files: 0 clean, 0 with findings, 0 gated, 2 unchecked, 0 up-to-date, 0 failed \|/);
     const junit = fs.readFileSync(path.join(root, 'junit-unchecked.xml'), 'utf8');
     expect(junit).toMatch(/skipped="2"/);
     expect(junit).toContain('<skipped message="unchecked: nothing could be checked (1 primitive skipped (no-texcoord 1))"/>');

@@ -162,7 +162,7 @@ describe('summary counts', () => {
         files: [clean, findings, gated, unchecked, upToDate, failed], summary: s },
       { color: false },
     );
-    expect(text).toMatch(/total: 6 files: 1 clean, 1 with findings, 1 gated, 1 unchecked, 1 up to date, 1 failed \|/);
+    expect(text).toMatch(/total: 6 files: 1 clean, 1 with findings, 1 gated, 1 unchecked, 1 up-to-date, 1 failed \|/);
     expect(text).toMatch(/^unchecked a\.glb\n\s+nothing could be checked: 0 of 1 primitives checked\n\s+1 primitive skipped \(empty 1\)/m);
   });
 });
