@@ -1,7 +1,6 @@
 /**
  * `tanframe audit`: inspect, report and gate; never writes meshes.
  */
-import * as path from 'node:path';
 import { Command } from 'commander';
 import { expandInputs } from '../io/inputs.js';
 import type { FileJob } from '../lib/processFile.js';
@@ -29,13 +28,12 @@ export async function runAudit(inputs: string[], o: Record<string, any>, io: Cli
   const started = performance.now();
   const options = toProcessOptions(o);
   const expanded = await expandInputs(inputs, io.cwd);
-  const display = (abs: string) => path.relative(io.cwd, abs) || abs;
   const reports: FileReport[] = expanded.problems.map((p) => ({
     input: p.input, output: null, status: 'failed' as const, error: { code: 'read-failed', message: p.message },
     gates: [], primitives: [], warnings: [], notes: [], seconds: 0,
   }));
   const jobs: FileJob[] = shardOf(expanded.files, o.shard).map((f) => ({
-    command: 'audit', input: f.path, output: null, format: null, dryRun: true, displayInput: display(f.path), displayOutput: null,
+    command: 'audit', input: f.path, output: null, format: null, dryRun: true, displayInput: f.display, displayOutput: null,
   }));
   const batch = await runBatch(jobs, options, o, io);
   reports.push(...batch.reports);

@@ -5,7 +5,7 @@ import * as fs from 'node:fs';
 import * as path from 'node:path';
 import { Command, Option } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
-import { expandInputs } from '../io/inputs.js';
+import { displayPath, expandInputs } from '../io/inputs.js';
 import type { FileJob } from '../lib/processFile.js';
 import { buildReport } from '../report/json.js';
 import type { FileReport } from '../report/types.js';
@@ -66,34 +66,41 @@ export async function runBake(inputs: string[], o: Record<string, any>, io: CliI
   const reports: FileReport[] = expanded.problems.map((p) => failed(p.input, 'read-failed', p.message));
   const jobs: FileJob[] = [];
   const targets = new Map<string, string>();
-  const display = (abs: string) => path.relative(io.cwd, abs) || abs;
   for (const f of files) {
     let output: string | null = null;
+    // The output as the user would name it: -o as given, plus the mirrored relative path.
+    let outputShown: string | null = null;
     if (o.inPlace) {
       if (path.extname(f.path).toLowerCase() === '.obj' || (o.format && `.${o.format}` !== path.extname(f.path).toLowerCase())) {
-        reports.push(failed(display(f.path), 'usage', '--in-place keeps the file type; write OBJ input or another --format with -o'));
+        reports.push(failed(f.display, 'usage', '--in-place keeps the file type; write OBJ input or another --format with -o'));
         continue;
       }
       output = f.path;
+      outputShown = f.display;
     } else if (outAbs) {
       output = outIsFolder ? path.join(outAbs, swapExtension(f.relative, o.format ?? null)) : outAbs;
-      if (!outIsFolder && path.extname(outAbs) === '') output = swapExtension(outAbs + '.x', o.format ?? (path.extname(f.path).toLowerCase() === '.gltf' ? 'gltf' : 'glb'));
+      outputShown = outIsFolder ? displayPath(o.out, swapExtension(f.relative, o.format ?? null)) : o.out;
+      if (!outIsFolder && path.extname(outAbs) === '') {
+        const ext = o.format ?? (path.extname(f.path).toLowerCase() === '.gltf' ? 'gltf' : 'glb');
+        output = swapExtension(outAbs + '.x', ext);
+        outputShown = swapExtension(o.out + '.x', ext);
+      }
       if (path.resolve(output) === path.resolve(f.path)) {
-        reports.push(failed(display(f.path), 'usage', 'the output would overwrite the input; use --in-place to replace it'));
+        reports.push(failed(f.display, 'usage', 'the output would overwrite the input; use --in-place to replace it'));
         continue;
       }
       const other = targets.get(output);
       if (other) {
-        reports.push(failed(display(f.path), 'usage', `its output ${display(output)} is also the output of ${other}`));
+        reports.push(failed(f.display, 'usage', `its output ${outputShown} is also the output of ${other}`));
         continue;
       }
-      targets.set(output, display(f.path));
+      targets.set(output, f.display);
     }
     const ext = output ? path.extname(output).toLowerCase() : '';
     const format = o.format ?? (ext === '.gltf' ? 'gltf' : ext === '.glb' ? 'glb' : null);
     jobs.push({
       command: 'bake', input: f.path, output, format, dryRun: !!o.dryRun,
-      displayInput: display(f.path), displayOutput: output ? display(output) : null,
+      displayInput: f.display, displayOutput: outputShown,
     });
   }
   const batch = await runBatch(jobs, options, o, io);

@@ -15,6 +15,12 @@ export interface InputFile {
   path: string;
   /** Path relative to the folder or glob base it was found under (its basename for a file). */
   relative: string;
+  /**
+   * The path as reports show it: a named file exactly as the user named it; a file found in a
+   * named folder (or under a glob's base) as that folder as named plus the relative path.
+   * Never depends on the working folder's depth (no `../..` chains for absolute inputs).
+   */
+  display: string;
 }
 
 /** Expansion result: files found and inputs that named nothing. */
@@ -104,6 +110,16 @@ function toPosix(p: string): string {
 }
 
 /**
+ * The display path of `relative` (posix) found under `base` as the user named it: `base`
+ * without trailing separators, '/', then `relative`; a base of '.' or '' adds nothing.
+ */
+export function displayPath(base: string, relative: string): string {
+  if (/^[\\/]+$/.test(base)) return '/' + relative;
+  const b = base.replace(/[\\/]+$/, '');
+  return b === '' || b === '.' ? relative : `${b}/${relative}`;
+}
+
+/**
  * Expands inputs relative to `cwd`. Files are taken whatever their extension (the reader
  * refuses unknown ones); folders and globs yield only mesh files. The same file (by real
  * path) named twice is listed once. Returns files sorted by absolute path.
@@ -112,7 +128,7 @@ export async function expandInputs(inputs: string[], cwd: string): Promise<Expan
   const files: InputFile[] = [];
   const problems: { input: string; message: string }[] = [];
   const seen = new Set<string>();
-  const add = async (abs: string, relative: string) => {
+  const add = async (abs: string, relative: string, display: string) => {
     let key = abs;
     try {
       key = await fs.realpath(abs);
@@ -121,7 +137,7 @@ export async function expandInputs(inputs: string[], cwd: string): Promise<Expan
     }
     if (seen.has(key)) return;
     seen.add(key);
-    files.push({ path: abs, relative: toPosix(relative) });
+    files.push({ path: abs, relative: toPosix(relative), display });
   };
   for (const input of inputs) {
     const abs = path.resolve(cwd, input);
@@ -136,9 +152,9 @@ export async function expandInputs(inputs: string[], cwd: string): Promise<Expan
       await walk(abs, new Set(), found);
       const meshes = found.filter(isMeshFile);
       if (meshes.length === 0) problems.push({ input, message: 'no .glb, .gltf or .obj files in this folder' });
-      for (const f of meshes) await add(f, path.relative(abs, f));
+      for (const f of meshes) await add(f, path.relative(abs, f), displayPath(input, toPosix(path.relative(abs, f))));
     } else if (st) {
-      await add(abs, path.basename(abs));
+      await add(abs, path.basename(abs), input);
     } else if (hasGlob(input)) {
       const parts = toPosix(input).split('/');
       let k = 0;
@@ -150,7 +166,7 @@ export async function expandInputs(inputs: string[], cwd: string): Promise<Expan
       await walk(base, new Set(), found);
       const matches = found.filter((f) => isMeshFile(f) && pattern.test(toPosix(path.relative(base, f))));
       if (matches.length === 0) problems.push({ input, message: 'the pattern matches no .glb, .gltf or .obj file' });
-      for (const f of matches) await add(f, path.relative(base, f));
+      for (const f of matches) await add(f, path.relative(base, f), displayPath(baseRel === '' && toPosix(input).startsWith('/') ? '/' : baseRel, toPosix(path.relative(base, f))));
     } else {
       problems.push({ input, message: 'no such file or folder' });
     }
