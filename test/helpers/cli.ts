@@ -2,6 +2,7 @@
  * Runs the CLI in-process with captured streams.
  */
 import { main } from '../../src/cli/main.js';
+import { assertReportsOf } from './schemas.js';
 
 /** Captured outcome of one CLI run. */
 export interface CliRun {
@@ -22,7 +23,11 @@ export interface CliRunOptions {
   stderrIsTTY?: boolean;
 }
 
-/** Runs `tanframe <argv...>` in `cwd` without spawning a process. */
+/**
+ * Runs `tanframe <argv...>` in `cwd` without spawning a process. Every JSON report the run
+ * writes (--report, --json) is checked against schema/tanframe-report-1.schema.json; a
+ * report that does not match fails the test.
+ */
 export async function runCli(
   argv: string[],
   cwd: string,
@@ -40,5 +45,6 @@ export async function runCli(
     stderrIsTTY: !!streams.stderrIsTTY,
     workerScript: TS_WORKER,
   });
+  assertReportsOf(argv, cwd, stdout);
   return { code, stdout, stderr };
 }
