@@ -9,7 +9,7 @@ import type { FileReport } from '../report/types.js';
 import { reportOptions, sortReports } from './bake.js';
 import { runBatch } from './batch.js';
 import { writeReportFiles } from './outputs.js';
-import { addSharedOptions, emitReport, exitStatus, shardOf, toProcessOptions, toolVersion, type CliIo } from './shared.js';
+import { addSharedOptions, checkOutputOptions, emitReport, exitStatus, shardOf, toProcessOptions, toolVersion, type CliIo } from './shared.js';
 
 /** Registers `audit` on `program`; `done` receives the exit status. */
 export function registerAudit(program: Command, io: CliIo, done: (code: number) => void): void {
@@ -26,6 +26,7 @@ export function registerAudit(program: Command, io: CliIo, done: (code: number) 
 /** The `audit` command's body, callable in-process. Returns the exit status. */
 export async function runAudit(inputs: string[], o: Record<string, any>, io: CliIo): Promise<number> {
   const started = performance.now();
+  checkOutputOptions(o);
   const options = toProcessOptions(o);
   const expanded = await expandInputs(inputs, io.cwd);
   const reports: FileReport[] = expanded.problems.map((p) => ({

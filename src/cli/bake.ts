@@ -9,7 +9,7 @@ import { displayPath, expandInputs } from '../io/inputs.js';
 import type { FileJob } from '../lib/processFile.js';
 import { buildReport } from '../report/json.js';
 import type { FileReport } from '../report/types.js';
-import { addSharedOptions, emitReport, exitStatus, shardOf, toProcessOptions, toolVersion, type CliIo } from './shared.js';
+import { addSharedOptions, checkOutputOptions, emitReport, exitStatus, shardOf, toProcessOptions, toolVersion, type CliIo } from './shared.js';
 import { runBatch } from './batch.js';
 import { writeReportFiles } from './outputs.js';
 
@@ -52,6 +52,7 @@ export async function runBake(inputs: string[], o: Record<string, any>, io: CliI
   const started = performance.now();
   if (o.out && o.inPlace) throw new TanframeError('usage', 'choose one of -o/--out and --in-place');
   if (!o.out && !o.inPlace && !o.dryRun) throw new TanframeError('usage', 'say where to write: -o <out> or --in-place (or --dry-run)');
+  checkOutputOptions(o);
   const options = toProcessOptions(o);
   options.keepExisting = !!o.keepExisting;
   options.normals = o.normals;

@@ -7,6 +7,7 @@ import { TanframeError } from '../mesh/errors.js';
 import { registerAudit } from './audit.js';
 import { registerBake } from './bake.js';
 import { registerConvertMap } from './convertMap.js';
+import { registerReport } from './report.js';
 import { toolVersion, type CliIo } from './shared.js';
 
 /** The real process streams and environment. */
@@ -34,6 +35,7 @@ export function buildProgram(io: CliIo, done: (code: number) => void): Command {
   registerBake(program, io, done);
   registerAudit(program, io, done);
   registerConvertMap(program, io, done);
+  registerReport(program, io, done);
   for (const c of program.commands) c.exitOverride().configureOutput({ writeOut: io.stdout, writeErr: io.stderr });
   return program;
 }
