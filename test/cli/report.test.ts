@@ -107,6 +107,9 @@ describe('tanframe report', () => {
     const r = await runCli(['report', 'clean-1.json', 'gated.json'], tmp);
     expect(r.code).toBe(1);
     expect(r.stdout).toContain('gates tripped: degenerate-uv');
+    const annotated = await runCli(['report', 'clean-1.json', 'gated.json', '--annotate', 'github', '--quiet'], tmp);
+    expect(annotated.code).toBe(1);
+    expect(annotated.stdout).toMatch(/^::error file=assets\/b\.glb,title=tanframe%3A degenerate-uv::gate degenerate-uv tripped%0A[^\n]*\n$/);
   });
 
   it('refusesPartsOfDifferentRunsNamingTheDifference', async () => {
