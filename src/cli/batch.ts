@@ -7,7 +7,7 @@ import type { FileJob } from '../lib/processFile.js';
 import type { ProcessOptions } from '../lib/options.js';
 import type { FileReport } from '../report/types.js';
 import { PictureOutputs } from './outputs.js';
-import { ProgressBar, progressWanted } from './progress.js';
+import { ProgressBar, ProgressRecords, progressRecordsWanted, progressWanted } from './progress.js';
 import { runFiles } from './runFiles.js';
 import { DEFAULT_FILE_TIMEOUT_S, type CliIo } from './shared.js';
 
@@ -33,7 +33,10 @@ export async function runBatch(
 ): Promise<{ reports: FileReport[]; pictures: PictureOutputs }> {
   const pictures = new PictureOutputs(o, io);
   const withPictures = pictures.wanted ? jobs.map((j) => ({ ...j, pictures: true })) : jobs;
-  const bar = progressWanted(!!io.stderrIsTTY, io.env, o) && jobs.length > 0 ? new ProgressBar(io.stderr, jobs.length) : null;
+  const bar = progressWanted(!!io.stderrIsTTY, io.env, o) && jobs.length > 0
+    ? new ProgressBar(io.stderr, jobs.length, io.clock ? () => io.clock!.now() : undefined, io.stderrColumns)
+    : null;
+  const records = progressRecordsWanted(!!io.stderrIsTTY, io.env, o) && jobs.length > 0 ? new ProgressRecords(io.stderr, jobs.length, io.clock) : null;
   let reports: FileReport[];
   try {
     reports = await runFiles(withPictures, options, {
@@ -41,10 +44,16 @@ export async function runBatch(
       fileTimeoutMs: fileTimeoutMs(o),
       workerScript: io.workerScript,
       onPictures: pictures.wanted ? (_i, list) => pictures.take(list) : undefined,
-      onProgress: bar ? (done, _total, input) => bar.update(done, input) : undefined,
+      onProgress: bar || records
+        ? (done, _total, input, report) => {
+            bar?.update(done, input);
+            records?.update(report);
+          }
+        : undefined,
     });
   } finally {
     bar?.finish();
+    records?.finish();
   }
   await pictures.finish(o);
   return { reports, pictures };

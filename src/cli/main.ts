@@ -19,6 +19,7 @@ export function processIo(): CliIo {
     isTTY: !!process.stdout.isTTY,
     env: process.env,
     stderrIsTTY: !!process.stderr.isTTY,
+    stderrColumns: () => process.stderr.columns,
   };
 }
 

@@ -21,8 +21,8 @@ export interface RunSettings {
   workerScript?: URL;
   /** Receives each file's pictures, in job order (whatever order the files finish in). */
   onPictures?: (index: number, pictures: UvPicture[]) => void;
-  /** Called after each file, in completion order, with the count done so far. */
-  onProgress?: (done: number, total: number, input: string) => void;
+  /** Called after each file, in completion order, with the count done so far and the file's report. */
+  onProgress?: (done: number, total: number, input: string, report: FileReport) => void;
 }
 
 /**
@@ -41,7 +41,7 @@ export async function runFiles(jobs: FileJob[], options: ProcessOptions, setting
   const take = (index: number, outcome: FileOutcome) => {
     reports[index] = outcome.report;
     done++;
-    s.onProgress?.(done, jobs.length, outcome.report.input);
+    s.onProgress?.(done, jobs.length, outcome.report.input, outcome.report);
     if (!s.onPictures) return;
     waiting[index] = outcome.pictures;
     while (released < jobs.length && waiting[released] !== undefined) {

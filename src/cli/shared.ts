@@ -13,6 +13,7 @@ import { DEFAULT_MAX_TRIANGLES } from '../io/limits.js';
 import type { FileReport, Report } from '../report/types.js';
 import { renderSummary } from '../report/summary.js';
 import { renderGithubAnnotations } from '../report/annotations.js';
+import type { ProgressClock } from './progress.js';
 
 /** Where the CLI reads and writes; injectable so tests run it in-process. */
 export interface CliIo {
@@ -24,6 +25,10 @@ export interface CliIo {
   env: Record<string, string | undefined>;
   /** stderr is a terminal (progress bar); false when absent. */
   stderrIsTTY?: boolean;
+  /** The terminal's width in columns now (the progress bar fits it); undefined: unknown. */
+  stderrColumns?: () => number | undefined;
+  /** The clock progress reads (default: the system's); tests pass a fake one. */
+  clock?: ProgressClock;
   /** Script the batch's worker threads start from (default: the compiled worker beside the CLI). */
   workerScript?: URL;
 }

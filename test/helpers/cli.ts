@@ -2,6 +2,7 @@
  * Runs the CLI in-process with captured streams.
  */
 import { main } from '../../src/cli/main.js';
+import type { ProgressClock } from '../../src/cli/progress.js';
 import { assertReportsOf } from './schemas.js';
 
 /** Captured outcome of one CLI run. */
@@ -21,7 +22,17 @@ export const TS_WORKER = new URL('./tsWorker.mjs', import.meta.url);
 export interface CliRunOptions {
   stdoutIsTTY?: boolean;
   stderrIsTTY?: boolean;
+  /** The terminal's width for the progress bar (default: unknown). */
+  columns?: number;
+  /** The clock progress reads (default: FROZEN_CLOCK). */
+  clock?: ProgressClock;
 }
+
+/**
+ * A clock that never moves and never fires: with it no batch ever lasts 10 s, so a slow
+ * machine cannot add progress records to a test's stderr. Tests of the records pass their own.
+ */
+export const FROZEN_CLOCK: ProgressClock = { now: () => 0, every: () => () => {} };
 
 /**
  * Runs `tanframe <argv...>` in `cwd` without spawning a process. Every JSON report the run
@@ -43,6 +54,8 @@ export async function runCli(
     isTTY: !!streams.stdoutIsTTY,
     env,
     stderrIsTTY: !!streams.stderrIsTTY,
+    stderrColumns: () => streams.columns,
+    clock: streams.clock ?? FROZEN_CLOCK,
     workerScript: TS_WORKER,
   });
   assertReportsOf(argv, cwd, stdout);
