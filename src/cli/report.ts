@@ -45,6 +45,10 @@ async function readReport(file: string, io: CliIo): Promise<NamedReport> {
 
 /** The `report` command's body, callable in-process. Returns the exit status. */
 export async function runReport(files: string[], o: Record<string, any>, io: CliIo): Promise<number> {
+  const inputs = new Set(files.map((f) => path.resolve(io.cwd, f)));
+  for (const [option, file] of [['--json', o.json], ['--junit', o.junit], ['--html', o.html]] as const) {
+    if (file && inputs.has(path.resolve(io.cwd, file))) throw new TanframeError('usage', `${option} ${file} would write over one of the reports to merge`);
+  }
   const parts: NamedReport[] = [];
   for (const f of files) parts.push(await readReport(f, io));
   const merged = mergeReports(parts, toProcessOptions({ method: parts[0].report.method, ...parts[0].report.options }));

@@ -142,6 +142,14 @@ describe('tanframe report', () => {
     expect(n.stderr).toContain('shard count 4 in other-count.json, 3 in shard-1.json');
   });
 
+  it('neverWritesOverAReportItMerges', async () => {
+    const before = fs.readFileSync(path.join(tmp, 'shard-2.json'), 'utf8');
+    const r = await runCli(['report', 'shard-1.json', 'shard-2.json', '--json', './shard-2.json'], tmp);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toBe('tanframe: --json ./shard-2.json would write over one of the reports to merge\n');
+    expect(fs.readFileSync(path.join(tmp, 'shard-2.json'), 'utf8')).toBe(before);
+  });
+
   it('refusesAFileMergedTwiceAndWhatIsNotAReport', async () => {
     const twice = await runCli(['report', 'shard-1.json', 'shard-2.json', 'shard-1.json'], tmp);
     expect(twice.code).toBe(2);
