@@ -106,7 +106,7 @@ export function addSharedOptions(cmd: Command): Command {
     .option('--json', 'print the JSON report on stdout instead of the summary', false)
     .addOption(annotateOption())
     .option('--quiet', 'print nothing but errors (no summary, no progress)', false)
-    .option('--no-progress', 'never show the progress bar (shown only when stderr is a terminal outside CI)')
+    .option('--no-progress', 'no progress bar (drawn only on a terminal outside CI) and no progress lines in logs')
     .option('--debug', 'show stack traces of internal errors', false);
 }
 
