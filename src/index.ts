@@ -1,22 +1,28 @@
 /**
- * tanframe's library API. `computeFrames` is the stable contract (DESIGN.md); the file-level
- * functions are the same ones the CLI uses.
+ * tanframe's library API (the `tanframe` entry, without the command line: that is
+ * `tanframe/cli`; `computeFrames` alone, with no Node.js imports, is `tanframe/frames`).
+ * `computeFrames` is the stable contract (DESIGN.md); the file-level functions are the same
+ * ones the CLI uses. Every type an exported signature names is exported here too.
  */
 export { computeFrames } from './frames/computeFrames.js';
 export type { FrameInput, FrameOptions, FrameResult, FrameStats, FrameMethod, TangentWeight, UvOrigin } from './mesh/types.js';
 export { TanframeError, type ErrorCode } from './mesh/errors.js';
-export type { Asset, AttributeData, PrimitiveData, PrimitiveReplacement } from './mesh/asset.js';
-export { readAsset, processFile, processFileOutcome, outputFormat, type FileJob, type FileOutcome } from './lib/processFile.js';
+export type { Asset, AttributeData, ComponentArray, ExternalImage, PrimitiveData, PrimitiveReplacement } from './mesh/asset.js';
+export type { UvTransform } from './mesh/uvTransform.js';
+export { readAsset, readAssetBytes, processFile, processFileOutcome, outputFormat, type FileJob, type FileOutcome } from './lib/processFile.js';
 export { solveAsset, solvePrimitive, type AssetSolve } from './lib/bakeAsset.js';
 export { defaultProcessOptions, GATE_NAMES, type GateName, type ProcessOptions } from './lib/options.js';
 export { trippedGates } from './lib/gates.js';
-export { readGltf } from './io/gltfRead.js';
-export { readObj } from './io/objRead.js';
-export { encodeGltf } from './io/gltfWrite.js';
-export { writeFilesAtomic } from './io/files.js';
-export { expandInputs } from './io/inputs.js';
+export { readGltf, readGltfBytes } from './io/gltfRead.js';
+export { readObj, readObjBytes } from './io/objRead.js';
+export type { ReadLimits } from './io/limits.js';
+export type { AssetResources, ResourceSource } from './io/resources.js';
+export type { ResolvedResource } from './io/uri.js';
+export { encodeGltf, type EncodeOptions } from './io/gltfWrite.js';
+export { writeFilesAtomic, type OutputFile } from './io/files.js';
+export { expandInputs, type ExpandedInputs, type InputFile } from './io/inputs.js';
 export { buildReport, summarize } from './report/json.js';
-export { renderSummary } from './report/summary.js';
+export { renderSummary, type SummaryStyle } from './report/summary.js';
 export { renderJunit } from './report/junit.js';
 export { renderHtml, type HtmlPicture } from './report/html.js';
 export { renderUvMapSvg, pictureFileName, type UvMapSvgOptions } from './report/uvMapSvg.js';
@@ -28,4 +34,3 @@ export {
   convertNormalMap, flipGreen, type ConvertMapOptions, type ConvertMapStats, type FrameSet, type MapPart, type MapSpace, type GreenDirection,
 } from './imaging/convert.js';
 export { mapPartsForAsset, primitiveFrameSet, type MapParts, type MapPartsRequest, type MapPrimitiveInfo, type PrimitiveRef } from './lib/mapFrames.js';
-export { main as runCli } from './cli/main.js';

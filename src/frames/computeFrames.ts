@@ -21,10 +21,18 @@ import { splitByCornerFrames } from './split.js';
  * hold one entry per triangle.
  */
 export function computeFrames(input: FrameInput, options: FrameOptions = {}): FrameResult {
+  assert(input !== null && typeof input === 'object', 'computeFrames needs an object { positions, normals, uvs, indices? }');
+  assert(options !== null && typeof options === 'object', 'options must be an object');
   const { positions, normals, uvs } = input;
+  assert(positions instanceof Float32Array, 'positions must be a Float32Array');
+  assert(normals instanceof Float32Array, 'normals must be a Float32Array');
+  assert(uvs instanceof Float32Array, 'uvs must be a Float32Array');
+  assert(input.indices == null || input.indices instanceof Uint32Array, 'indices must be a Uint32Array (or absent)');
+  assert(input.faces == null || input.faces instanceof Uint32Array, 'faces must be a Uint32Array (or absent)');
   const method = options.method ?? 'mikktspace';
   const uvOrigin = options.uvOrigin ?? 'top-left';
   const weight = options.weight ?? 'derivative';
+  assert(weight === 'derivative' || weight === 'angle' || weight === 'area' || weight === 'uniform', `unknown weight ${String(weight)}`);
   assert(method === 'mikktspace' || method === 'lengyel', `unknown method ${String(method)}`);
   assert(uvOrigin === 'top-left' || uvOrigin === 'bottom-left', `unknown uvOrigin ${String(uvOrigin)}`);
   assert(positions.length % 3 === 0, 'positions must hold 3 floats per vertex');

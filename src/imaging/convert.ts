@@ -24,7 +24,7 @@
  */
 import { TanframeError, assert } from '../mesh/errors.js';
 import { TEXEL_FRAME_MIN_DET, TEXEL_ZERO_LENGTH } from '../mesh/tolerances.js';
-import type { UvTransform } from '../mesh/uvTransform.js';
+import { uvTransformMatrix, type UvTransform } from '../mesh/uvTransform.js';
 import type { PngImage } from './png.js';
 import { RASTER_DEGENERATE, RASTER_OK, createSpanBuffer, rasterizeTriangle, type SpanBuffer } from './rasterize.js';
 
@@ -220,8 +220,8 @@ export function convertNormalMap(
  */
 function affineOf(t: UvTransform | null): number[] | null {
   if (!t) return null;
-  const c = Math.cos(t.rotation), s = Math.sin(t.rotation);
-  return [c * t.scale[0], s * t.scale[1], t.offset[0], -s * t.scale[0], c * t.scale[1], t.offset[1]];
+  const m = uvTransformMatrix(t);
+  return [m[0], m[3], m[6], m[1], m[4], m[7]];
 }
 
 /**

@@ -80,6 +80,7 @@ const KIND_NAMES: Record<ImageKind, string> = {
  * MAX_IMAGE_SIDE, and 'read-failed' for a damaged PNG. Messages are one line.
  */
 export function decodePng(bytes: Uint8Array): PngImage {
+  if (!(bytes instanceof Uint8Array)) throw new TanframeError('invalid-argument', 'assertion failed: decodePng needs a Uint8Array');
   const kind = detectImageKind(bytes);
   if (kind !== 'png') {
     const what = kind === 'unknown' ? 'not a PNG image' : `${KIND_NAMES[kind]} images are not supported`;
@@ -179,9 +180,9 @@ const COLOUR_TYPE = [0, 0, 4, 2, 6];
 export function encodePng(image: PngImage): Uint8Array {
   const { width, height, channels, depth, data } = image;
   if (data.length !== width * height * channels) {
-    throw new Error(`assertion failed: encodePng needs ${width * height * channels} samples, got ${data.length}`);
+    throw new TanframeError('invalid-argument', `assertion failed: encodePng needs ${width * height * channels} samples, got ${data.length}`);
   }
-  if ((depth === 16) !== data instanceof Uint16Array) throw new Error('assertion failed: encodePng depth and array type disagree');
+  if ((depth === 16) !== data instanceof Uint16Array) throw new TanframeError('invalid-argument', 'assertion failed: encodePng depth and array type disagree');
   const samplesPerRow = width * channels;
   const stride = depth === 16 ? samplesPerRow * 2 : samplesPerRow;
   const raw = new Uint8Array(height * (stride + 1));

@@ -53,7 +53,9 @@ function describeFsError(err: unknown): string {
  * Opening flags for reading: O_NONBLOCK (where the platform has it) so that opening a named
  * pipe returns at once instead of waiting for a writer that may never come.
  */
-const READ_FLAGS = fsConstants.O_RDONLY | (fsConstants.O_NONBLOCK ?? 0);
+function readFlags(): number {
+  return fsConstants.O_RDONLY | (fsConstants.O_NONBLOCK ?? 0);
+}
 
 /**
  * Reads a whole regular file. Anything else (a named pipe, a device such as /dev/zero, a
@@ -62,7 +64,7 @@ const READ_FLAGS = fsConstants.O_RDONLY | (fsConstants.O_NONBLOCK ?? 0);
  * file-system error otherwise (ENOENT, EISDIR, EACCES, ...).
  */
 export async function readRegularFile(filePath: string): Promise<Buffer> {
-  const handle = await fsp.open(filePath, READ_FLAGS);
+  const handle = await fsp.open(filePath, readFlags());
   try {
     const st = await handle.stat();
     if (st.isDirectory()) {
@@ -100,8 +102,16 @@ export async function readInputBytes(filePath: string): Promise<Uint8Array> {
   return new Uint8Array(buf.buffer, buf.byteOffset, buf.byteLength);
 }
 
-/** This host's name as written in temporary file names: letters, digits and '-' only. */
-export const TEMP_HOST = os.hostname().replace(/[^A-Za-z0-9-]/g, '-').slice(0, 40) || 'host';
+let tempHostName: string | null = null;
+
+/**
+ * This host's name as written in temporary file names: letters, digits and '-' only (asked
+ * on first use, so importing the module runs nothing).
+ */
+export function tempHost(): string {
+  tempHostName ??= os.hostname().replace(/[^A-Za-z0-9-]/g, '-').slice(0, 40) || 'host';
+  return tempHostName;
+}
 
 /** A temporary file of ours: `.<name>.<host>.<pid>-<thread>.<12 hex digits>.tmp`. */
 const TEMP_NAME = /^\..+\.([A-Za-z0-9-]+)\.(\d+)-(\d+)\.[0-9a-f]{12}\.tmp$/;
@@ -109,7 +119,7 @@ const TEMP_NAME = /^\..+\.([A-Za-z0-9-]+)\.(\d+)-(\d+)\.[0-9a-f]{12}\.tmp$/;
 /** Temporary name beside `target`: `.<name>.<host>.<pid>-<thread>.<random>.tmp`. */
 function tempPathFor(target: string): string {
   const dir = path.dirname(target);
-  return path.join(dir, `.${path.basename(target)}.${TEMP_HOST}.${process.pid}-${threadId}.${randomBytes(6).toString('hex')}.tmp`);
+  return path.join(dir, `.${path.basename(target)}.${tempHost()}.${process.pid}-${threadId}.${randomBytes(6).toString('hex')}.tmp`);
 }
 
 /** True when a process with this pid runs (EPERM: it runs under another user). */
@@ -136,7 +146,7 @@ async function removeOurTemps(dir: string, doomed: (pid: number, thread: number)
   const removed: string[] = [];
   for (const name of names) {
     const m = TEMP_NAME.exec(name);
-    if (!m || m[1] !== TEMP_HOST || !doomed(Number(m[2]), Number(m[3]))) continue;
+    if (!m || m[1] !== tempHost() || !doomed(Number(m[2]), Number(m[3]))) continue;
     await fsp.rm(path.join(dir, name), { force: true }).then(() => removed.push(name), () => undefined);
   }
   return removed;

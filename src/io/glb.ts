@@ -4,14 +4,12 @@
  * 'glTF', version 2 and total length; a JSON chunk first, padded with spaces; an optional BIN
  * chunk, padded with zeros; every chunk 4-byte aligned; little endian).
  *
- * Parsing runs our own header and chunk checks first (so every fault gets a precise one-line
- * message), then hands the bytes to loaders.gl's GLBLoader (`parseSync`) and wraps anything it
- * throws. Assembly uses loaders.gl's GLBWriter (`encodeSync`): it pads the JSON chunk with
- * spaces; it would pad the BIN chunk with spaces too, which the specification forbids, so we
- * hand it a BIN payload already zero-padded to a multiple of 4 and it adds no padding.
+ * Parsing checks the header and the chunk layout (so every fault gets a precise one-line
+ * message), then decodes the JSON chunk as UTF-8 and parses it. Assembly writes the header,
+ * the JSON chunk padded with spaces and the BIN chunk padded with zeros. (Both were once done
+ * through a general glTF loader package; the container is small enough that our own code
+ * does it exactly, and the package's weight is gone: see README, Install.)
  */
-import { encodeSync, parseSync } from '@loaders.gl/core';
-import { GLBLoader, GLBWriter } from '@loaders.gl/gltf';
 import { TanframeError } from '../mesh/errors.js';
 
 /** 'glTF' read as a little-endian uint32. Source: glTF 2.0 specification, 4.4.2. */
@@ -90,58 +88,41 @@ function pickChunks(chunks: ChunkSpan[]): { json: ChunkSpan; bin: ChunkSpan | nu
       if (bin) bad('the file has more than one BIN chunk');
       bin = chunks[i];
     }
-    // loaders.gl reads chunk types 0 and 1 as JSON / BIN (an old convention); refuse them
-    // so what it parses is exactly what we checked.
+    // Some readers take chunk types 0 and 1 as JSON / BIN (an old convention); refuse them so
+    // every reader sees the file as we checked it.
     if (t === 0 || t === 1) bad(`chunk ${i} has the reserved type ${t}`);
   }
   return { json: chunks[0], bin };
 }
 
-/** A standalone ArrayBuffer holding exactly `bytes` (no copy when it already is one). */
-function exactArrayBuffer(bytes: Uint8Array): ArrayBuffer {
-  if (bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength && bytes.buffer instanceof ArrayBuffer) {
-    return bytes.buffer;
-  }
-  return bytes.slice().buffer as ArrayBuffer;
-}
-
-/** Runs loaders.gl's GLBLoader and maps its failures to our codes. */
-function parseWithLoader(buffer: ArrayBuffer): { json: unknown; binChunks: { byteOffset: number; byteLength: number }[] } {
-  try {
-    return parseSync(buffer, GLBLoader) as any;
-  } catch (err) {
-    const text = String((err as Error)?.message ?? err).split('\n')[0];
-    if (err instanceof SyntaxError) throw new TanframeError('bad-json', `the JSON chunk does not parse: ${text}`);
-    throw new TanframeError('bad-glb', `the GLB container does not parse: ${text}`);
-  }
-}
-
 /**
- * Parses a GLB file: validates header and chunk layout, checks the JSON chunk is UTF-8,
- * then parses through loaders.gl. Returns the JSON (an object) and the BIN chunk bytes
- * (a view into `bytes`' buffer or a copy). Throws 'empty-file', 'bad-glb' or 'bad-json'.
+ * Parses a GLB file: validates header and chunk layout, checks the JSON chunk is UTF-8 and
+ * parses it. Returns the JSON (an object) and the BIN chunk bytes (a view into `bytes`).
+ * Throws 'empty-file', 'bad-glb' or 'bad-json'.
  */
 export function parseGlb(bytes: Uint8Array): GlbContents {
   if (bytes.length === 0) throw new TanframeError('empty-file', 'the file is empty (0 bytes)');
-  const buffer = exactArrayBuffer(bytes);
-  const view = new DataView(buffer);
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
   checkHeader(view, bytes.length);
   const { json: jsonSpan, bin: binSpan } = pickChunks(findChunks(view, bytes.length));
+  if (jsonSpan.length === 0) bad('the JSON chunk is empty');
+  let text: string;
   try {
-    new TextDecoder('utf-8', { fatal: true }).decode(new Uint8Array(buffer, jsonSpan.start, jsonSpan.length));
+    text = new TextDecoder('utf-8', { fatal: true }).decode(bytes.subarray(jsonSpan.start, jsonSpan.start + jsonSpan.length));
   } catch {
     throw new TanframeError('bad-json', 'the JSON chunk is not valid UTF-8');
   }
-  const parsed = parseWithLoader(buffer);
-  if (parsed.json === null || typeof parsed.json !== 'object' || Array.isArray(parsed.json)) {
+  let json: unknown;
+  try {
+    json = JSON.parse(text);
+  } catch (err) {
+    throw new TanframeError('bad-json', `the JSON chunk does not parse: ${String((err as Error)?.message ?? err).split('\n')[0]}`);
+  }
+  if (json === null || typeof json !== 'object' || Array.isArray(json)) {
     throw new TanframeError('bad-gltf', 'the JSON chunk is not a JSON object');
   }
-  const chunk = parsed.binChunks[0];
-  if ((chunk ? 1 : 0) !== (binSpan ? 1 : 0) || (chunk && binSpan && chunk.byteOffset !== binSpan.start)) {
-    throw new TanframeError('internal', 'GLB parser disagrees about the BIN chunk');
-  }
-  const bin = binSpan ? new Uint8Array(buffer, binSpan.start, binSpan.length) : null;
-  return { json: parsed.json, bin };
+  const bin = binSpan ? bytes.subarray(binSpan.start, binSpan.start + binSpan.length) : null;
+  return { json, bin };
 }
 
 /**
@@ -151,15 +132,26 @@ export function parseGlb(bytes: Uint8Array): GlbContents {
  * file would exceed the 4 GiB GLB limit.
  */
 export function assembleGlb(json: object, bin: Uint8Array | null): Uint8Array {
-  let binary: ArrayBuffer | undefined;
-  if (bin && bin.byteLength > 0) {
-    const padded = new Uint8Array(bin.byteLength + ((4 - (bin.byteLength % 4)) % 4));
-    padded.set(bin);
-    binary = padded.buffer;
-  }
-  const jsonBytes = new TextEncoder().encode(JSON.stringify(json)).byteLength;
-  const total = HEADER_BYTES + CHUNK_HEADER_BYTES + jsonBytes + 3 + (binary ? CHUNK_HEADER_BYTES + binary.byteLength : 0);
+  const jsonBytes = new TextEncoder().encode(JSON.stringify(json));
+  const jsonPadded = jsonBytes.byteLength + ((4 - (jsonBytes.byteLength % 4)) % 4);
+  const hasBin = bin !== null && bin.byteLength > 0;
+  const binPadded = hasBin ? bin.byteLength + ((4 - (bin.byteLength % 4)) % 4) : 0;
+  const total = HEADER_BYTES + CHUNK_HEADER_BYTES + jsonPadded + (hasBin ? CHUNK_HEADER_BYTES + binPadded : 0);
   if (total > MAX_GLB_BYTES) throw new TanframeError('too-large', 'the output exceeds the 4 GiB GLB size limit');
-  const out = encodeSync({ json, binary } as any, GLBWriter);
-  return new Uint8Array(out);
+  const out = new Uint8Array(total); // zero-filled: the BIN chunk's padding
+  const view = new DataView(out.buffer);
+  view.setUint32(0, GLB_MAGIC, true);
+  view.setUint32(4, 2, true);
+  view.setUint32(8, total, true);
+  view.setUint32(12, jsonPadded, true);
+  view.setUint32(16, CHUNK_JSON, true);
+  out.set(jsonBytes, 20);
+  out.fill(0x20, 20 + jsonBytes.byteLength, 20 + jsonPadded);
+  if (hasBin) {
+    const at = 20 + jsonPadded;
+    view.setUint32(at, binPadded, true);
+    view.setUint32(at + 4, CHUNK_BIN, true);
+    out.set(bin, at + CHUNK_HEADER_BYTES);
+  }
+  return out;
 }

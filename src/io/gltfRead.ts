@@ -24,7 +24,7 @@ import {
 } from '../mesh/asset.js';
 import { allocComponents } from '../mesh/decode.js';
 import { TanframeError } from '../mesh/errors.js';
-import { readInputBytes, readRegularFile } from './files.js';
+import { readInputBytes } from './files.js';
 import { looksLikeGlb, parseGlb } from './glb.js';
 import {
   DECODE_BUDGET_BASE,
@@ -42,7 +42,7 @@ import { checkAttributeFormat, formatName } from './gltfSemantics.js';
 import { decodeDracoPrimitive } from './draco.js';
 import { decodeMeshoptViews, isMeshoptFallback } from './meshopt.js';
 import { checkTriangleLimit, declaredGltfTriangles, type ReadLimits } from './limits.js';
-import { resolveResourceUri } from './uri.js';
+import { diskResources, type ResourceSource } from './resources.js';
 
 /**
  * Required extensions we can process: ones that do not change how geometry is stored, plus the
@@ -170,9 +170,9 @@ function checkRequiredExtensions(json: any): void {
  * Reads an external buffer or image file; ENOENT -> null, other errors (a pipe or device
  * included: never read, so it cannot block or feed endless data) -> 'read-failed'.
  */
-async function readResourceFile(file: string, what: string): Promise<Uint8Array | null> {
+async function readResourceFile(file: string, what: string, resources: ResourceSource): Promise<Uint8Array | null> {
   try {
-    const b = await readRegularFile(file);
+    const b = await resources.readFile(file);
     return new Uint8Array(b.buffer, b.byteOffset, b.byteLength);
   } catch (err) {
     const code = (err as NodeJS.ErrnoException).code;
@@ -185,7 +185,7 @@ async function readResourceFile(file: string, what: string): Promise<Uint8Array 
  * The bytes of buffer `i`: GLB BIN chunk, data: URI or external file (inside `baseDir`); null
  * for a meshopt fallback buffer without data (no uri, or a file that is absent).
  */
-async function bufferBytes(json: any, i: number, bin: Uint8Array | null, isGlb: boolean, baseDir: string): Promise<Uint8Array | null> {
+async function bufferBytes(json: any, i: number, bin: Uint8Array | null, isGlb: boolean, baseDir: string, resources: ResourceSource): Promise<Uint8Array | null> {
   const b = json.buffers[i];
   const fallback = isMeshoptFallback(b);
   if (b.uri === undefined) {
@@ -197,9 +197,9 @@ async function bufferBytes(json: any, i: number, bin: Uint8Array | null, isGlb: 
     badGltf(`buffer ${i} has no uri${isGlb ? ' (only buffer 0 can use the GLB BIN chunk)' : ''}`);
   }
   if (typeof b.uri !== 'string') badGltf(`buffer ${i} uri is not a string`);
-  const res = resolveResourceUri(b.uri, baseDir);
+  const res = resources.resolve(b.uri, baseDir);
   if (res.kind === 'data') return res.bytes;
-  const bytes = await readResourceFile(res.path, `buffer ${i} '${b.uri}'`);
+  const bytes = await readResourceFile(res.path, `buffer ${i} '${b.uri}'`, resources);
   if (!bytes && fallback) return null;
   if (!bytes) throw new TanframeError('missing-resource', `buffer ${i} file '${b.uri}' not found`);
   return bytes;
@@ -216,14 +216,14 @@ interface ResolvedBuffers {
  * fallback buffer without data becomes zeros of its declared length (charged to the budget);
  * decodeMeshoptViews fills it.
  */
-async function resolveBuffers(json: any, bin: Uint8Array | null, isGlb: boolean, baseDir: string, budget: DecodeBudget): Promise<ResolvedBuffers> {
+async function resolveBuffers(json: any, bin: Uint8Array | null, isGlb: boolean, baseDir: string, budget: DecodeBudget, resources: ResourceSource): Promise<ResolvedBuffers> {
   const list = arrayOf(json, 'buffers');
   const out: Uint8Array[] = [];
   const emptyFallbacks = new Set<number>();
   for (let i = 0; i < list.length; i++) {
     const declared = list[i].byteLength;
     if (!isIndex(declared) || declared < 1) badGltf(`buffer ${i} byteLength ${JSON.stringify(declared)} is not a positive integer`);
-    const bytes = await bufferBytes(json, i, bin, isGlb, baseDir);
+    const bytes = await bufferBytes(json, i, bin, isGlb, baseDir, resources);
     if (bytes === null) {
       chargeBudget(budget, declared, `fallback buffer ${i}`);
       emptyFallbacks.add(i);
@@ -503,7 +503,7 @@ async function decodeAllPrimitives(ctx: ReadContext): Promise<PrimitiveData[]> {
 }
 
 /** Locates images named by a (non-data:) URI; a missing file is a warning, not a failure. */
-async function resolveImages(json: any, baseDir: string, warnings: string[]): Promise<ExternalImage[]> {
+async function resolveImages(json: any, baseDir: string, warnings: string[], resources: ResourceSource): Promise<ExternalImage[]> {
   const images = arrayOf(json, 'images');
   const out: ExternalImage[] = [];
   for (let i = 0; i < images.length; i++) {
@@ -511,9 +511,9 @@ async function resolveImages(json: any, baseDir: string, warnings: string[]): Pr
     if (uri === undefined) continue;
     if (typeof uri !== 'string') badGltf(`image ${i} uri is not a string`);
     if (/^data:/i.test(uri)) continue;
-    const res = resolveResourceUri(uri, baseDir);
+    const res = resources.resolve(uri, baseDir);
     if (res.kind !== 'file') continue;
-    const bytes = await readResourceFile(res.path, `image '${uri}'`);
+    const bytes = await readResourceFile(res.path, `image '${uri}'`, resources);
     if (!bytes) warnings.push(`image '${uri}' not found; its URI is kept`);
     out.push({ image: i, uri, path: res.path, bytes });
   }
@@ -532,8 +532,9 @@ function usesQuantization(json: any): boolean {
  * 'empty-file', 'bad-glb', 'bad-json', 'bad-gltf', 'bad-accessor', 'bad-index', 'bad-uri',
  * 'missing-resource', 'read-failed', 'unsupported-format', 'unsupported-feature', 'too-large'
  * (also when the primitives declare more triangles than `limits` allow, checked before decoding).
+ * External buffers and images come from `resources` (default: the files beside `sourcePath`).
  */
-export async function readGltfBytes(bytes: Uint8Array, sourcePath: string, limits: ReadLimits = {}): Promise<Asset> {
+export async function readGltfBytes(bytes: Uint8Array, sourcePath: string, limits: ReadLimits = {}, resources: ResourceSource = diskResources): Promise<Asset> {
   if (bytes.length === 0) throw new TanframeError('empty-file', 'the file is empty (0 bytes)');
   const isGlb = looksLikeGlb(bytes) || path.extname(sourcePath).toLowerCase() === '.glb';
   const { json, bin } = isGlb ? parseGlb(bytes) : { json: parseGltfJson(bytes), bin: null };
@@ -543,7 +544,7 @@ export async function readGltfBytes(bytes: Uint8Array, sourcePath: string, limit
   const baseDir = path.dirname(path.resolve(sourcePath));
   const firstLimit = DECODE_BUDGET_BASE + DECODE_BUDGET_FACTOR * bytes.byteLength;
   const budget: DecodeBudget = { remaining: firstLimit, limit: firstLimit };
-  const resolved = await resolveBuffers(json, bin, isGlb, baseDir, budget);
+  const resolved = await resolveBuffers(json, bin, isGlb, baseDir, budget, resources);
   let extra = 0;
   resolved.buffers.forEach((b, i) => { if (!resolved.emptyFallbacks.has(i)) extra += DECODE_BUDGET_FACTOR * b.byteLength; });
   budget.limit += extra;
@@ -558,7 +559,7 @@ export async function readGltfBytes(bytes: Uint8Array, sourcePath: string, limit
   const ctx: ReadContext = { json, views, budget, quantized: usesQuantization(json), decoded: new Map(), draco: new Map() };
   const primitives = await decodeAllPrimitives(ctx);
   const warnings: string[] = [];
-  const externalImages = await resolveImages(json, baseDir, warnings);
+  const externalImages = await resolveImages(json, baseDir, warnings, resources);
   const decompressed = [...(ctx.draco.size > 0 ? [DRACO] : []), ...meshopt.decoded];
   return { sourcePath, container: isGlb ? 'glb' : 'gltf', json, buffers, externalImages, primitives, warnings, decompressed };
 }

@@ -5,12 +5,10 @@
  * Based on: EXT_meshopt_compression extension specification (buffer view extension object:
  * buffer, byteOffset, byteLength, byteStride, count, mode, filter; fallback buffers) and
  * KHR_meshopt_compression (same layout, adds the COLOR filter). The bitstream decoder is the
- * one @loaders.gl/gltf ships (its dist/meshopt/meshopt-decoder.js, over the meshoptimizer
- * package's WebAssembly decoder, embedded in the package: nothing is fetched at run time).
+ * `meshoptimizer` package's WebAssembly decoder (its public `meshoptimizer/decoder` entry; the
+ * module embeds the WebAssembly, so nothing is fetched at run time), loaded only when a file
+ * has compressed views.
  */
-import { createRequire } from 'node:module';
-import * as path from 'node:path';
-import { pathToFileURL } from 'node:url';
 import { TanframeError } from '../mesh/errors.js';
 import { chargeBudget, isIndex, type DecodeBudget } from './gltfAccessor.js';
 
@@ -27,16 +25,14 @@ type DecodeFn = (target: Uint8Array, count: number, byteStride: number, source: 
 
 let decoderPromise: Promise<DecodeFn> | null = null;
 
-/**
- * Loads the meshopt decoder that @loaders.gl/gltf ships. Its package exports only its entry
- * point, so the module is imported by file URL from beside that entry.
- */
+/** Loads the meshoptimizer package's decoder on first use and waits for its WebAssembly. */
 function loadDecoder(): Promise<DecodeFn> {
   decoderPromise ??= (async () => {
-    const entry = createRequire(import.meta.url).resolve('@loaders.gl/gltf');
-    const file = path.join(path.dirname(entry), 'meshopt', 'meshopt-decoder.js');
-    const mod = await import(pathToFileURL(file).href);
-    return mod.meshoptDecodeGltfBuffer as DecodeFn;
+    const { MeshoptDecoder } = await import('meshoptimizer/decoder');
+    await MeshoptDecoder.ready;
+    return async (target, count, byteStride, source, mode, filter) => {
+      MeshoptDecoder.decodeGltfBuffer(target, count, byteStride, source, mode, filter);
+    };
   })();
   return decoderPromise;
 }

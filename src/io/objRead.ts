@@ -21,9 +21,9 @@ import {
 } from '../mesh/asset.js';
 import { TanframeError } from '../mesh/errors.js';
 import { parseMtl, parseObjFloat, type MtlMaterial, type MtlTexture } from './mtlRead.js';
-import { readInputBytes, readRegularFile } from './files.js';
+import { readInputBytes } from './files.js';
 import { DEFAULT_MAX_TRIANGLES, checkTriangleLimit, type ReadLimits } from './limits.js';
-import { resolveResourceUri } from './uri.js';
+import { diskResources, type ResourceSource } from './resources.js';
 
 /** Growable float64 storage used while parsing (no per-element objects). */
 class GrowF64 {
@@ -531,7 +531,16 @@ function errnoReason(e: unknown): string {
  * 'too-large' when the faces hold more triangles than `limits` allow (checked while parsing).
  */
 export async function readObj(path: string, limits: ReadLimits = {}): Promise<Asset> {
-  const bytes = await readInputBytes(path);
+  return readObjBytes(await readInputBytes(path), path, limits);
+}
+
+/**
+ * Reads OBJ bytes into an Asset, as readObj does for a file: `path` names the file (its folder
+ * and name), material libraries and images come from `resources` (default: the files beside
+ * `path`).
+ */
+export async function readObjBytes(bytes: Uint8Array, path: string, limits: ReadLimits = {}, resources: ResourceSource = diskResources): Promise<Asset> {
+  if (bytes.length === 0) throw new TanframeError('empty-file', 'the file is empty (0 bytes)');
   const text = new TextDecoder('utf-8').decode(bytes); // drops a leading BOM
   const o = parseObjText(text, limits);
   const faceCount = o.faceGroup.n;
@@ -547,13 +556,13 @@ export async function readObj(path: string, limits: ReadLimits = {}): Promise<As
   let mtlMissing = false;
   for (const lib of o.mtllibs) {
     const uri = fileNameToUri(lib.file, '');
-    const res = await resolveResourceUri(uri, baseDir);
+    const res = resources.resolve(uri, baseDir);
     let mtlText: string;
     if (res.kind === 'data') {
       mtlText = new TextDecoder('utf-8').decode(res.bytes);
     } else {
       try {
-        mtlText = new TextDecoder('utf-8').decode(await readRegularFile(res.path));
+        mtlText = new TextDecoder('utf-8').decode(await resources.readFile(res.path));
       } catch (e) {
         warnings.push(`material library '${lib.file}' (line ${lib.line}): ${errnoReason(e)}`);
         mtlMissing = true;
@@ -587,7 +596,7 @@ export async function readObj(path: string, limits: ReadLimits = {}): Promise<As
     const uri = fileNameToUri(tex.file, mtlDir);
     const known = textureOfUri.get(uri);
     if (known !== undefined) return known;
-    const res = await resolveResourceUri(uri, baseDir);
+    const res = resources.resolve(uri, baseDir);
     const imageIndex = images.length;
     const image: any = { uri };
     if (res.kind === 'data') {
@@ -598,7 +607,7 @@ export async function readObj(path: string, limits: ReadLimits = {}): Promise<As
       else warnings.push(`image '${tex.file}' (material '${materialName}'): format not supported by glTF core (PNG or JPEG expected)`);
       let data: Uint8Array | null = null;
       try {
-        data = new Uint8Array(await readRegularFile(res.path));
+        data = new Uint8Array(await resources.readFile(res.path));
       } catch (e) {
         warnings.push(`image '${tex.file}' (material '${materialName}'): ${errnoReason(e)}`);
       }

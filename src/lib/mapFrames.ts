@@ -206,11 +206,11 @@ export function mapPartsForAsset(asset: Asset, req: MapPartsRequest): MapParts {
 
 /** Two solves of one primitive must list the same triangles with the same UVs (bit for bit). */
 function checkSameTriangles(a: FrameSet, b: FrameSet): void {
-  if (a.indices.length !== b.indices.length) throw new Error('internal: the two frame solves disagree on the triangle count');
+  if (a.indices.length !== b.indices.length) throw new TanframeError('internal', 'the two frame solves disagree on the triangle count');
   for (let c = 0; c < a.indices.length; c++) {
     const ia = a.indices[c] * 2, ib = b.indices[c] * 2;
     if (a.uvs[ia] !== b.uvs[ib] || a.uvs[ia + 1] !== b.uvs[ib + 1]) {
-      throw new Error('internal: the two frame solves disagree on corner texture coordinates');
+      throw new TanframeError('internal', 'the two frame solves disagree on corner texture coordinates');
     }
   }
 }

@@ -5,12 +5,13 @@
  */
 import * as path from 'node:path';
 import type { Asset } from '../mesh/asset.js';
-import { TanframeError } from '../mesh/errors.js';
+import { assert, TanframeError } from '../mesh/errors.js';
 import { writeFilesAtomic } from '../io/files.js';
-import { readGltf } from '../io/gltfRead.js';
+import { readGltf, readGltfBytes } from '../io/gltfRead.js';
 import { encodeGltf } from '../io/gltfWrite.js';
 import type { ReadLimits } from '../io/limits.js';
-import { readObj } from '../io/objRead.js';
+import { readObj, readObjBytes } from '../io/objRead.js';
+import { memoryResources, type AssetResources } from '../io/resources.js';
 import type { FileReport } from '../report/types.js';
 import type { UvPicture } from '../report/uvPicture.js';
 import { solveAsset } from './bakeAsset.js';
@@ -43,9 +44,29 @@ export interface FileOutcome {
 
 /** Reads any supported mesh file by its extension, within `limits` (default limits when omitted). */
 export async function readAsset(file: string, limits: ReadLimits = {}): Promise<Asset> {
+  assert(typeof file === 'string' && file.length > 0, 'readAsset: file must be a path');
   const ext = path.extname(file).toLowerCase();
   if (ext === '.glb' || ext === '.gltf') return readGltf(file, limits);
   if (ext === '.obj') return readObj(file, limits);
+  throw new TanframeError('unsupported-format', `unsupported file type '${ext || '(none)'}' (expected .glb, .gltf or .obj)`);
+}
+
+/**
+ * Reads an asset from memory the same way readAsset reads it from disk: `bytes` are the
+ * file's contents and `name` its file name (its extension picks the reader; a relative path
+ * gives the folder URIs are relative to). `resources` holds the files it names by URI: a
+ * .gltf's buffers and images, an OBJ's material libraries and textures (a missing buffer fails
+ * with 'missing-resource', a missing image or .mtl is a warning, as on disk). Nothing touches
+ * the file system. Throws what readAsset throws, and 'invalid-argument' for arguments of the
+ * wrong type.
+ */
+export async function readAssetBytes(bytes: Uint8Array, name: string, resources?: AssetResources, limits: ReadLimits = {}): Promise<Asset> {
+  assert(bytes instanceof Uint8Array, 'readAssetBytes: bytes must be a Uint8Array');
+  assert(typeof name === 'string' && name.length > 0, 'readAssetBytes: name must be a file name');
+  const source = memoryResources(resources);
+  const ext = path.extname(name).toLowerCase();
+  if (ext === '.glb' || ext === '.gltf') return readGltfBytes(bytes, name, limits, source);
+  if (ext === '.obj') return readObjBytes(bytes, name, limits, source);
   throw new TanframeError('unsupported-format', `unsupported file type '${ext || '(none)'}' (expected .glb, .gltf or .obj)`);
 }
 
@@ -57,7 +78,8 @@ export function outputFormat(container: Asset['container'], requested: 'glb' | '
 
 /** Turns any thrown value into a report error with a one-line message. */
 export function toReportError(err: unknown): { code: string; message: string } {
-  if (err instanceof TanframeError) return { code: err.code, message: oneLine(err.message) };
+  // Inside a run a broken contract is our own bug: reported as 'internal'.
+  if (err instanceof TanframeError) return { code: err.code === 'invalid-argument' ? 'internal' : err.code, message: oneLine(err.message) };
   const message = err instanceof Error ? err.message : String(err);
   return { code: 'internal', message: oneLine(message) };
 }

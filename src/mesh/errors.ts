@@ -1,7 +1,8 @@
 /**
- * Error tiers. `assert` guards caller contracts (a bug, not user input). `TanframeError`
- * carries a stable `code` for malformed files and usage errors; the CLI maps it to an exit
- * status and prints its one-line message. Degenerate-but-valid geometry never throws.
+ * Error tiers. `assert` guards caller contracts (a bug, not user input): it throws a
+ * `TanframeError` with code 'invalid-argument'. `TanframeError` carries a stable `code` for
+ * malformed files and usage errors too; the CLI maps it to an exit status and prints its
+ * one-line message. Degenerate-but-valid geometry never throws.
  */
 
 /** Stable error codes reported in the JSON report's `error.code`. */
@@ -22,7 +23,9 @@ export type ErrorCode =
   | 'too-large'
   | 'write-failed'
   | 'timeout'
-  | 'internal';
+  | 'internal'
+  /** A library caller broke a function's contract (wrong types, lengths out of step). */
+  | 'invalid-argument';
 
 /** A failure with a stable code and a one-line, user-facing message. */
 export class TanframeError extends Error {
@@ -34,7 +37,7 @@ export class TanframeError extends Error {
   }
 }
 
-/** Caller-contract check: throws a plain Error (a programming error) when `cond` is false. */
+/** Caller-contract check: throws TanframeError 'invalid-argument' when `cond` is false. */
 export function assert(cond: unknown, message: string): asserts cond {
-  if (!cond) throw new Error(`assertion failed: ${message}`);
+  if (!cond) throw new TanframeError('invalid-argument', `assertion failed: ${message}`);
 }

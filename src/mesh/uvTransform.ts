@@ -4,7 +4,10 @@
  * mat3(cos r, -sin r, 0, sin r, cos r, 0, 0, 0, 1) (column-major), so
  *   u' =  cos(r) * sx * u + sin(r) * sy * v + ox
  *   v' = -sin(r) * sx * u + cos(r) * sy * v + oy
+ * The 3 x 3 matrix is composed with gl-matrix (`mat3`, column-major like GLSL) over plain
+ * float64 arrays; the extension's rotation by r is gl-matrix's counter-clockwise rotation by -r.
  */
+import { mat3 } from 'gl-matrix';
 
 /** A KHR_texture_transform: offset, rotation (radians), scale; defaults 0, 0, 1. */
 export interface UvTransform {
@@ -43,16 +46,25 @@ export function changesFrames(t: UvTransform | null): boolean {
 }
 
 /**
+ * The transform as a column-major 3 x 3 matrix T * R * S (float64; gl-matrix's own
+ * arrays would be float32): uv' = (m[0] u + m[3] v + m[6], m[1] u + m[4] v + m[7]).
+ */
+export function uvTransformMatrix(t: UvTransform): mat3 {
+  const m: mat3 = [1, 0, 0, 0, 1, 0, 0, 0, 1];
+  mat3.fromTranslation(m, t.offset);
+  mat3.rotate(m, m, -t.rotation);
+  mat3.scale(m, m, t.scale);
+  return m;
+}
+
+/**
  * Writes the transformed coordinates of `count` uv pairs of `uvs` into `out` (may be `uvs`).
  * Computed in float64, stored as float32. Preconditions: both hold 2 * count floats.
  */
 export function applyUvTransform(out: Float32Array, uvs: Float32Array, count: number, t: UvTransform): void {
-  const c = Math.cos(t.rotation);
-  const s = Math.sin(t.rotation);
-  const sx = t.scale[0];
-  const sy = t.scale[1];
-  const a = c * sx, b = s * sy, d = -s * sx, e = c * sy;
-  const ox = t.offset[0], oy = t.offset[1];
+  const m = uvTransformMatrix(t);
+  const a = m[0], b = m[3], d = m[1], e = m[4];
+  const ox = m[6], oy = m[7];
   for (let i = 0; i < count; i++) {
     const u = uvs[2 * i], v = uvs[2 * i + 1];
     out[2 * i] = a * u + b * v + ox;

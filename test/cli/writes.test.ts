@@ -13,7 +13,7 @@ import * as fs from 'node:fs';
 import * as os from 'node:os';
 import * as path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { TEMP_HOST, removeStaleTemps } from '../../src/io/files.js';
+import { tempHost, removeStaleTemps } from '../../src/io/files.js';
 import { readAsset } from '../../src/lib/processFile.js';
 import { bigGridGlb } from '../helpers/bigGlb.js';
 import { runCli } from '../helpers/cli.js';
@@ -63,7 +63,7 @@ function deadPid(): number {
 }
 
 /** A temporary-file name as tanframe writes them, for `target` and `pid`. */
-function tempName(target: string, pid: number, host = TEMP_HOST): string {
+function tempName(target: string, pid: number, host = tempHost()): string {
   return `.${target}.${host}.${pid}-0.0123456789ab.tmp`;
 }
 
@@ -109,7 +109,7 @@ describe('stale temporary files', () => {
     fs.mkdirSync(dir, { recursive: true });
     const dead = tempName('a.glb', deadPid());
     const live = tempName('b.glb', process.pid);
-    const otherHost = tempName('c.glb', deadPid(), `${TEMP_HOST}-elsewhere`);
+    const otherHost = tempName('c.glb', deadPid(), `${tempHost()}-elsewhere`);
     const unrelated = ['.notes.tmp', 'a.glb', '.a.glb.tmp', 'x.12-0.0123456789ab.tmp'];
     for (const n of [dead, live, otherHost, ...unrelated]) fs.writeFileSync(path.join(dir, n), 'x');
     expect(await removeStaleTemps(dir)).toEqual([dead]);

@@ -1,18 +1,16 @@
 /**
  * Produces compressed glTF geometry for tests with the reference encoders that our decoders'
- * packages bring: the Draco encoder of the `draco3d` package (a dependency of
- * @loaders.gl/draco) and the meshopt encoder of the `meshoptimizer` package (a dependency of
- * @loaders.gl/gltf). Both are resolved from the package that depends on them.
+ * packages bring: the Draco encoder of the `draco3d` package and the meshopt encoder of the
+ * `meshoptimizer` package (its public `meshoptimizer/encoder` entry).
  * Source for the layouts: KHR_draco_mesh_compression and EXT_meshopt_compression specifications.
  */
 import { createRequire } from 'node:module';
-import { pathToFileURL } from 'node:url';
 
 const requireHere = createRequire(import.meta.url);
 
 let dracoEncoder: Promise<any> | null = null;
 function dracoEncoderModule(): Promise<any> {
-  const draco3d = createRequire(requireHere.resolve('@loaders.gl/draco'))('draco3d');
+  const draco3d = requireHere('draco3d');
   dracoEncoder ??= draco3d.createEncoderModule({});
   return dracoEncoder!;
 }
@@ -64,8 +62,7 @@ export async function dracoEncode(input: DracoInput): Promise<DracoOutput> {
 let meshoptEncoder: Promise<any> | null = null;
 function meshoptEncoderModule(): Promise<any> {
   meshoptEncoder ??= (async () => {
-    const file = createRequire(requireHere.resolve('@loaders.gl/gltf')).resolve('meshoptimizer/encoder');
-    const { MeshoptEncoder } = await import(pathToFileURL(file).href);
+    const { MeshoptEncoder } = await import('meshoptimizer/encoder');
     await MeshoptEncoder.ready;
     return MeshoptEncoder;
   })();
