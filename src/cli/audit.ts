@@ -8,7 +8,8 @@ import { buildReport } from '../report/json.js';
 import type { FileReport } from '../report/types.js';
 import { reportOptions, sortReports } from './bake.js';
 import { runBatch } from './batch.js';
-import { writeReportFiles } from './outputs.js';
+import { namedWrites, writeReportFiles } from './outputs.js';
+import { planRun } from '../lib/writePlan.js';
 import { addSharedOptions, checkOutputOptions, emitReport, exitStatus, shardOf, toProcessOptions, toolVersion, type CliIo } from './shared.js';
 
 /** Registers `audit` on `program`; `done` receives the exit status. */
@@ -36,11 +37,12 @@ export async function runAudit(inputs: string[], o: Record<string, any>, io: Cli
   const jobs: FileJob[] = shardOf(expanded.files, o.shard).map((f) => ({
     command: 'audit', input: f.path, output: null, format: null, dryRun: true, displayInput: f.display, displayOutput: null,
   }));
-  const batch = await runBatch(jobs, options, o, io);
+  // Audit writes no meshes: the plan holds the report files and --uv-maps, checked against every input and what it references.
+  const run = await planRun({ cwd: io.cwd, inputs: expanded.files.map((f) => f.path), meshes: [], ...namedWrites(o, io) });
+  const batch = await runBatch(jobs, options, o, io, run.plan);
   reports.push(...batch.reports);
   const seconds = (performance.now() - started) / 1000;
   const report = buildReport('audit', toolVersion(), options.method, reportOptions(o), sortReports(reports), seconds);
-  await writeReportFiles(report, o, io, batch.pictures);
-  await emitReport(report, o, io);
-  return exitStatus(report.files);
+  const writeFailures = batch.writeFailures + (await writeReportFiles(report, o, io, batch.pictures, run.files)) + (await emitReport(report, o, io, run.files));
+  return exitStatus(report.files, writeFailures);
 }

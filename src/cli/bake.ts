@@ -9,14 +9,22 @@ import { displayPath, expandInputs } from '../io/inputs.js';
 import type { FileJob } from '../lib/processFile.js';
 import { buildReport } from '../report/json.js';
 import type { FileReport } from '../report/types.js';
+import type { InputFile } from '../io/inputs.js';
+import { containerOf, outputRelativeName, outputTarget } from '../lib/outputNames.js';
+import { planRun, type PlannedMesh } from '../lib/writePlan.js';
 import { addSharedOptions, checkOutputOptions, emitReport, exitStatus, shardOf, toProcessOptions, toolVersion, type CliIo } from './shared.js';
 import { runBatch } from './batch.js';
-import { writeReportFiles } from './outputs.js';
+import { namedWrites, writeReportFiles } from './outputs.js';
 
-function swapExtension(p: string, format: 'glb' | 'gltf' | null): string {
-  const ext = path.extname(p).toLowerCase();
-  const target = format ? `.${format}` : ext === '.obj' ? '.glb' : ext;
-  return p.slice(0, p.length - path.extname(p).length) + target;
+/**
+ * The output as reports show it, named the way the user named things: the input's own name
+ * for --in-place, -o as given for one output file, else -o as given plus the mirrored path.
+ */
+function shownOutput(f: InputFile, m: PlannedMesh, o: Record<string, any>): string | null {
+  if (!m.output) return null;
+  if (m.inPlace) return f.display;
+  if (m.named) return o.out;
+  return displayPath(o.out, outputRelativeName(f.relative, o.format ?? null));
 }
 
 function failed(input: string, code: string, message: string): FileReport {
@@ -60,57 +68,56 @@ export async function runBake(inputs: string[], o: Record<string, any>, io: CliI
   options.tangentType = o.tangentType;
   const expanded = await expandInputs(inputs, io.cwd);
   const files = shardOf(expanded.files, o.shard);
-  const singleFile = inputs.length === 1 && expanded.files.length === 1 && expanded.files[0].relative === path.basename(expanded.files[0].path) &&
-    fs.existsSync(path.resolve(io.cwd, inputs[0])) && fs.statSync(path.resolve(io.cwd, inputs[0])).isFile();
-  const outAbs = o.out ? path.resolve(io.cwd, o.out) : null;
-  const outIsFolder = outAbs !== null && (!singleFile || /[\\/]$/.test(o.out) || (fs.existsSync(outAbs) && fs.statSync(outAbs).isDirectory()));
+  // One input named as a file (one that does not exist fails as unreadable, not as a usage error).
+  const first = inputs.length === 1 ? fs.statSync(path.resolve(io.cwd, inputs[0]), { throwIfNoEntry: false }) : undefined;
+  const singleFile = inputs.length === 1 && (first ? first.isFile() : !/[*?[\]{}]/.test(inputs[0]));
+  const target = o.out ? outputTarget(o.out, io.cwd, singleFile, o.format ?? null) : null;
   const reports: FileReport[] = expanded.problems.map((p) => failed(p.input, 'read-failed', p.message));
-  const jobs: FileJob[] = [];
-  const targets = new Map<string, string>();
+  const meshes: PlannedMesh[] = [];
+  const planned: InputFile[] = [];
   for (const f of files) {
-    let output: string | null = null;
-    // The output as the user would name it: -o as given, plus the mirrored relative path.
-    let outputShown: string | null = null;
     if (o.inPlace) {
-      if (path.extname(f.path).toLowerCase() === '.obj' || (o.format && `.${o.format}` !== path.extname(f.path).toLowerCase())) {
-        reports.push(failed(f.display, 'usage', '--in-place keeps the file type; write OBJ input or another --format with -o'));
+      if (path.extname(f.path).toLowerCase() === '.obj') {
+        reports.push(failed(f.display, 'usage', '--in-place cannot store tangents in an OBJ file; bake it with -o to a .glb'));
         continue;
       }
-      output = f.path;
-      outputShown = f.display;
-    } else if (outAbs) {
-      output = outIsFolder ? path.join(outAbs, swapExtension(f.relative, o.format ?? null)) : outAbs;
-      outputShown = outIsFolder ? displayPath(o.out, swapExtension(f.relative, o.format ?? null)) : o.out;
-      if (!outIsFolder && path.extname(outAbs) === '') {
-        const ext = o.format ?? (path.extname(f.path).toLowerCase() === '.gltf' ? 'gltf' : 'glb');
-        output = swapExtension(outAbs + '.x', ext);
-        outputShown = swapExtension(o.out + '.x', ext);
-      }
-      if (path.resolve(output) === path.resolve(f.path)) {
-        reports.push(failed(f.display, 'usage', 'the output would overwrite the input; use --in-place to replace it'));
+      if (o.format && `.${o.format}` !== path.extname(f.path).toLowerCase()) {
+        reports.push(failed(f.display, 'usage', `--in-place keeps the file type; write --format ${o.format} with -o`));
         continue;
       }
-      const other = targets.get(output);
-      if (other) {
-        reports.push(failed(f.display, 'usage', `its output ${outputShown} is also the output of ${other}`));
-        continue;
-      }
-      targets.set(output, f.display);
+      meshes.push({ input: f.path, output: f.path, inPlace: true, format: containerOf(f.path), named: true, root: path.dirname(f.path) });
+    } else if (target) {
+      const output = target.kind === 'file' ? target.path : path.join(target.path, outputRelativeName(f.relative, o.format ?? null));
+      const root = target.kind === 'file' ? path.dirname(target.path) : target.path;
+      meshes.push({ input: f.path, output, inPlace: false, format: target.kind === 'file' ? target.format : containerOf(output), named: target.kind === 'file', root });
+    } else {
+      meshes.push({ input: f.path, output: '', inPlace: false, format: 'glb', named: false, root: '' });
     }
-    const ext = output ? path.extname(output).toLowerCase() : '';
-    const format = o.format ?? (ext === '.gltf' ? 'gltf' : ext === '.glb' ? 'glb' : null);
+    planned.push(f);
+  }
+  const writing = meshes.filter((m) => m.output !== '');
+  const run = await planRun({ cwd: io.cwd, inputs: expanded.files.map((f) => f.path), meshes: writing, ...namedWrites(o, io) });
+  const jobs: FileJob[] = [];
+  let w = 0;
+  for (let i = 0; i < planned.length; i++) {
+    const f = planned[i];
+    const m = meshes[i];
+    const writes = m.output !== '' ? run.jobs[w++] : null;
+    if (writes && 'refused' in writes) {
+      reports.push(failed(f.display, 'usage', writes.refused));
+      continue;
+    }
     jobs.push({
-      command: 'bake', input: f.path, output, format, dryRun: !!o.dryRun,
-      displayInput: f.display, displayOutput: outputShown,
+      command: 'bake', input: f.path, output: m.output || null, format: m.output ? m.format : null, dryRun: !!o.dryRun,
+      displayInput: f.display, displayOutput: shownOutput(f, m, o), writes: writes ?? undefined,
     });
   }
-  const batch = await runBatch(jobs, options, o, io);
+  const batch = await runBatch(jobs, options, o, io, run.plan);
   reports.push(...batch.reports);
   const seconds = (performance.now() - started) / 1000;
   const report = buildReport('bake', toolVersion(), options.method, reportOptions(o), sortReports(reports), seconds);
-  await writeReportFiles(report, o, io, batch.pictures);
-  await emitReport(report, o, io);
-  return exitStatus(report.files);
+  const writeFailures = batch.writeFailures + (await writeReportFiles(report, o, io, batch.pictures, run.files)) + (await emitReport(report, o, io, run.files));
+  return exitStatus(report.files, writeFailures);
 }
 
 /** Report files in input order (by input name), whatever order they finished in. */

@@ -6,6 +6,7 @@ import * as os from 'node:os';
 import type { FileJob } from '../lib/processFile.js';
 import type { ProcessOptions } from '../lib/options.js';
 import type { FileReport } from '../report/types.js';
+import type { WritePlan } from '../lib/writePlan.js';
 import { PictureOutputs } from './outputs.js';
 import { ProgressBar, ProgressRecords, progressRecordsWanted, progressWanted } from './progress.js';
 import { runFiles } from './runFiles.js';
@@ -23,15 +24,17 @@ export function fileTimeoutMs(o: Record<string, any>): number {
 
 /**
  * Runs `jobs` and returns their reports in job order, with the pictures (when --uv-maps or
- * --html asks for them) written or kept for the page.
+ * --html asks for them) written (through `plan`'s guard) or kept for the page, and how many
+ * pictures could not be written (each told on stderr).
  */
 export async function runBatch(
   jobs: FileJob[],
   options: ProcessOptions,
   o: Record<string, any>,
   io: CliIo,
-): Promise<{ reports: FileReport[]; pictures: PictureOutputs }> {
-  const pictures = new PictureOutputs(o, io);
+  plan: WritePlan | null = null,
+): Promise<{ reports: FileReport[]; pictures: PictureOutputs; writeFailures: number }> {
+  const pictures = new PictureOutputs(o, io, undefined, plan);
   const withPictures = pictures.wanted ? jobs.map((j) => ({ ...j, pictures: true })) : jobs;
   const bar = progressWanted(!!io.stderrIsTTY, io.env, o) && jobs.length > 0
     ? new ProgressBar(io.stderr, jobs.length, io.clock ? () => io.clock!.now() : undefined, io.stderrColumns)
@@ -55,6 +58,6 @@ export async function runBatch(
     bar?.finish();
     records?.finish();
   }
-  await pictures.finish(o);
-  return { reports, pictures };
+  const { failed } = await pictures.finish();
+  return { reports, pictures, writeFailures: failed };
 }

@@ -1,6 +1,7 @@
 /**
  * The commander program and the one top-level catch that maps errors to exit statuses:
- * 0 done, 1 a gate tripped, 2 a usage error or a file that could not be processed.
+ * 0 done, 1 a gate tripped, 2 a usage or configuration error (nothing processed), 3 a file
+ * that could not be processed or a report, picture or output that could not be written.
  */
 import { Command, CommanderError } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
@@ -63,7 +64,7 @@ export async function main(argv: string[], io: CliIo = processIo()): Promise<num
     }
     if (err instanceof TanframeError) {
       io.stderr(`tanframe: ${err.message}\n`);
-      return 2;
+      return err.code === 'write-failed' ? 3 : 2;
     }
     const e = err as Error;
     io.stderr(`tanframe: internal error: ${e?.message ?? String(err)}\n`);

@@ -2,16 +2,35 @@
  * The report files besides the JSON one: UV pictures (--uv-maps), the JUnit file (--junit)
  * and the HTML page (--html), shared by `bake` and `audit`.
  */
-import * as fs from 'node:fs/promises';
 import * as path from 'node:path';
-import { TanframeError } from '../mesh/errors.js';
 import { writeFilesAtomic } from '../io/files.js';
+import type { RunRequest, WritePlan } from '../lib/writePlan.js';
 import { renderHtml, type HtmlPicture } from '../report/html.js';
 import { renderJunit } from '../report/junit.js';
 import type { Report } from '../report/types.js';
 import { pictureFileName, renderUvMapSvg } from '../report/uvMapSvg.js';
 import type { UvPicture } from '../report/uvPicture.js';
 import type { CliIo } from './shared.js';
+
+/**
+ * The files and folders the user named for reports (--report, --junit, --html, --uv-maps), as
+ * the write plan takes them. Register further named outputs (--views, the state file) here.
+ */
+export function namedWrites(o: Record<string, any>, io: CliIo): Pick<RunRequest, 'files' | 'folders'> {
+  const files: RunRequest['files'] = [];
+  for (const [option, key] of [['--report', 'report'], ['--junit', 'junit'], ['--html', 'html']]) {
+    if (o[key]) files.push({ option, path: path.resolve(io.cwd, o[key]) });
+  }
+  const folders: RunRequest['folders'] = [];
+  if (o.uvMaps) folders.push({ option: '--uv-maps', path: path.resolve(io.cwd, o.uvMaps), mayWrite: (name) => name.toLowerCase().endsWith('.svg') });
+  return { files, folders };
+}
+
+/** One line on stderr for a file that could not be written: `tanframe: <what>: <reason>`. */
+export function writeFailure(io: CliIo, what: string, err: unknown): void {
+  const reason = String((err as Error)?.message ?? err).split('\n')[0];
+  io.stderr(`tanframe: ${what}: ${reason}\n`);
+}
 
 /**
  * Triangles drawn over all the pictures of one HTML page; pictures past it are left out of
@@ -35,11 +54,17 @@ export class PictureOutputs {
   private htmlTriangles = 0;
   private readonly names = new Set<string>();
   private readonly writes: Promise<void>[] = [];
-  private dirReady: Promise<void> | null = null;
   private written = 0;
+  private failures = 0;
+  private readonly option: string;
 
-  /** `htmlBudget`: the page's budget of drawn triangles (tests pass a small one). */
-  constructor(o: Record<string, any>, io: CliIo, private readonly htmlBudget: number = HTML_PICTURE_TRIANGLES) {
+  /**
+   * `htmlBudget`: the page's budget of drawn triangles (tests pass a small one). `plan`: the
+   * run's write plan; each picture passes its late guard (no symbolic link, no file the run
+   * reads or writes otherwise) before it is written.
+   */
+  constructor(o: Record<string, any>, private readonly io: CliIo, private readonly htmlBudget: number = HTML_PICTURE_TRIANGLES, private readonly plan: WritePlan | null = null) {
+    this.option = `--uv-maps ${o.uvMaps}`;
     this.dir = o.uvMaps ? path.resolve(io.cwd, o.uvMaps) : null;
     this.forHtml = !!o.html;
     this.wanted = this.dir !== null || this.forHtml;
@@ -54,11 +79,19 @@ export class PictureOutputs {
         let name = pictureFileName(p.input, p.mesh, p.primitive);
         for (let k = 2; this.names.has(name); k++) name = pictureFileName(p.input, p.mesh, p.primitive).replace(/\.svg$/, `~${k}.svg`);
         this.names.add(name);
-        const dir = this.dir;
-        this.dirReady ??= fs.mkdir(dir, { recursive: true }).then(() => undefined);
+        const file = path.join(this.dir, name);
         const bytes = new TextEncoder().encode(svg);
-        this.writes.push(this.dirReady.then(() => fs.writeFile(path.join(dir, name), bytes)));
-        this.written++;
+        this.writes.push((async () => {
+          try {
+            const target = this.plan ? this.plan.check(file, `${this.option}: ${this.plan.shown(file)}`) : file;
+            await writeFilesAtomic([{ path: target, bytes }]);
+            this.written++;
+          } catch (err) {
+            this.failures++;
+            // One line per run for a folder that cannot be made or written at all; one per picture otherwise.
+            if (this.failures === 1 || !/cannot write/.test(String((err as Error)?.message))) writeFailure(this.io, this.option, err);
+          }
+        })());
       }
       if (!this.forHtml) continue;
       const drawn = p.flags.length;
@@ -72,26 +105,37 @@ export class PictureOutputs {
     }
   }
 
-  /** Waits for the SVG files; returns how many were written. */
-  async finish(o: Record<string, any>): Promise<number> {
-    try {
-      await Promise.all(this.writes);
-    } catch (err) {
-      throw new TanframeError('write-failed', `cannot write the UV pictures under ${o.uvMaps}: ${(err as Error).message}`);
-    }
-    return this.written;
+  /**
+   * Waits for the SVG files (a picture that cannot be written got its line on stderr); returns
+   * how many were written and how many failed.
+   */
+  async finish(): Promise<{ written: number; failed: number }> {
+    await Promise.all(this.writes);
+    return { written: this.written, failed: this.failures };
   }
 }
 
-/** Writes --junit and --html (atomically) when asked for. */
-export async function writeReportFiles(report: Report, o: Record<string, any>, io: CliIo, pictures: PictureOutputs): Promise<void> {
-  const write = async (option: string, file: string, text: string) => {
-    try {
-      await writeFilesAtomic([{ path: path.resolve(io.cwd, file), bytes: new TextEncoder().encode(text) }]);
-    } catch (err) {
-      throw new TanframeError('write-failed', `cannot write ${option} ${file}: ${(err as Error).message}`);
-    }
-  };
-  if (o.junit) await write('--junit', o.junit, renderJunit(report));
-  if (o.html) await write('--html', o.html, renderHtml(report, pictures.html));
+/**
+ * Writes one report file atomically (to `planned`'s path for `option`, a named link's target,
+ * when the plan settled one). A failure is one line on stderr; returns 1 then, else 0.
+ */
+export async function writeNamedFile(option: string, file: string, text: string, io: CliIo, planned?: Map<string, string>): Promise<number> {
+  try {
+    await writeFilesAtomic([{ path: planned?.get(option) ?? path.resolve(io.cwd, file), bytes: new TextEncoder().encode(text) }]);
+    return 0;
+  } catch (err) {
+    writeFailure(io, `${option} ${file}`, err);
+    return 1;
+  }
+}
+
+/**
+ * Writes --junit and --html (atomically) when asked for; one that cannot be written does not
+ * stop the other. Returns how many could not be written.
+ */
+export async function writeReportFiles(report: Report, o: Record<string, any>, io: CliIo, pictures: PictureOutputs, planned?: Map<string, string>): Promise<number> {
+  let failed = 0;
+  if (o.junit) failed += await writeNamedFile('--junit', o.junit, renderJunit(report), io, planned);
+  if (o.html) failed += await writeNamedFile('--html', o.html, renderHtml(report, pictures.html), io, planned);
+  return failed;
 }

@@ -7,7 +7,7 @@ import * as path from 'node:path';
 import { Command } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
 import { checkReportShape, mergeReports, type NamedReport } from '../lib/mergeReports.js';
-import { PictureOutputs, writeReportFiles } from './outputs.js';
+import { PictureOutputs, writeNamedFile, writeReportFiles } from './outputs.js';
 import { annotateOption, emitReport, exitStatus, toProcessOptions, type CliIo } from './shared.js';
 
 /** Registers `report` on `program`; `done` receives the exit status. */
@@ -52,7 +52,8 @@ export async function runReport(files: string[], o: Record<string, any>, io: Cli
   const parts: NamedReport[] = [];
   for (const f of files) parts.push(await readReport(f, io));
   const merged = mergeReports(parts, toProcessOptions({ method: parts[0].report.method, ...parts[0].report.options }));
-  await writeReportFiles(merged, { junit: o.junit, html: o.html }, io, new PictureOutputs({}, io));
-  await emitReport(merged, { report: o.json, quiet: o.quiet, annotate: o.annotate }, io);
-  return exitStatus(merged.files);
+  let writeFailures = await writeReportFiles(merged, { junit: o.junit, html: o.html }, io, new PictureOutputs({}, io));
+  if (o.json) writeFailures += await writeNamedFile('--json', o.json, JSON.stringify(merged, null, 2) + '\n', io);
+  writeFailures += await emitReport(merged, { quiet: o.quiet, annotate: o.annotate }, io);
+  return exitStatus(merged.files, writeFailures);
 }

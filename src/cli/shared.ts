@@ -144,27 +144,38 @@ export function shardOf<T>(items: T[], shard: { k: number; n: number } | undefin
   return items.filter((_, i) => i % shard.n === shard.k - 1);
 }
 
-/** Exit status for a finished run (DESIGN.md): 2 if a file failed, 1 if a gate tripped, else 0. */
-export function exitStatus(files: FileReport[]): number {
-  if (files.some((f) => f.status === 'failed')) return 2;
+/**
+ * Exit status for a finished run (DESIGN.md): 3 if a file failed or a report, picture or
+ * output could not be written (`writeFailures`), 1 if a gate tripped, else 0 (2, usage and
+ * configuration errors, never gets this far).
+ */
+export function exitStatus(files: FileReport[], writeFailures = 0): number {
+  if (writeFailures > 0 || files.some((f) => f.status === 'failed')) return 3;
   if (files.some((f) => f.gates.length > 0)) return 1;
   return 0;
 }
 
-/** Prints failures (one line each, on stderr), then the summary or JSON, and writes --report. */
-export async function emitReport(report: Report, o: Record<string, any>, io: CliIo): Promise<void> {
+/**
+ * Prints failures (one line each, on stderr), then the summary or JSON, and writes --report
+ * (to `planned`'s path, a named link's target, when the write plan settled one). Returns 1
+ * when --report could not be written (told in one line on stderr), else 0.
+ */
+export async function emitReport(report: Report, o: Record<string, any>, io: CliIo, planned?: Map<string, string>): Promise<number> {
   for (const f of report.files) {
     if (f.status === 'failed') io.stderr(`tanframe: ${f.input}: ${f.error?.message ?? 'failed'}\n`);
   }
+  let failed = 0;
   if (o.report) {
-    const target = path.resolve(io.cwd, o.report);
+    const target = planned?.get('--report') ?? path.resolve(io.cwd, o.report);
     try {
       await writeFilesAtomic([{ path: target, bytes: new TextEncoder().encode(JSON.stringify(report, null, 2) + '\n') }]);
     } catch (err) {
-      throw new TanframeError('write-failed', `cannot write the report ${o.report}: ${(err as Error).message}`);
+      io.stderr(`tanframe: --report ${o.report}: ${String((err as Error)?.message ?? err).split('\n')[0]}\n`);
+      failed = 1;
     }
   }
   if (o.json) io.stdout(JSON.stringify(report, null, 2) + '\n');
   else if (!o.quiet) io.stdout(renderSummary(report, { color: io.isTTY && !io.env.NO_COLOR }));
   if (o.annotate === 'github') io.stdout(renderGithubAnnotations(report));
+  return failed;
 }

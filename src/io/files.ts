@@ -173,10 +173,14 @@ export function removeThreadTemps(dir: string, thread: number): Promise<string[]
 /** Folders this thread has already cleaned of stale temporary files. */
 const cleanedFolders = new Set<string>();
 
-/** Writes `bytes` to a new file at `tmp` (must not exist) and flushes it to disk. */
-async function writeAndSync(tmp: string, bytes: Uint8Array): Promise<void> {
-  const handle = await fsp.open(tmp, 'wx', 0o644);
+/**
+ * Writes `bytes` to a new file at `tmp` (must not exist) and flushes it to disk; `mode`, when
+ * given, is set exactly (not narrowed by the umask), so a replaced file keeps its permission bits.
+ */
+async function writeAndSync(tmp: string, bytes: Uint8Array, mode: number | null): Promise<void> {
+  const handle = await fsp.open(tmp, 'wx', mode ?? 0o644);
   try {
+    if (mode !== null) await handle.chmod(mode);
     let off = 0;
     while (off < bytes.byteLength) {
       const { bytesWritten } = await handle.write(bytes, off, bytes.byteLength - off);
@@ -187,6 +191,26 @@ async function writeAndSync(tmp: string, bytes: Uint8Array): Promise<void> {
     await handle.close();
   }
 }
+
+/** What is at a destination now: its permission bits, and whether it already holds `bytes`. */
+async function currentState(target: string, bytes: Uint8Array): Promise<{ mode: number | null; same: boolean }> {
+  const st = await fsp.stat(target).catch(() => null);
+  if (!st || !st.isFile()) return { mode: null, same: false };
+  const mode = st.mode & 0o7777;
+  if (st.size !== bytes.byteLength) return { mode, same: false };
+  const current = await readRegularFile(target).catch(() => null);
+  return { mode, same: current !== null && Buffer.compare(current, bytes) === 0 };
+}
+
+/**
+ * Test seam: called after every other file of an asset is in place and before its main file
+ * (the .gltf JSON) is renamed. Only tests set it, to stop a run at that moment.
+ */
+export const writeHooks: {
+  beforeMainRename?: (main: string) => void | Promise<void>;
+  /** Called after the main file is in place and before what the old asset named is removed. */
+  afterMainRename?: (main: string) => void | Promise<void>;
+} = {};
 
 /** Throws (EISDIR) when `target` exists as a folder, so no rename starts that would fail on it. */
 async function checkReplaceable(target: string): Promise<void> {
@@ -203,20 +227,42 @@ async function removeQuietly(paths: string[]): Promise<void> {
   await Promise.all(paths.map((p) => fsp.rm(p, { force: true }).catch(() => undefined)));
 }
 
+/** How writeFilesAtomic replaces an asset of several files. */
+export interface AssetWriteOptions {
+  /** The file renamed last (the .gltf that names the others); default: the first file. */
+  main?: string;
+  /** Files to remove once the main file is in place (buffers only the old asset read). */
+  removeAfter?: string[];
+  /** Leftovers to remove then too: names in the main file's folder this accepts, unless written now or in `keep`. */
+  leftovers?: { match: (name: string) => boolean; keep: string[] };
+}
+
 /**
  * Writes every file atomically: creates the folders (mkdir -p), writes each file to a
  * temporary file in its destination folder, fsyncs it, and only when all are written
- * renames each into place (after checking no destination is a folder). The first write into
- * a folder also removes stale temporary files there (removeStaleTemps). On any failure the temporary files are removed and
- * TanframeError 'write-failed' names the file and the reason. A destination is never
- * left half-written; if a rename fails after earlier renames succeeded, those earlier
- * files stay replaced (renames of several files cannot be one atomic step).
+ * renames each into place (after checking no destination is a folder), the main file last.
+ * A file whose destination already holds exactly its bytes is not written (its modification
+ * time stays); a replaced file keeps its permission bits, and a new file beside a replaced main
+ * file gets the main file's. The first write into a folder also removes stale temporary files
+ * there (removeStaleTemps). On any failure the temporary files are removed and TanframeError
+ * 'write-failed' names the file and the reason. A destination is never left half-written.
+ *
+ * An asset of several files reads whole at every moment when its other files have names of
+ * their own (a buffer named by its content): they are in place before the main file names
+ * them, and what the old main file names is removed (`removeAfter`, `leftovers`) only after.
  */
-export async function writeFilesAtomic(files: OutputFile[]): Promise<void> {
+export async function writeFilesAtomic(files: OutputFile[], options: AssetWriteOptions = {}): Promise<void> {
   const temps: string[] = [];
   let current = '';
+  const main = path.resolve(options.main ?? files[0]?.path ?? '');
   try {
-    for (const file of files) {
+    const states = await Promise.all(files.map((f) => currentState(path.resolve(f.path), f.bytes)));
+    const mainMode = states[files.findIndex((f) => path.resolve(f.path) === main)]?.mode ?? null;
+    const order: number[] = [];
+    for (let i = 0; i < files.length; i++) if (!states[i].same && path.resolve(files[i].path) !== main) order.push(i);
+    for (let i = 0; i < files.length; i++) if (!states[i].same && path.resolve(files[i].path) === main) order.push(i);
+    for (const i of order) {
+      const file = files[i];
       current = file.path;
       const dir = path.dirname(path.resolve(file.path));
       await fsp.mkdir(dir, { recursive: true });
@@ -225,20 +271,37 @@ export async function writeFilesAtomic(files: OutputFile[]): Promise<void> {
         await removeStaleTemps(dir);
       }
       const tmp = tempPathFor(path.resolve(file.path));
-      temps.push(tmp);
-      await writeAndSync(tmp, file.bytes);
+      temps[i] = tmp;
+      await writeAndSync(tmp, file.bytes, states[i].mode ?? mainMode);
     }
-    for (const file of files) {
-      current = file.path;
-      await checkReplaceable(path.resolve(file.path));
-    }
-    for (let i = 0; i < files.length; i++) {
+    for (const i of order) {
       current = files[i].path;
+      await checkReplaceable(path.resolve(files[i].path));
+    }
+    for (const i of order) {
+      current = files[i].path;
+      if (path.resolve(files[i].path) === main) await writeHooks.beforeMainRename?.(main);
       await fsp.rename(temps[i], path.resolve(files[i].path));
       temps[i] = '';
     }
+    if (order.length > 0) await writeHooks.afterMainRename?.(main);
   } catch (err) {
-    await removeQuietly(temps.filter((t) => t !== ''));
+    await removeQuietly(temps.filter((t) => !!t));
     throw new TanframeError('write-failed', `cannot write '${current}': ${describeFsError(err)}`);
   }
+  const written = new Set(files.map((f) => path.resolve(f.path)));
+  // Removal only follows a main file that is part of this write: it names what the asset keeps.
+  if (!written.has(main)) return;
+  const doomed = (options.removeAfter ?? []).map((p) => path.resolve(p)).filter((p) => !written.has(p));
+  if (options.leftovers) {
+    const dir = path.dirname(main);
+    const real = (p: string) => fsp.realpath(p).catch(() => path.resolve(p));
+    const keep = new Set(await Promise.all(options.leftovers.keep.map(real)));
+    const names = await fsp.readdir(dir).catch(() => [] as string[]);
+    for (const n of names) {
+      const p = path.join(dir, n);
+      if (options.leftovers.match(n) && !written.has(p) && !keep.has(await real(p))) doomed.push(p);
+    }
+  }
+  await removeQuietly(doomed);
 }

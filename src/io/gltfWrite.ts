@@ -15,6 +15,7 @@
  * reader decoded into them. Every written POSITION accessor (kept or new) has a correct
  * min/max. The output is a pure function of the inputs.
  */
+import { createHash } from 'node:crypto';
 import * as path from 'node:path';
 import {
   FLOAT,
@@ -39,6 +40,30 @@ export interface EncodeOptions {
   format: 'glb' | 'gltf';
   /** Path of the .glb / .gltf to produce; a .gltf's .bin and images go beside it. */
   outPath: string;
+  /** Copied images written under another URI (the write plan's names for colliding contents): URI -> new URI. */
+  imageUris?: Record<string, string>;
+  /** .gltf: store the buffer as a `data:` URI instead of a .bin file (the input's buffers were embedded). */
+  embedBuffers?: boolean;
+}
+
+/** Hex digits of the content hash in a .gltf's buffer file name (`<name>.<hash>.bin`). */
+export const BUFFER_HASH_DIGITS = 16;
+
+/**
+ * The buffer file name of a .gltf output: `<name>.<first 16 hex digits of its SHA-256>.bin`.
+ * Named by content, so a new JSON never points at a half-replaced buffer: a replacement writes
+ * the new buffer under its own name, then the JSON (see writeAssetAtomic).
+ */
+export function bufferFileName(outPath: string, bin: Uint8Array): string {
+  const stem = path.basename(outPath, path.extname(outPath));
+  return `${stem}.${createHash('sha256').update(bin).digest('hex').slice(0, BUFFER_HASH_DIGITS)}.bin`;
+}
+
+/** True when `name` is a buffer file name bufferFileName gives for an output named `outPath`. */
+export function isBufferFileOf(outPath: string, name: string): boolean {
+  const stem = path.basename(outPath, path.extname(outPath));
+  return name.length === stem.length + BUFFER_HASH_DIGITS + 5 && name.startsWith(`${stem}.`) &&
+    /^\.[0-9a-f]+\.bin$/.test(name.slice(stem.length));
 }
 
 /** bufferView.target values. Source: glTF 2.0 specification, bufferView.target. */
@@ -199,7 +224,7 @@ function addView(state: EncodeState, bytes: Uint8Array, stride: number | undefin
 }
 
 /** Media type from an image's first bytes. Source: glTF 2.0 specification, 3.8.3 (PNG, JPEG patterns); others common practice. */
-function sniffImageType(b: Uint8Array): string | null {
+export function sniffImageType(b: Uint8Array): string | null {
   const starts = (sig: number[], at = 0) => b.length >= at + sig.length && sig.every((x, i) => b[at + i] === x);
   if (starts([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a])) return 'image/png';
   if (starts([0xff, 0xd8, 0xff])) return 'image/jpeg';
@@ -213,7 +238,7 @@ function sniffImageType(b: Uint8Array): string | null {
  * mimeType); for .gltf (and images of unknown type in a GLB) copy the file beside the output
  * at the same relative URI. Images whose bytes are unknown keep their URI only.
  */
-function placeImages(state: EncodeState, format: 'glb' | 'gltf', outDir: string): OutputFile[] {
+function placeImages(state: EncodeState, format: 'glb' | 'gltf', outDir: string, renames: Record<string, string>): OutputFile[] {
   const files: OutputFile[] = [];
   const written = new Set<string>();
   for (const ext of state.asset.externalImages) {
@@ -226,7 +251,9 @@ function placeImages(state: EncodeState, format: 'glb' | 'gltf', outDir: string)
       if (image.mimeType === undefined) image.mimeType = mime;
       continue;
     }
-    const target = path.join(outDir, ...uriToRelativePath(ext.uri).split('/'));
+    const uri = Object.hasOwn(renames, ext.uri) ? renames[ext.uri] : ext.uri;
+    if (uri !== ext.uri && isObject(image) && image.uri === ext.uri) image.uri = uri;
+    const target = path.join(outDir, ...uriToRelativePath(uri).split('/'));
     if (written.has(target)) continue;
     written.add(target);
     files.push({ path: target, bytes: ext.bytes });
@@ -468,8 +495,9 @@ function replacementTargets(asset: Asset, replacements: Map<number, PrimitiveRep
  * Encodes `asset` with the given primitives (keys: indices into asset.primitives) replaced.
  * Returns the files to write, in a fixed order: for 'glb' one file (external images with known
  * bytes embedded, except ones of unknown image type, copied beside it); for 'gltf' the .gltf,
- * `<basename>.bin` when there is binary data, then each external image with known bytes at its
- * relative URI beside the output. asset.generator and everything not edited stay as read.
+ * `<basename>.<hash>.bin` when there is binary data (bufferFileName; none with `embedBuffers`,
+ * which stores it as a data: URI), then each external image with known bytes at its relative
+ * URI beside the output (or the URI `imageUris` gives it, which the JSON then names). asset.generator and everything not edited stay as read.
  * OBJ primitives and Draco-compressed primitives without a replacement are written from
  * their decoded data; meshopt-compressed views are written with the bytes the reader decoded.
  * Preconditions: replacement attribute arrays match their componentType/type, equal counts,
@@ -488,7 +516,7 @@ export function encodeGltf(asset: Asset, replacements: Map<number, PrimitiveRepl
   keepAccessors(state, replaced);
   keepBufferViews(state);
   const outDir = path.dirname(options.outPath);
-  const imageFiles = placeImages(state, options.format, outDir);
+  const imageFiles = placeImages(state, options.format, outDir, options.imageUris ?? {});
   for (const [m, p, r] of targets) writeReplacement(state, m, p, r);
   tidyExtensions(state);
   const bin = state.bin.finish();
@@ -496,7 +524,11 @@ export function encodeGltf(asset: Asset, replacements: Map<number, PrimitiveRepl
     finishLists(state, bin.byteLength, null);
     return [{ path: options.outPath, bytes: assembleGlb(json, bin) }, ...imageFiles];
   }
-  const binName = `${path.basename(options.outPath, path.extname(options.outPath))}.bin`;
+  if (options.embedBuffers) {
+    finishLists(state, bin.byteLength, `data:application/octet-stream;base64,${Buffer.from(bin.buffer, bin.byteOffset, bin.byteLength).toString('base64')}`);
+    return [{ path: options.outPath, bytes: new TextEncoder().encode(`${JSON.stringify(json, null, 2)}\n`) }, ...imageFiles];
+  }
+  const binName = bufferFileName(options.outPath, bin);
   finishLists(state, bin.byteLength, encodeURIComponent(binName));
   const text = new TextEncoder().encode(`${JSON.stringify(json, null, 2)}\n`);
   const files: OutputFile[] = [{ path: options.outPath, bytes: text }];

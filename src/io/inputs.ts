@@ -105,6 +105,19 @@ async function walk(dir: string, visited: Set<string>, out: string[]): Promise<v
   }
 }
 
+/** The deepest folder holding every one of `dirs` (absolute paths). */
+function commonFolder(dirs: string[]): string {
+  let common = dirs[0];
+  for (const d of dirs) {
+    while (path.relative(common, d).split(path.sep)[0] === '..' || path.isAbsolute(path.relative(common, d))) {
+      const up = path.dirname(common);
+      if (up === common) break;
+      common = up;
+    }
+  }
+  return common;
+}
+
 function toPosix(p: string): string {
   return p.split(path.sep).join('/');
 }
@@ -121,14 +134,18 @@ export function displayPath(base: string, relative: string): string {
 
 /**
  * Expands inputs relative to `cwd`. Files are taken whatever their extension (the reader
- * refuses unknown ones); folders and globs yield only mesh files. The same file (by real
+ * refuses unknown ones); folders and globs yield only mesh files. Files named one by one keep
+ * their layout relative to the deepest folder holding them all (one file: its name), as a
+ * glob's matches do relative to its base, so same-named files from two folders never clash. The same file (by real
  * path) named twice is listed once. Returns files sorted by absolute path.
  */
 export async function expandInputs(inputs: string[], cwd: string): Promise<ExpandedInputs> {
   const files: InputFile[] = [];
   const problems: { input: string; message: string }[] = [];
   const seen = new Set<string>();
-  const add = async (abs: string, relative: string, display: string) => {
+  // Files named one by one: their layout is kept relative to their common folder (below).
+  const named: InputFile[] = [];
+  const add = async (abs: string, relative: string, display: string, isNamed = false) => {
     let key = abs;
     try {
       key = await fs.realpath(abs);
@@ -137,7 +154,9 @@ export async function expandInputs(inputs: string[], cwd: string): Promise<Expan
     }
     if (seen.has(key)) return;
     seen.add(key);
-    files.push({ path: abs, relative: toPosix(relative), display });
+    const file = { path: abs, relative: toPosix(relative), display };
+    files.push(file);
+    if (isNamed) named.push(file);
   };
   for (const input of inputs) {
     const abs = path.resolve(cwd, input);
@@ -154,7 +173,7 @@ export async function expandInputs(inputs: string[], cwd: string): Promise<Expan
       if (meshes.length === 0) problems.push({ input, message: 'no .glb, .gltf or .obj files in this folder' });
       for (const f of meshes) await add(f, path.relative(abs, f), displayPath(input, toPosix(path.relative(abs, f))));
     } else if (st) {
-      await add(abs, path.basename(abs), input);
+      await add(abs, path.basename(abs), input, true);
     } else if (hasGlob(input)) {
       const parts = toPosix(input).split('/');
       let k = 0;
@@ -170,6 +189,10 @@ export async function expandInputs(inputs: string[], cwd: string): Promise<Expan
     } else {
       problems.push({ input, message: 'no such file or folder' });
     }
+  }
+  if (named.length > 1) {
+    const common = commonFolder(named.map((f) => path.dirname(f.path)));
+    for (const f of named) f.relative = toPosix(path.relative(common, f.path));
   }
   files.sort((a, b) => (a.path < b.path ? -1 : a.path > b.path ? 1 : 0));
   return { files, problems };

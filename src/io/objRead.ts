@@ -112,7 +112,7 @@ function parseNumbers(toks: string[], from: number, out: Float64Array, min: numb
 }
 
 /** Splits mtllib arguments: several names when every token ends in .mtl, else one name with spaces. */
-function splitMtllib(rest: string): string[] {
+export function splitMtllib(rest: string): string[] {
   const toks = rest.split(WS_RE).filter((t) => t !== '');
   if (toks.length > 1 && toks.every((t) => t.toLowerCase().endsWith('.mtl'))) return toks;
   return rest === '' ? [] : [rest];
@@ -486,7 +486,7 @@ const SCHEME_RE = /^[A-Za-z][A-Za-z0-9+.-]*:/;
  * an .mtl from a sub-folder are prefixed with that folder. Absolute paths and schemes are
  * passed through untouched so that URI resolution refuses them.
  */
-function fileNameToUri(file: string, relativeTo: string): string {
+export function fileNameToUri(file: string, relativeTo: string): string {
   const slashed = file.replace(/\\/g, '/');
   if (slashed.startsWith('/') || SCHEME_RE.test(slashed)) return file;
   const encoded = slashed

@@ -10,7 +10,9 @@ import * as path from 'node:path';
 import type { Asset } from '../mesh/asset.js';
 import { TanframeError } from '../mesh/errors.js';
 import type { OutputFile } from '../io/files.js';
-import { isInside, realPathOfNearestExisting, resolveResourceUri } from '../io/uri.js';
+import { isBufferFileOf } from '../io/gltfWrite.js';
+import { isInside, realPathOfNearestExisting, resolveResourceUri, uriToRelativePath } from '../io/uri.js';
+import type { JobWrites } from './writePlan.js';
 
 /** Real path of `p` through its deepest existing ancestor, or `p` itself when that fails. */
 function realOrSelf(p: string): string {
@@ -56,15 +58,32 @@ async function holds(p: string, bytes: Uint8Array): Promise<boolean> {
  * are the same path. Every file must lie inside the main output's folder, lexically and
  * after resolving symbolic links ('bad-uri' otherwise); two files may not share a path
  * ('usage'). A file whose path is one the asset was read from (the input, its .bin, its
- * images) is dropped when it already holds the same bytes (an image copied onto itself);
+ * images) is passed on unchecked when it already holds the same bytes (an image copied onto
+ * itself: writeFilesAtomic leaves equal bytes alone);
  * with other bytes it is refused ('usage') unless the bake is in place, so an input is
- * never modified otherwise.
+ * never modified otherwise. With the run's write plan for this job (`writes`), every file must
+ * be one it planned, the buffer named by its content beside the main output (named only now),
+ * or a copy of one of the input's own buffers at its URI beside the output; and no file may be
+ * a symbolic link ('usage'): the late half of the write plan's guard.
  */
-export async function guardOutputs(files: OutputFile[], output: string, input: string, asset: Asset): Promise<OutputFile[]> {
+export async function guardOutputs(files: OutputFile[], output: string, input: string, asset: Asset, writes?: JobWrites): Promise<OutputFile[]> {
   const main = path.resolve(output);
   const root = path.dirname(main);
   const realRoot = realOrSelf(root);
-  const inPlace = main === path.resolve(input);
+  const inPlace = realOrSelf(main) === realOrSelf(path.resolve(input));
+  const planned = writes ? new Set(writes.files.map((p) => path.resolve(p))) : null;
+  // A .gltf written as the input's own bytes names its buffers by their input URIs: their copies
+  // beside the output are the input's own files mirrored, allowed as well.
+  if (planned && asset.container === 'gltf' && Array.isArray(asset.json?.buffers)) {
+    for (const b of asset.json.buffers) {
+      if (typeof b?.uri !== 'string' || /^data:/i.test(b.uri)) continue;
+      try {
+        planned.add(path.resolve(root, ...uriToRelativePath(b.uri).split('/')));
+      } catch {
+        // A URI the reader refused never gets here.
+      }
+    }
+  }
   const protectedFiles = inputFiles(asset, input);
   const seen = new Set<string>();
   const kept: OutputFile[] = [];
@@ -79,8 +98,19 @@ export async function guardOutputs(files: OutputFile[], output: string, input: s
     if (seen.has(real)) throw new TanframeError('usage', `two output files would share the path '${shown}'`);
     seen.add(real);
     if (protectedFiles.has(real)) {
-      if (await holds(real, file.bytes)) continue;
+      // Copied onto itself unchanged: kept in the list (the writer leaves equal bytes alone, and
+      // must know the new asset names this file), never written.
+      if (await holds(real, file.bytes)) {
+        kept.push(file);
+        continue;
+      }
       if (!inPlace) throw new TanframeError('usage', `the output file '${shown}' would overwrite a file the input is read from; choose another output folder or name`);
+    }
+    if (planned && !planned.has(abs) && !(path.dirname(abs) === root && isBufferFileOf(main, path.basename(abs)))) {
+      throw new TanframeError('usage', `the output file '${shown}' is not in the run's write plan`);
+    }
+    if ((await fsp.lstat(abs).catch(() => null))?.isSymbolicLink()) {
+      throw new TanframeError('usage', `the output file '${shown}' is a symbolic link; tanframe writes through a link only when it is named itself`);
     }
     kept.push(file);
   }

@@ -8,7 +8,7 @@ import type { Asset } from '../mesh/asset.js';
 import { assert, TanframeError } from '../mesh/errors.js';
 import { writeFilesAtomic } from '../io/files.js';
 import { readGltf, readGltfBytes } from '../io/gltfRead.js';
-import { encodeGltf } from '../io/gltfWrite.js';
+import { encodeGltf, isBufferFileOf } from '../io/gltfWrite.js';
 import type { ReadLimits } from '../io/limits.js';
 import { readObj, readObjBytes } from '../io/objRead.js';
 import { memoryResources, type AssetResources } from '../io/resources.js';
@@ -18,6 +18,7 @@ import { solveAsset } from './bakeAsset.js';
 import { guardOutputs } from './outputGuard.js';
 import { trippedGates } from './gates.js';
 import type { ProcessOptions } from './options.js';
+import type { JobWrites } from './writePlan.js';
 
 /** What to do with one file. */
 export interface FileJob {
@@ -34,6 +35,8 @@ export interface FileJob {
   displayOutput: string | null;
   /** Also return UV picture data for primitives with findings (--uv-maps, --html). */
   pictures?: boolean;
+  /** What the run's write plan settled for this job (bake): where it writes, image names, buffers to remove. */
+  writes?: JobWrites;
 }
 
 /** A file's report and, when the job asked for them, its UV pictures (never in the JSON report). */
@@ -134,8 +137,18 @@ export async function processFileOutcome(job: FileJob, options: ProcessOptions):
     report.gates = trippedGates(solved.primitives, options);
     if (job.command === 'bake' && job.output) {
       const format = outputFormat(asset.container, job.format);
-      const files = await guardOutputs(encodeGltf(asset, solved.replacements, { format, outPath: job.output }), job.output, job.input, asset);
-      if (!job.dryRun) await writeFilesAtomic(files);
+      const w = job.writes;
+      const out = w?.output ?? job.output;
+      const encoded = encodeGltf(asset, solved.replacements, { format, outPath: out, imageUris: w?.imageUris, embedBuffers: w?.embedBuffers && asset.container === 'gltf' });
+      const files = await guardOutputs(encoded, out, job.input, asset, w);
+      if (!job.dryRun) {
+        await writeFilesAtomic(files, {
+          main: out,
+          removeAfter: w?.removeAfter,
+          leftovers: format === 'gltf' ? { match: (name) => isBufferFileOf(out, name), keep: w?.keep ?? [] } : undefined,
+        });
+        report.notes.push(...(w?.notes ?? []));
+      }
       report.output = job.dryRun ? null : job.displayOutput;
     }
   } catch (err) {

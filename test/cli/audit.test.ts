@@ -302,14 +302,14 @@ describe('batch', () => {
     expect(whole.length).toBe(13);
   });
 
-  it('aFileThatCannotBeReadFailsAloneWithExit2', async () => {
+  it('aFileThatCannotBeReadFailsAloneWithExit3', async () => {
     const dir = path.join(tmp, 'mixed');
     fs.mkdirSync(dir, { recursive: true });
     fs.copyFileSync(grid('degenerate-uv'), path.join(dir, 'a.glb'));
     fs.writeFileSync(path.join(dir, 'b.glb'), fs.readFileSync(grid('clean')).subarray(0, 60));
     fs.copyFileSync(grid('clean'), path.join(dir, 'c.glb'));
     const r = await runCli(['audit', dir, '--fail-on', 'degenerate-uv', '--json', '--jobs', '2'], tmp);
-    expect(r.code).toBe(2); // a failed file wins over a tripped gate
+    expect(r.code).toBe(3); // a failed file wins over a tripped gate
     const report = JSON.parse(r.stdout);
     expect(report.files.map((f: any) => f.status)).toEqual(['ok', 'failed', 'ok']);
     expect(report.files[0].gates).toEqual(['degenerate-uv']);
@@ -318,12 +318,12 @@ describe('batch', () => {
   });
 });
 
-describe('exit status (DESIGN.md: 0 done, 1 gate tripped, 2 usage or unreadable input)', () => {
+describe('exit status (DESIGN.md: 0 done, 1 gate tripped, 2 usage, 3 unreadable input)', () => {
   it('audit', async () => {
     expect((await runCli(['audit', grid('clean'), '--fail-on', 'degenerate-uv'], tmp)).code).toBe(0);
     expect((await runCli(['audit', grid('degenerate-uv'), '--fail-on', 'degenerate-uv'], tmp)).code).toBe(1);
     expect((await runCli(['audit', grid('degenerate-uv')], tmp)).code).toBe(0); // findings without a gate
-    expect((await runCli(['audit', path.join(tmp, 'no-such.glb')], tmp)).code).toBe(2);
+    expect((await runCli(['audit', path.join(tmp, 'no-such.glb')], tmp)).code).toBe(3);
     expect((await runCli(['audit', grid('clean'), '--fail-on', 'nonsense'], tmp)).code).toBe(2);
     expect((await runCli(['audit', grid('clean'), '--jobs', '0'], tmp)).code).toBe(2);
     expect((await runCli(['audit', grid('clean'), '--shard', '4/3'], tmp)).code).toBe(2);
@@ -335,7 +335,7 @@ describe('exit status (DESIGN.md: 0 done, 1 gate tripped, 2 usage or unreadable 
     expect(gated.code).toBe(1);
     expect(fs.existsSync(path.join(out, 'd.glb'))).toBe(true); // outputs are still written
     expect((await runCli(['bake', grid('clean'), '-o', path.join(out, 'c.glb'), '--fail-on', 'degenerate-uv'], tmp)).code).toBe(0);
-    expect((await runCli(['bake', path.join(tmp, 'no-such.glb'), '-o', path.join(out, 'x.glb')], tmp)).code).toBe(2);
+    expect((await runCli(['bake', path.join(tmp, 'no-such.glb'), '-o', path.join(out, 'x.glb')], tmp)).code).toBe(3);
     expect((await runCli(['bake', grid('clean')], tmp)).code).toBe(2); // no -o, --in-place or --dry-run
   });
 });

@@ -1,6 +1,6 @@
 /**
  * --max-triangles and --file-timeout on the command line: the limit refuses a file before it
- * is decoded (code 'too-large', exit 2) and both options refuse nonsense values.
+ * is decoded (code 'too-large', exit 3) and both options refuse nonsense values.
  */
 import * as fs from 'node:fs';
 import * as os from 'node:os';
@@ -15,7 +15,7 @@ const quad = path.join('fixtures', 'values', 'all-degenerate.gltf');
 describe('--max-triangles', () => {
   it('refuses a file with more triangles than the limit, with too-large and one line', async () => {
     const r = await runCli(['audit', quad, '--max-triangles', '1', '--json'], repo);
-    expect(r.code).toBe(2);
+    expect(r.code).toBe(3);
     expect(r.stderr).toMatch(/^tanframe: fixtures\/values\/all-degenerate\.gltf: the file holds 2 triangles, more than the limit of 1 \(raise it with --max-triangles\)\n$/);
     const file = JSON.parse(r.stdout).files[0];
     expect(file.error.code).toBe('too-large');
@@ -56,7 +56,7 @@ describe('failure messages', () => {
       json.accessors[0].componentType = 'x'.repeat(2_000_000);
       fs.writeFileSync(path.join(dir, 'long.gltf'), JSON.stringify(json));
       const r = await runCli(['audit', 'long.gltf', '--json'], dir);
-      expect(r.code).toBe(2);
+      expect(r.code).toBe(3);
       const lines = r.stderr.split('\n').filter((l) => l !== '');
       expect(lines).toHaveLength(1);
       expect(lines[0]).toMatch(/^tanframe: long\.gltf: accessor 0: componentType "xxx/);

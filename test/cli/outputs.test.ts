@@ -36,7 +36,7 @@ describe('PictureOutputs', () => {
     out.take([picture('a/b.glb', 3)]);
     out.take([picture('a_b.glb', 2)]);
     out.take([picture('c.glb', 1)]); // 3 + 2 + 1 > 5: left out of the page
-    expect(await out.finish(o)).toBe(3);
+    expect(await out.finish()).toEqual({ written: 3, failed: 0 });
     expect(fs.readdirSync(path.join(tmp, 'maps')).sort()).toEqual(['a_b.glb__m0p0.svg', 'a_b.glb__m0p0~2.svg', 'c.glb__m0p0.svg']);
     expect(fs.readFileSync(path.join(tmp, 'maps', 'a_b.glb__m0p0~2.svg'), 'utf8')).toContain('a_b.glb: mesh 0');
     expect(out.html.map((p) => [p.input, p.svg !== null])).toEqual([['a/b.glb', true], ['a_b.glb', true], ['c.glb', false]]);

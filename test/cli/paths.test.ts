@@ -81,7 +81,7 @@ describe('symbolic links out of the asset folder', () => {
     fs.renameSync(path.join(asset, 'quad.bin'), path.join(outside, 'quad.bin'));
     fs.symlinkSync(path.join(outside, 'quad.bin'), path.join(asset, 'quad.bin'));
     const r = await runCli(['audit', path.relative(tmp, file), '--json'], tmp);
-    expect(r.code).toBe(2);
+    expect(r.code).toBe(3);
     expect(r.stderr.trim().split('\n')).toHaveLength(1);
     expect(r.stderr).toMatch(/^tanframe: linked-bin\/quad\.gltf: .*symbolic link/);
     expect(JSON.parse(r.stdout).files[0].error.code).toBe('bad-uri');
@@ -95,7 +95,7 @@ describe('symbolic links out of the asset folder', () => {
     fs.symlinkSync(elsewhere, path.join(asset, 'textures'));
     const out = path.join(tmp, 'linked-images-out');
     const r = await runCli(['bake', file, '-o', path.join(out, 'quad.gltf'), '--json'], tmp);
-    expect(r.code).toBe(2);
+    expect(r.code).toBe(3);
     expect(JSON.parse(r.stdout).files[0].error.code).toBe('bad-uri');
     expect(tree(out)).toEqual({});
   });
@@ -122,10 +122,11 @@ describe('outputs stay inside -o', () => {
     fs.mkdirSync(trap, { recursive: true });
     fs.symlinkSync(trap, path.join(out, 'textures'));
     const r = await runCli(['bake', file, '-o', path.join(out, 'quad.gltf'), '--json'], tmp);
+    // Refused by the write plan before any work: a link nobody named, on the way to a planned file.
     expect(r.code).toBe(2);
-    const error = JSON.parse(r.stdout).files[0].error;
-    expect(error.code).toBe('bad-uri');
-    expect(error.message).toMatch(/outside the output folder/);
+    expect(r.stderr.trim().split('\n')).toHaveLength(1);
+    expect(r.stderr).toMatch(/the image out-link\/textures\/normal\.png .* through out-link\/textures, a symbolic link to out-link-trap/);
+    expect(r.stdout).toBe('');
     expect(fs.readdirSync(trap)).toEqual([]);
     expect(fs.readdirSync(out)).toEqual(['textures']);
   });
@@ -158,15 +159,15 @@ describe('outputs stay inside -o', () => {
     const r = await runCli(['bake', src, '-o', out, '--quiet'], tmp);
     expect(r.stderr).toBe('');
     expect(r.code).toBe(0);
-    expect(Object.keys(tree(out)).sort()).toEqual(['props/quad.bin', 'props/quad.gltf', 'props/textures/normal.png']);
+    expect(Object.keys(tree(out)).sort().map((f) => f.replace(/\.[0-9a-f]{16}\.bin$/, '.<hash>.bin'))).toEqual(['props/quad.<hash>.bin', 'props/quad.gltf', 'props/textures/normal.png']);
     expect(tree(real)).toEqual(before);
   });
 });
 
 describe('outputs never overwrite an input', () => {
-  it('refuses a .gltf output whose .bin would replace the input\'s buffer file', async () => {
-    // scene.gltf reads its buffer from "copy.bin"; baking it to copy.gltf beside it would
-    // write the new buffer to copy.bin, under the input.
+  it('a .gltf output beside its input never replaces the input\'s buffer file: the new one has a name of its own', async () => {
+    // scene.gltf reads its buffer from "copy.bin"; baking it to copy.gltf beside it once
+    // wrote the new buffer to copy.bin, under the input. Now the buffer is named by content.
     const dir = path.join(tmp, 'bin-clash');
     const file = await writeQuad(dir, 'scene');
     fs.renameSync(path.join(dir, 'scene.bin'), path.join(dir, 'copy.bin'));
@@ -175,11 +176,16 @@ describe('outputs never overwrite an input', () => {
     fs.writeFileSync(file, JSON.stringify(text));
     const before = tree(dir);
     const r = await runCli(['bake', file, '-o', path.join(dir, 'copy.gltf'), '--json'], tmp);
-    expect(r.code).toBe(2);
-    const error = JSON.parse(r.stdout).files[0].error;
-    expect(error.code).toBe('usage');
-    expect(error.message).toMatch(/copy\.bin.*input/);
-    expect(tree(dir)).toEqual(before);
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    const after = tree(dir);
+    // Every input file is as it was; the output's buffer is a new file beside them.
+    for (const [name, hash] of Object.entries(before)) expect(after[name], name).toBe(hash);
+    const added = Object.keys(after).filter((n) => !(n in before)).sort();
+    expect(added).toHaveLength(2);
+    expect(added[0]).toMatch(/^copy\.[0-9a-f]{16}\.bin$/);
+    expect(added[1]).toBe('copy.gltf');
+    expect(JSON.parse(fs.readFileSync(path.join(dir, 'copy.gltf'), 'utf8')).buffers[0].uri).toBe(added[0]);
   });
 
   it('leaves an input image alone when the output copies it onto itself', async () => {
@@ -209,8 +215,11 @@ describe('outputs never overwrite an input', () => {
     // The same file reached through a symlinked folder: refused, the input untouched.
     fs.symlinkSync(dir, path.join(tmp, 'self-link-alias'));
     const viaLink = await runCli(['bake', path.join(dir, 'a.glb'), '-o', path.join(tmp, 'self-link-alias', 'a.glb'), '--json'], tmp);
+    // Refused by the write plan before any work: one line, no report.
     expect(viaLink.code).toBe(2);
-    expect(JSON.parse(viaLink.stdout).files[0].error.code).toBe('usage');
+    expect(viaLink.stderr.trim().split('\n')).toHaveLength(1);
+    expect(viaLink.stderr).toMatch(/a\.glb: .*--in-place/);
+    expect(viaLink.stdout).toBe('');
     expect(sha256(path.join(dir, 'a.glb'))).toBe(before);
     expect(fs.readdirSync(dir)).toEqual(['a.glb']);
   });

@@ -82,22 +82,27 @@ const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 describe('failed writes leave nothing behind', () => {
   it('removes the temporary files when one destination of a .gltf bake is a folder', async () => {
     // The .gltf and its .bin are written to temporaries first; the .bin's destination is a
-    // folder, found before any rename: nothing may be left but that folder.
+    // folder, found before any rename: nothing may be left but that folder. The buffer is
+    // named by its content: a first bake elsewhere gives its name.
+    const probe = path.join(tmp, 'fail-folder-probe');
+    expect((await runCli(['bake', small, '-o', path.join(probe, 'tri.gltf'), '--quiet'], repo)).code).toBe(0);
+    const binName = fs.readdirSync(probe).find((n) => n.endsWith('.bin'))!;
+    expect(binName).toMatch(/^tri\.[0-9a-f]{16}\.bin$/);
     const out = path.join(tmp, 'fail-folder');
-    fs.mkdirSync(path.join(out, 'tri.bin'), { recursive: true });
+    fs.mkdirSync(path.join(out, binName), { recursive: true });
     const r = await runCli(['bake', small, '-o', path.join(out, 'tri.gltf'), '--format', 'gltf', '--json'], repo);
-    expect(r.code).toBe(2);
+    expect(r.code).toBe(3);
     expect(JSON.parse(r.stdout).files[0].error.code).toBe('write-failed');
     expect(r.stderr.trim().split('\n')).toHaveLength(1);
-    expect(fs.readdirSync(out)).toEqual(['tri.bin']);
-    expect(fs.readdirSync(path.join(out, 'tri.bin'))).toEqual([]);
+    expect(fs.readdirSync(out)).toEqual([binName]);
+    expect(fs.readdirSync(path.join(out, binName))).toEqual([]);
   });
 
   it('fails with write-failed and creates nothing when a parent of the output is a file', async () => {
     const blocker = path.join(tmp, 'blocker');
     fs.writeFileSync(blocker, 'not a folder');
     const r = await runCli(['bake', small, '-o', path.join(blocker, 'sub', 'tri.glb'), '--json'], repo);
-    expect(r.code).toBe(2);
+    expect(r.code).toBe(3);
     expect(JSON.parse(r.stdout).files[0].error.code).toBe('write-failed');
     expect(fs.readFileSync(blocker, 'utf8')).toBe('not a folder');
   });
@@ -236,7 +241,7 @@ describe('--file-timeout', () => {
     // The 2-million-triangle bake takes seconds; half a second stops it. --jobs 1: even one
     // thread runs the batch on a worker, so it can be stopped.
     const r = await runCli(['bake', dir, '-o', out, '--file-timeout', '0.5', '--jobs', '1', '--json'], repo);
-    expect(r.code).toBe(2);
+    expect(r.code).toBe(3);
     const lines = r.stderr.trim().split('\n');
     expect(lines).toHaveLength(1);
     expect(lines[0]).toMatch(/^tanframe: .*a_big\.glb: .*--file-timeout/);

@@ -1,8 +1,9 @@
+import * as fs from 'node:fs';
 import { mkdtemp, mkdir, readdir, readFile, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import * as path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { readInputBytes, writeFilesAtomic } from '../../src/io/files.js';
+import { readInputBytes, writeFilesAtomic, writeHooks } from '../../src/io/files.js';
 import { TanframeError } from '../../src/mesh/errors.js';
 
 let root: string;
@@ -72,5 +73,53 @@ describe('readInputBytes', () => {
     const empty = path.join(root, 'empty.glb');
     await writeFile(empty, '');
     expect(await codeOf(readInputBytes(empty))).toBe('empty-file');
+  });
+});
+
+describe('writeFilesAtomic replacing an asset of several files', () => {
+  const enc = (s: string) => new TextEncoder().encode(s);
+
+  it('renames the main file last, removes what only the old asset named after it, and keeps modes', async () => {
+    const dir = path.join(root, 'asset');
+    await mkdir(dir, { recursive: true });
+    const main = path.join(dir, 'a.gltf');
+    await writeFile(main, 'old json');
+    await writeFile(path.join(dir, 'a.1111111111111111.bin'), 'old bin');
+    fs.chmodSync(main, 0o640);
+    const seen: string[][] = [];
+    writeHooks.beforeMainRename = async () => {
+      // The new buffer is in place, the old JSON still names the old one, both still there.
+      seen.push((await readdir(dir)).filter((n) => !n.endsWith('.tmp')).sort());
+      expect(await readFile(main, 'utf8')).toBe('old json');
+    };
+    try {
+      await writeFilesAtomic(
+        [{ path: main, bytes: enc('new json') }, { path: path.join(dir, 'a.2222222222222222.bin'), bytes: enc('new bin') }],
+        { main, leftovers: { match: (n) => /^a\.[0-9a-f]{16}\.bin$/.test(n), keep: [] } },
+      );
+    } finally {
+      writeHooks.beforeMainRename = undefined;
+    }
+    expect(seen).toEqual([['a.1111111111111111.bin', 'a.2222222222222222.bin', 'a.gltf']]);
+    expect((await readdir(dir)).sort()).toEqual(['a.2222222222222222.bin', 'a.gltf']);
+    expect(await readFile(main, 'utf8')).toBe('new json');
+    expect(fs.statSync(main).mode & 0o777).toBe(0o640);
+    // A new file beside a replaced main file takes the main file's mode.
+    expect(fs.statSync(path.join(dir, 'a.2222222222222222.bin')).mode & 0o777).toBe(0o640);
+  });
+
+  it('leaves a file whose bytes are already there alone (mtime kept), and removes nothing when the main file is not written', async () => {
+    const dir = path.join(root, 'same');
+    await mkdir(dir, { recursive: true });
+    const main = path.join(dir, 'a.gltf');
+    await writeFile(main, 'json');
+    await writeFile(path.join(dir, 'a.bin'), 'bin');
+    const past = new Date('2020-01-01T00:00:00Z');
+    fs.utimesSync(main, past, past);
+    await writeFilesAtomic([{ path: main, bytes: enc('json') }]);
+    expect(fs.statSync(main).mtime.getTime()).toBe(past.getTime());
+    // An empty write (nothing to write for this asset) never removes anything.
+    await writeFilesAtomic([], { main, removeAfter: [path.join(dir, 'a.bin')] });
+    expect((await readdir(dir)).sort()).toEqual(['a.bin', 'a.gltf']);
   });
 });

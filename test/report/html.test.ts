@@ -33,7 +33,7 @@ beforeAll(async () => {
     ['audit', 'assets', demo, '--fail-on', 'degenerate-uv', '--html', 'out/report.html', '--report', 'out/report.json', '--uv-maps', 'out/maps', '--quiet'],
     tmp,
   );
-  expect(r.code).toBe(2); // the truncated file
+  expect(r.code).toBe(3); // the truncated file
   report = JSON.parse(fs.readFileSync(path.join(tmp, 'out', 'report.json'), 'utf8'));
   pictureFiles = fs.readdirSync(path.join(tmp, 'out', 'maps'));
 });
