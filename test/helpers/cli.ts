@@ -3,7 +3,7 @@
  */
 import { main } from '../../src/cli/main.js';
 import type { ProgressClock } from '../../src/cli/progress.js';
-import { assertReportsOf } from './schemas.js';
+import { assertReportsOf, snapshotReports } from './schemas.js';
 
 /** Captured outcome of one CLI run. */
 export interface CliRun {
@@ -47,6 +47,7 @@ export async function runCli(
 ): Promise<CliRun> {
   let stdout = '';
   let stderr = '';
+  const before = snapshotReports(argv, cwd);
   const code = await main(argv, {
     stdout: (s) => { stdout += s; },
     stderr: (s) => { stderr += s; },
@@ -58,6 +59,6 @@ export async function runCli(
     clock: streams.clock ?? FROZEN_CLOCK,
     workerScript: TS_WORKER,
   });
-  assertReportsOf(argv, cwd, stdout);
+  assertReportsOf(argv, cwd, stdout, before);
   return { code, stdout, stderr };
 }

@@ -37,11 +37,8 @@ export function assertValidReport(report: unknown, where: string): void {
   if (errors.length) throw new Error(`${where}: the report does not match schema/tanframe-report-1.schema.json:\n  ${errors.slice(0, 10).join('\n  ')}`);
 }
 
-/**
- * Checks the JSON reports a CLI run wrote: the file after `--report` (bake, audit) or
- * `--json <file>` (report), and stdout when `--json` printed the report there.
- */
-export function assertReportsOf(argv: string[], cwd: string, stdout: string): void {
+/** The report files a CLI command line names: after `--report` (bake, audit) or `--json <file>` (report). */
+export function reportFilesOf(argv: string[]): string[] {
   const valueOf = (flag: string): string | null => {
     for (let i = 0; i < argv.length; i++) {
       if (argv[i] === flag && i + 1 < argv.length) return argv[i + 1];
@@ -49,21 +46,35 @@ export function assertReportsOf(argv: string[], cwd: string, stdout: string): vo
     }
     return null;
   };
-  const files: string[] = [];
   const command = argv[0];
-  if (command === 'bake' || command === 'audit') {
-    const r = valueOf('--report');
-    if (r) files.push(r);
-    if (argv.includes('--json') && stdout.trim().startsWith('{')) {
-      assertValidReport(JSON.parse(stdout), `tanframe ${argv.join(' ')} (stdout)`);
-    }
-  } else if (command === 'report') {
-    const r = valueOf('--json');
-    if (r) files.push(r);
+  const file = command === 'bake' || command === 'audit' ? valueOf('--report') : command === 'report' ? valueOf('--json') : null;
+  return file ? [file] : [];
+}
+
+/** The bytes of the report files `argv` names, before a run (null: absent), to tell what the run wrote. */
+export function snapshotReports(argv: string[], cwd: string): Map<string, string | null> {
+  const out = new Map<string, string | null>();
+  for (const f of reportFilesOf(argv)) {
+    const abs = path.resolve(cwd, f);
+    out.set(abs, fs.existsSync(abs) ? fs.readFileSync(abs, 'latin1') : null);
   }
-  for (const f of files) {
+  return out;
+}
+
+/**
+ * Checks the JSON reports a CLI run wrote: the report file its command line names, when the
+ * run wrote it (its bytes differ from `before`, taken by snapshotReports; without `before`,
+ * whenever it exists), and stdout when `--json` printed the report there.
+ */
+export function assertReportsOf(argv: string[], cwd: string, stdout: string, before?: Map<string, string | null>): void {
+  const command = argv[0];
+  if ((command === 'bake' || command === 'audit') && argv.includes('--json') && stdout.trim().startsWith('{')) {
+    assertValidReport(JSON.parse(stdout), `tanframe ${argv.join(' ')} (stdout)`);
+  }
+  for (const f of reportFilesOf(argv)) {
     const abs = path.resolve(cwd, f);
     if (!fs.existsSync(abs)) continue;
+    if (before && before.get(abs) === fs.readFileSync(abs, 'latin1')) continue; // not written by this run
     assertValidReport(JSON.parse(fs.readFileSync(abs, 'utf8')), `tanframe ${argv.join(' ')} (${f})`);
   }
 }
