@@ -490,6 +490,58 @@ addValues('obj-degenerate-uvs.obj', 'v 0 0 0\nv 1 0 0\nv 1 1 0\nv 0 1 0\nvt 0.5 
 });
 
 // ---------------------------------------------------------------------------------------------
+// Cost faults (issue 11): structures that used to cost far more than their bytes
+
+{
+  // A Draco stream whose header declares a million triangles for a primitive that declares one:
+  // refused from the header, before the decoder allocates anything. Source: Draco bitstream
+  // specification (header "DRACO", version 2.2, encoder type 1 mesh, method 0 sequential,
+  // flags 0; then num_faces and num_points as varints), KHR_draco_mesh_compression.
+  const stream = Buffer.from([0x44, 0x52, 0x41, 0x43, 0x4f, 2, 2, 1, 0, 0, 0, 0xc0, 0x84, 0x3d, 3, 0, 0, 0]);
+  const json = {
+    asset: { version: '2.0', generator: 'tanframe make-bad-fixtures' },
+    extensionsUsed: ['KHR_draco_mesh_compression'],
+    extensionsRequired: ['KHR_draco_mesh_compression'],
+    meshes: [{ primitives: [{ attributes: { POSITION: 0 }, indices: 1,
+      extensions: { KHR_draco_mesh_compression: { bufferView: 0, attributes: { POSITION: 0 } } } }] }],
+    accessors: [
+      { componentType: 5126, count: 3, type: 'VEC3', min: [0, 0, 0], max: [1, 1, 0] },
+      { componentType: 5125, count: 3, type: 'SCALAR' },
+    ],
+    bufferViews: [{ buffer: 0, byteLength: stream.length }],
+    buffers: [{ byteLength: align4(stream.length) }],
+  };
+  addBad('draco-more-triangles-than-declared.glb', glb(json, stream), 'bad-draco', 'a Draco header declaring a million triangles where the primitive declares one');
+}
+{
+  // The quad's indices name 4 of the 8 vertices of its buffer; the other 4 hold NaN (as when
+  // an exporter packs several meshes into one buffer). The primitive is solved and written over
+  // its own 4 vertices only, so the NaNs it never uses are not counted.
+  const positions = new Float32Array([0, 0, 0, 1, 0, 0, 1, 1, 0, 0, 1, 0, NaN32, 0, 0, NaN32, 0, 0, NaN32, 0, 0, NaN32, 0, 0]);
+  const normals = new Float32Array(24).map((_, i) => (i % 3 === 2 ? 1 : 0));
+  const uvs = new Float32Array([0, 1, 1, 1, 1, 0, 0, 0, 0, 1, 1, 1, 1, 0, 0, 0]);
+  const a = asset({ positions, normals, uvs });
+  addValues('unreferenced-vertices.glb', glb(a.json, a.bin), { exit: 0, action: 'baked', counts: { verticesIn: 4, invalidValues: 0 }, validatorAllows: FLOAT_ERRORS });
+}
+{
+  // Three morph targets naming the same POSITION / NORMAL delta accessors: solved once, and
+  // the output's three targets share their accessors.
+  const a = asset();
+  const dp = new Float32Array([0, 0, 0.1, 0, 0, 0.1, 0, 0, 0.2, 0, 0, 0.2]);
+  const dn = new Float32Array([0.1, 0, 0, 0.1, 0, 0, 0, 0.1, 0, 0, 0.1, 0]);
+  const at = align4(a.bin.length);
+  const bin = Buffer.concat([a.bin, Buffer.alloc(at - a.bin.length), bytesOf(dp), bytesOf(dn)]);
+  a.json.buffers[0].byteLength = bin.length;
+  a.json.bufferViews.push({ buffer: 0, byteOffset: at, byteLength: 48, target: 34962 }, { buffer: 0, byteOffset: at + 48, byteLength: 48, target: 34962 });
+  const v = a.json.bufferViews.length;
+  a.json.accessors.push({ bufferView: v - 2, componentType: 5126, count: 4, type: 'VEC3', ...minMax(dp, 3) }, { bufferView: v - 1, componentType: 5126, count: 4, type: 'VEC3' });
+  const n = a.json.accessors.length;
+  a.json.meshes[0].primitives[0].targets = [0, 1, 2].map(() => ({ POSITION: n - 2, NORMAL: n - 1 }));
+  a.json.meshes[0].weights = [0, 0, 0];
+  addValues('shared-morph-targets.glb', glb(a.json, bin), { exit: 0, action: 'baked', counts: { triangles: 2 }, validatorAllows: [] });
+}
+
+// ---------------------------------------------------------------------------------------------
 // Write everything: clear old generated files first, so renamed fixtures leave nothing behind.
 
 function writeAll(dir, entries, manifest) {

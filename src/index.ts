@@ -11,6 +11,7 @@ export type { Asset, AttributeData, ComponentArray, ExternalImage, PrimitiveData
 export type { UvTransform } from './mesh/uvTransform.js';
 export { readAsset, readAssetBytes, processFile, processFileOutcome, outputFormat, type FileJob, type FileOutcome } from './lib/processFile.js';
 export { solveAsset, solvePrimitive, type AssetSolve } from './lib/bakeAsset.js';
+export { createCompactScratch, type CompactScratch } from './mesh/compact.js';
 export { defaultProcessOptions, GATE_NAMES, type GateName, type ProcessOptions } from './lib/options.js';
 export { trippedGates } from './lib/gates.js';
 export { readGltf, readGltfBytes } from './io/gltfRead.js';

@@ -12,12 +12,17 @@ import { ProgressBar, ProgressRecords, progressRecordsWanted, progressWanted } f
 import { runFiles } from './runFiles.js';
 import { DEFAULT_FILE_TIMEOUT_S, type CliIo } from './shared.js';
 
-/** Worker threads for `--jobs` (default: the cores this process may use). */
+/**
+ * Worker threads for `--jobs`: at most the cores this process may use (the default), since
+ * more threads only add memory (each holds its own heap) without adding speed; the pool also
+ * starts no more threads than there are files.
+ */
 export function threadCount(o: Record<string, any>): number {
-  return o.jobs ?? os.availableParallelism();
+  const cores = os.availableParallelism();
+  return Math.min(o.jobs ?? cores, cores);
 }
 
-/** Milliseconds one file may take in a batch (--file-timeout; 0: no limit). */
+/** Milliseconds one file may take, alone or in a batch (--file-timeout; 0: no limit). */
 export function fileTimeoutMs(o: Record<string, any>): number {
   return Math.round((o.fileTimeout ?? DEFAULT_FILE_TIMEOUT_S) * 1000);
 }

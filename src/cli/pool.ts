@@ -66,7 +66,7 @@ export async function runInWorkers(
 ): Promise<void> {
   if (jobs.length === 0) return;
   if (script.protocol === 'file:' && !fs.existsSync(fileURLToPath(script))) {
-    throw new TanframeError('internal', `the worker script ${fileURLToPath(script)} is missing (run \`npm run build\`, or use --jobs 1)`);
+    throw new TanframeError('internal', `the worker script ${fileURLToPath(script)} is missing (run \`npm run build\`, or use --jobs 1 --file-timeout 0)`);
   }
   const count = Math.max(1, Math.min(threads, jobs.length));
   let next = 0;

@@ -12,10 +12,10 @@ import { defaultWorkerScript, runInWorkers } from './pool.js';
 export interface RunSettings {
   /**
    * Worker threads; 1 runs every file on this thread, one after the other (no worker), unless
-   * a file timeout needs a thread it can stop.
+   * a file timeout needs a thread it can stop (also for a single file).
    */
   threads: number;
-  /** Milliseconds a file may take in a batch before it fails with 'timeout'; 0 or absent: no limit. */
+  /** Milliseconds a file may take before it fails with 'timeout' (a single file too); 0 or absent: no limit. */
   fileTimeoutMs?: number;
   /** The worker script (default: defaultWorkerScript()). */
   workerScript?: URL;
@@ -26,9 +26,9 @@ export interface RunSettings {
 }
 
 /**
- * Processes `jobs` and returns their reports in the order of `jobs`. One job runs here; so do
- * several with one thread and no file timeout; otherwise they run on min(threads, jobs)
- * worker threads (at least one, so a file past the timeout can be stopped).
+ * Processes `jobs` and returns their reports in the order of `jobs`. Without a file timeout, one
+ * job, or several with one thread, run here; otherwise they run on min(threads, jobs) worker
+ * threads (at least one, so a file past the timeout can be stopped, a single one included).
  * A number as `settings` is the thread count.
  */
 export async function runFiles(jobs: FileJob[], options: ProcessOptions, settings: RunSettings | number): Promise<FileReport[]> {
@@ -52,7 +52,9 @@ export async function runFiles(jobs: FileJob[], options: ProcessOptions, setting
     }
   };
   const timeoutMs = s.fileTimeoutMs ?? 0;
-  if (jobs.length <= 1 || (s.threads <= 1 && timeoutMs <= 0)) {
+  // Here only without a file timeout: a file that must be stoppable runs on a worker thread,
+  // even when it is the only one.
+  if (jobs.length === 0 || (timeoutMs <= 0 && (jobs.length === 1 || s.threads <= 1))) {
     for (let i = 0; i < jobs.length; i++) take(i, await processFileOutcome(jobs[i], options));
   } else {
     await runInWorkers(jobs, options, Math.max(1, s.threads), s.workerScript ?? defaultWorkerScript(), take, timeoutMs);

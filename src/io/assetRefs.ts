@@ -7,11 +7,11 @@
  * URIs resolve with the readers' own rules (resolveResourceUri), so the paths are the ones
  * the readers open.
  */
-import * as fsp from 'node:fs/promises';
 import * as path from 'node:path';
 import { parseMtl } from './mtlRead.js';
 import { fileNameToUri, splitMtllib } from './objRead.js';
-import { readRegularFile } from './files.js';
+import { openRegularFile, readRegularFile } from './files.js';
+import { MAX_JSON_DEPTH, checkJsonBudget } from './jsonBudget.js';
 import { resolveResourceUri } from './uri.js';
 
 /** One file an asset reads. */
@@ -37,20 +37,25 @@ const CHUNK_JSON = 0x4e4f534a;
 
 /** The JSON chunk of a GLB, read without the rest of the file; null when the container is broken. */
 async function glbJson(file: string): Promise<unknown> {
-  const handle = await fsp.open(file, 'r');
+  const { handle, size } = await openRegularFile(file);
   try {
     const head = Buffer.alloc(GLB_HEAD);
     const { bytesRead } = await handle.read(head, 0, GLB_HEAD, 0);
     if (bytesRead < GLB_HEAD || head.readUInt32LE(16) !== CHUNK_JSON) return null;
     const length = head.readUInt32LE(12);
-    const size = (await handle.stat()).size;
     if (GLB_HEAD + length > size) return null;
     const body = Buffer.alloc(length);
     await handle.read(body, 0, length, GLB_HEAD);
-    return JSON.parse(new TextDecoder('utf-8').decode(body));
+    return parseChecked(body);
   } finally {
     await handle.close();
   }
+}
+
+/** JSON text parsed within the readers' depth and size budget (jsonBudget.ts); throws past it. */
+function parseChecked(bytes: Uint8Array): unknown {
+  checkJsonBudget(bytes, MAX_JSON_DEPTH, 'the JSON');
+  return JSON.parse(new TextDecoder('utf-8').decode(bytes));
 }
 
 function resolved(kind: ReferencedFile['kind'], uri: string, baseDir: string, out: ReferencedFile[]): void {
@@ -115,7 +120,7 @@ export async function listAssetReferences(file: string): Promise<AssetReferences
       const json = await glbJson(file);
       return json ? gltfRefs(json, baseDir, 'glb') : null;
     }
-    if (ext === '.gltf') return gltfRefs(JSON.parse(new TextDecoder('utf-8').decode(await readRegularFile(file))), baseDir, 'gltf');
+    if (ext === '.gltf') return gltfRefs(parseChecked(await readRegularFile(file)), baseDir, 'gltf');
     if (ext === '.obj') return await objRefs(new TextDecoder('utf-8').decode(await readRegularFile(file)), baseDir);
   } catch {
     return null;

@@ -11,6 +11,120 @@
  */
 import { TanframeError } from '../mesh/errors.js';
 
+/** The counts a Draco stream's header declares, read before anything is decoded. */
+export interface DracoHeader {
+  /** Bitstream version, major and minor. */
+  major: number;
+  minor: number;
+  /** 0 sequential, 1 edgebreaker. */
+  method: number;
+  /** Triangles the stream holds. */
+  faces: number;
+  /**
+   * Vertices: for a sequential stream the decoded vertex count itself; for edgebreaker the
+   * connectivity's vertices, at most the decoded count (attribute seams add vertices).
+   */
+  vertices: number;
+}
+
+/** Deepest metadata nesting read (Draco metadata nests sub-metadata); deeper is refused. */
+const MAX_METADATA_DEPTH = 32;
+
+/** A byte cursor over a Draco stream; running past the end throws 'bad-draco'. */
+class DracoReader {
+  at = 0;
+  constructor(private readonly b: Uint8Array, private readonly where: string) {}
+  fail(why: string): never {
+    throw new TanframeError('bad-draco', `${this.where}: the KHR_draco_mesh_compression data does not decode (${why})`);
+  }
+  u8(): number {
+    if (this.at >= this.b.length) this.fail('the header is truncated');
+    return this.b[this.at++];
+  }
+  u16(): number {
+    return this.u8() | (this.u8() << 8);
+  }
+  u32(): number {
+    return (this.u8() | (this.u8() << 8) | (this.u8() << 16)) + this.u8() * 0x1000000;
+  }
+  /** Unsigned LEB128 of at most 32 bits (Draco's varint). */
+  varint(): number {
+    let v = 0;
+    for (let shift = 0; shift < 35; shift += 7) {
+      const byte = this.u8();
+      v += (byte & 0x7f) * 2 ** shift;
+      if ((byte & 0x80) === 0) {
+        if (v > 0xffffffff) this.fail('a count does not fit 32 bits');
+        return v;
+      }
+    }
+    this.fail('a count does not fit 32 bits');
+  }
+  skip(n: number): void {
+    if (this.at + n > this.b.length) this.fail('the header is truncated');
+    this.at += n;
+  }
+}
+
+/** Skips one metadata element (entries, then named sub-metadata, recursively). */
+function skipMetadataElement(r: DracoReader, depth: number): void {
+  if (depth > MAX_METADATA_DEPTH) r.fail(`metadata nests deeper than ${MAX_METADATA_DEPTH} levels`);
+  const entries = r.varint();
+  for (let i = 0; i < entries; i++) {
+    r.skip(r.u8());
+    r.skip(r.u8());
+  }
+  const subs = r.varint();
+  for (let i = 0; i < subs; i++) {
+    r.skip(r.u8());
+    skipMetadataElement(r, depth + 1);
+  }
+}
+
+/**
+ * Reads the header of a Draco mesh stream up to its face and vertex counts, without decoding.
+ * Based on: the Draco bitstream specification (header: "DRACO", major and minor version,
+ * encoder type, encoder method, flags; optional metadata when flags & 0x8000; then the
+ * connectivity header: sequential num_faces, num_points; edgebreaker traversal type, before
+ * 2.2 num_new_vertices, then num_encoded_vertices, num_faces; counts are varints from 2.2
+ * (edgebreaker from 2.0), 32-bit before). Throws 'bad-draco' for anything else (point clouds
+ * included: the extension carries meshes).
+ */
+export function readDracoHeader(stream: Uint8Array, where: string): DracoHeader {
+  const r = new DracoReader(stream, where);
+  const magic = 'DRACO';
+  for (let i = 0; i < magic.length; i++) if (r.u8() !== magic.charCodeAt(i)) r.fail('no Draco header');
+  const major = r.u8();
+  const minor = r.u8();
+  if (major < 1 || major > 2) r.fail(`bitstream version ${major}.${minor} is not supported`);
+  const version = major * 256 + minor;
+  const type = r.u8();
+  if (type !== 1) r.fail(type === 0 ? 'it is a point cloud, not a mesh' : `unknown encoder type ${type}`);
+  const method = r.u8();
+  if (method !== 0 && method !== 1) r.fail(`unknown encoder method ${method}`);
+  const flags = r.u16();
+  if (flags & 0x8000) {
+    const attributeMetadata = r.varint();
+    for (let i = 0; i < attributeMetadata; i++) {
+      r.varint();
+      skipMetadataElement(r, 1);
+    }
+    skipMetadataElement(r, 1);
+  }
+  const v22 = version >= 2 * 256 + 2;
+  if (method === 0) {
+    const faces = v22 ? r.varint() : r.u32();
+    const vertices = v22 ? r.varint() : r.u32();
+    return { major, minor, method, faces, vertices };
+  }
+  r.u8(); // traversal decoder type
+  if (!v22) r.u32(); // num_new_vertices
+  const v20 = version >= 2 * 256;
+  const vertices = v20 ? r.varint() : r.u32();
+  const faces = v20 ? r.varint() : r.u32();
+  return { major, minor, method, faces, vertices };
+}
+
 /** One decoded Draco attribute: values as the decoder returns them. */
 export interface DracoAttribute {
   array: Int8Array | Uint8Array | Int16Array | Uint16Array | Int32Array | Uint32Array | Float32Array;
@@ -81,8 +195,9 @@ function decodeGeometry(draco: DracoDecoderModule, decoder: any, buffer: any): a
 /**
  * Decodes one Draco stream. `attributeIds` is the extension's map semantic -> Draco unique id.
  * Returns the attributes found (values as decoded: quantized streams come back dequantized),
- * the triangle list and the vertex count. Throws 'bad-gltf' when the stream does not decode
- * or names an attribute id it lacks.
+ * the triangle list and the vertex count. Throws 'bad-draco' when the stream does not decode
+ * or names an attribute id it lacks. Callers check readDracoHeader's counts first: the
+ * decoder allocates what the header declares.
  */
 export async function decodeDracoPrimitive(stream: Uint8Array, attributeIds: Record<string, number>, where: string): Promise<DracoMesh> {
   const draco = await loadModule();
@@ -93,8 +208,9 @@ export async function decodeDracoPrimitive(stream: Uint8Array, attributeIds: Rec
     buffer.Init(new Int8Array(stream.buffer, stream.byteOffset, stream.byteLength), stream.byteLength);
     try {
       geometry = decodeGeometry(draco, decoder, buffer);
-    } catch (err) {
-      throw new TanframeError('bad-gltf', `${where}: the KHR_draco_mesh_compression data does not decode (${String((err as Error)?.message ?? err).split('\n')[0]})`);
+    } catch {
+      // The decoder's own message is not quoted: it may carry bytes of the stream.
+      throw new TanframeError('bad-draco', `${where}: the KHR_draco_mesh_compression data does not decode`);
     }
     const vertexCount: number = geometry.num_points();
     const attributes: Record<string, DracoAttribute> = {};
@@ -103,7 +219,7 @@ export async function decodeDracoPrimitive(stream: Uint8Array, attributeIds: Rec
       const attribute = Number.isInteger(id) && id >= 0 ? decoder.GetAttributeByUniqueId(geometry, id) : null;
       const kind = attribute && attribute.ptr ? arrayKind(draco, attribute.data_type()) : null;
       if (!kind) {
-        throw new TanframeError('bad-gltf', `${where}: KHR_draco_mesh_compression attribute ${semantic} (id ${id}) is not in the Draco data`);
+        throw new TanframeError('bad-draco', `${where}: KHR_draco_mesh_compression attribute ${semantic} (id ${id}) is not in the Draco data`);
       }
       const itemSize: number = attribute.num_components();
       const values = vertexCount * itemSize;

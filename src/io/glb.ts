@@ -11,6 +11,7 @@
  * does it exactly, and the package's weight is gone: see README, Install.)
  */
 import { TanframeError } from '../mesh/errors.js';
+import { MAX_JSON_DEPTH, checkJsonBudget, jsonParseReason } from './jsonBudget.js';
 
 /** 'glTF' read as a little-endian uint32. Source: glTF 2.0 specification, 4.4.2. */
 export const GLB_MAGIC = 0x46546c67;
@@ -106,9 +107,11 @@ export function parseGlb(bytes: Uint8Array): GlbContents {
   checkHeader(view, bytes.length);
   const { json: jsonSpan, bin: binSpan } = pickChunks(findChunks(view, bytes.length));
   if (jsonSpan.length === 0) bad('the JSON chunk is empty');
+  const jsonBytes = bytes.subarray(jsonSpan.start, jsonSpan.start + jsonSpan.length);
+  checkJsonBudget(jsonBytes, MAX_JSON_DEPTH, 'the JSON chunk');
   let text: string;
   try {
-    text = new TextDecoder('utf-8', { fatal: true }).decode(bytes.subarray(jsonSpan.start, jsonSpan.start + jsonSpan.length));
+    text = new TextDecoder('utf-8', { fatal: true }).decode(jsonBytes);
   } catch {
     throw new TanframeError('bad-json', 'the JSON chunk is not valid UTF-8');
   }
@@ -116,7 +119,7 @@ export function parseGlb(bytes: Uint8Array): GlbContents {
   try {
     json = JSON.parse(text);
   } catch (err) {
-    throw new TanframeError('bad-json', `the JSON chunk does not parse: ${String((err as Error)?.message ?? err).split('\n')[0]}`);
+    throw new TanframeError('bad-json', `the JSON chunk does not parse (${jsonParseReason(err)})`);
   }
   if (json === null || typeof json !== 'object' || Array.isArray(json)) {
     throw new TanframeError('bad-gltf', 'the JSON chunk is not a JSON object');

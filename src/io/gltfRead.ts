@@ -38,8 +38,10 @@ import {
   type ViewTable,
 } from './gltfAccessor.js';
 import { accessorRefs, bufferViewRefs, type IndexRef } from './gltfRefs.js';
+import { MAX_JSON_DEPTH, checkJsonBudget, jsonParseReason } from './jsonBudget.js';
 import { checkAttributeFormat, formatName } from './gltfSemantics.js';
-import { decodeDracoPrimitive } from './draco.js';
+import { decodeDracoPrimitive, readDracoHeader } from './draco.js';
+import { triangleCount } from '../mesh/triangulate.js';
 import { decodeMeshoptViews, isMeshoptFallback } from './meshopt.js';
 import { checkTriangleLimit, declaredGltfTriangles, type ReadLimits } from './limits.js';
 import { diskResources, type ResourceSource } from './resources.js';
@@ -67,13 +69,6 @@ const SAFE_REQUIRED_EXTENSIONS = new Set([
 ]);
 
 const DRACO = 'KHR_draco_mesh_compression';
-
-/**
- * Deepest JSON nesting accepted. glTF documents nest a few levels (extras a few more); far
- * deeper input is hostile and would exhaust the stack when the writer copies or serialises it.
- * Common practice (a resource limit).
- */
-const MAX_JSON_DEPTH = 512;
 
 /** Everything decoding needs, shared by the helpers below. */
 interface ReadContext {
@@ -110,8 +105,12 @@ function arrayOf(json: any, key: string): any[] {
   return v;
 }
 
-/** Parses .gltf text: UTF-8 (BOM tolerated), JSON, an object. */
+/**
+ * Parses .gltf text: UTF-8 (BOM tolerated), depth and size-aware budget checked on the bytes
+ * before parsing (checkJsonBudget), JSON, an object. A parse error names the position only.
+ */
 function parseGltfJson(bytes: Uint8Array): any {
+  checkJsonBudget(bytes, MAX_JSON_DEPTH, 'the JSON');
   let text: string;
   try {
     text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
@@ -122,21 +121,10 @@ function parseGltfJson(bytes: Uint8Array): any {
   try {
     json = JSON.parse(text);
   } catch (err) {
-    throw new TanframeError('bad-json', `the JSON does not parse: ${String((err as Error).message).split('\n')[0]}`);
+    throw new TanframeError('bad-json', `the JSON does not parse (${jsonParseReason(err)})`);
   }
   if (!isObject(json)) badGltf('the JSON is not an object');
   return json;
-}
-
-/** Refuses JSON nested deeper than MAX_JSON_DEPTH (iterative walk, no recursion). */
-function checkJsonDepth(json: unknown): void {
-  const stack: [unknown, number][] = [[json, 1]];
-  while (stack.length > 0) {
-    const [v, depth] = stack.pop()!;
-    if (v === null || typeof v !== 'object') continue;
-    if (depth > MAX_JSON_DEPTH) throw new TanframeError('bad-json', `the JSON nests deeper than ${MAX_JSON_DEPTH} levels`);
-    for (const child of Object.values(v as object)) if (child !== null && typeof child === 'object') stack.push([child, depth + 1]);
-  }
 }
 
 /** Checks asset.version (2.x) and the shape of the top-level arrays we use. */
@@ -426,28 +414,53 @@ function toAccessorType(values: ArrayLike<number>, spec: AccessorSpec): Attribut
   return out;
 }
 
-/** Decodes (once per stream and attribute map) the Draco data of a primitive into accessor-typed attributes. */
+function badDraco(message: string): never {
+  throw new TanframeError('bad-draco', message);
+}
+
+/**
+ * Decodes (once per stream and attribute map) the Draco data of a primitive into accessor-typed
+ * attributes. The stream's header is read first: its triangle count must be the one the
+ * primitive declares (indices accessor, else the vertex count, by mode; so --max-triangles and
+ * the per-byte limit, checked on the declared counts, hold for it), its vertex count the one
+ * the accessors declare, and what the decoder will allocate for them is charged to the budget
+ * before it runs; the decoded arrays are checked against the same counts before use.
+ */
 function decodeDraco(ctx: ReadContext, prim: any, ext: { bufferView: number; attributes: Record<string, number> }, where: string): Promise<DracoDecoded> {
   const semantics = Object.keys(ext.attributes).sort();
   const key = `${ext.bufferView}|${semantics.map((s) => `${s}=${ext.attributes[s]}=${prim.attributes[s]}`).join(',')}`;
   let pending = ctx.draco.get(key);
   if (!pending) {
+    const stream = ctx.views.bytes[ext.bufferView];
+    const header = readDracoHeader(stream, where);
+    const specs: AccessorSpec[] = [];
+    let decodedBytes = header.faces * 12;
+    for (const semantic of semantics) {
+      const index = prim.attributes[semantic];
+      const spec = checkAccessor(ctx.json, index, ctx.views, true);
+      const reason = checkAttributeFormat(semantic, spec.type, spec.componentType, spec.normalized, false, ctx.quantized);
+      if (reason) throw new TanframeError('bad-accessor', `${where}: accessor ${index}: ${reason}`);
+      const fits = header.method === 0 ? header.vertices === spec.count : header.vertices <= spec.count;
+      if (!fits) badDraco(`${where}: the ${DRACO} stream holds ${header.vertices} vertices but accessor ${index} (${semantic}) declares ${spec.count}`);
+      decodedBytes += spec.count * spec.itemSize * 4;
+      specs.push(spec);
+    }
+    const declared = prim.indices !== undefined ? checkAccessor(ctx.json, prim.indices, ctx.views, false).count : (specs[0]?.count ?? 0);
+    const triangles = triangleCount(prim.mode ?? MODE_TRIANGLES, declared);
+    if (header.faces !== triangles) badDraco(`${where}: the ${DRACO} stream holds ${header.faces} triangles but the primitive declares ${triangles}`);
+    chargeBudget(ctx.budget, decodedBytes, `${where} ${DRACO} data`);
     pending = (async () => {
-      const mesh = await decodeDracoPrimitive(ctx.views.bytes[ext.bufferView], ext.attributes, where);
+      const mesh = await decodeDracoPrimitive(stream, ext.attributes, where);
+      if (mesh.indices.length !== header.faces * 3) badDraco(`${where}: the ${DRACO} stream decodes to ${mesh.indices.length / 3} triangles, not the ${header.faces} its header declares`);
       const attributes: Record<string, AttributeData> = {};
-      for (const semantic of semantics) {
-        const index = prim.attributes[semantic];
-        const spec = checkAccessor(ctx.json, index, ctx.views, true);
-        const reason = checkAttributeFormat(semantic, spec.type, spec.componentType, spec.normalized, false, ctx.quantized);
-        if (reason) throw new TanframeError('bad-accessor', `${where}: accessor ${index}: ${reason}`);
+      semantics.forEach((semantic, i) => {
+        const spec = specs[i];
         const d = mesh.attributes[semantic];
         if (d.itemSize !== spec.itemSize || d.array.length !== spec.count * spec.itemSize) {
-          badGltf(`${where}: ${DRACO} attribute ${semantic} decodes to ${d.array.length / d.itemSize} x ${d.itemSize} values but accessor ${index} declares ${spec.count} x ${spec.itemSize}`);
+          badDraco(`${where}: ${DRACO} attribute ${semantic} decodes to ${d.array.length / d.itemSize} x ${d.itemSize} values but accessor ${spec.index} declares ${spec.count} x ${spec.itemSize}`);
         }
-        chargeBudget(ctx.budget, d.array.byteLength, `${where} ${DRACO} ${semantic}`);
         attributes[semantic] = { array: toAccessorType(d.array, spec), itemSize: spec.itemSize, type: spec.type, componentType: spec.componentType, normalized: spec.normalized };
-      }
-      chargeBudget(ctx.budget, mesh.indices.byteLength, `${where} ${DRACO} indices`);
+      });
       return { attributes, indices: mesh.indices };
     })();
     ctx.draco.set(key, pending);
@@ -529,7 +542,7 @@ function usesQuantization(json: any): boolean {
 /**
  * Decodes glTF or GLB bytes into an Asset. `sourcePath` names the file (its folder resolves
  * external URIs; '.glb' or the 'glTF' magic selects the GLB container). Throws TanframeError:
- * 'empty-file', 'bad-glb', 'bad-json', 'bad-gltf', 'bad-accessor', 'bad-index', 'bad-uri',
+ * 'empty-file', 'bad-glb', 'bad-json', 'bad-gltf', 'bad-accessor', 'bad-index', 'bad-draco', 'bad-uri',
  * 'missing-resource', 'read-failed', 'unsupported-format', 'unsupported-feature', 'too-large'
  * (also when the primitives declare more triangles than `limits` allow, checked before decoding).
  * External buffers and images come from `resources` (default: the files beside `sourcePath`).
@@ -538,7 +551,6 @@ export async function readGltfBytes(bytes: Uint8Array, sourcePath: string, limit
   if (bytes.length === 0) throw new TanframeError('empty-file', 'the file is empty (0 bytes)');
   const isGlb = looksLikeGlb(bytes) || path.extname(sourcePath).toLowerCase() === '.glb';
   const { json, bin } = isGlb ? parseGlb(bytes) : { json: parseGltfJson(bytes), bin: null };
-  checkJsonDepth(json);
   checkTopLevel(json);
   checkRequiredExtensions(json);
   const baseDir = path.dirname(path.resolve(sourcePath));

@@ -4,9 +4,9 @@
  * alignment, accessor bounds), 3.7.2 (mesh primitives: POSITION min/max required, index
  * component types, morph targets), 3.8.3 (images) and 4.4 (GLB); KHR_mesh_quantization.
  *
- * The JSON is deep-copied and edited in place, so every key keeps the input's order and
- * everything we do not touch (nodes, materials, animations, extras, unknown extensions)
- * is preserved verbatim. Accessors still referenced are kept, others dropped, and all
+ * The JSON members the encoder edits are deep-copied and edited in place, the others shared
+ * with the input, so every key keeps the input's order and everything we do not touch
+ * (nodes, materials, animations, extras, unknown extensions) is preserved verbatim. Accessors still referenced are kept, others dropped, and all
  * references renumbered. All binary data goes into one new buffer: kept buffer views are
  * copied, new accessors get their own tightly packed views; every view starts 4-byte
  * aligned. Replacement arrays shared between primitives (the same AttributeData or index
@@ -492,6 +492,26 @@ function replacementTargets(asset: Asset, replacements: Map<number, PrimitiveRep
 }
 
 /**
+ * Top-level members the encoder edits, directly or by renumbering the references they hold
+ * (gltfRefs.ts); every other member (materials, scenes, extras, unknown ones) is only read.
+ */
+const EDITED_MEMBERS = new Set(['meshes', 'accessors', 'bufferViews', 'buffers', 'images', 'skins', 'animations', 'nodes', 'extensionsUsed', 'extensionsRequired']);
+
+/**
+ * A copy of the input JSON to edit: the members the encoder edits deep-copied, the others
+ * shared with the input (never written to), so a file of large `extras` or materials is not
+ * held twice. Key order kept.
+ */
+function editableCopy(json: any): any {
+  const out: any = {};
+  for (const key of Object.keys(json)) {
+    const value = EDITED_MEMBERS.has(key) ? structuredClone(json[key]) : json[key];
+    Object.defineProperty(out, key, { value, enumerable: true, writable: true, configurable: true });
+  }
+  return out;
+}
+
+/**
  * Encodes `asset` with the given primitives (keys: indices into asset.primitives) replaced.
  * Returns the files to write, in a fixed order: for 'glb' one file (external images with known
  * bytes embedded, except ones of unknown image type, copied beside it); for 'gltf' the .gltf,
@@ -505,7 +525,7 @@ function replacementTargets(asset: Asset, replacements: Map<number, PrimitiveRep
  * Throws 'bad-gltf' for dangling references or empty replacements, 'too-large' past 4 GiB GLB.
  */
 export function encodeGltf(asset: Asset, replacements: Map<number, PrimitiveReplacement>, options: EncodeOptions): OutputFile[] {
-  const json = structuredClone(asset.json);
+  const json = editableCopy(asset.json);
   const targets = replacementTargets(asset, withDecodedDefaults(asset, replacements));
   const replaced = new Set(targets.map(([m, p]) => `${m}/${p}`));
   const state: EncodeState = {

@@ -10,6 +10,7 @@
 import type { Asset, AttributeData, PrimitiveData, PrimitiveReplacement } from '../mesh/asset.js';
 import { FLOAT } from '../mesh/asset.js';
 import { composeSource, gatherAttribute, toFloat32 } from '../mesh/decode.js';
+import { compactPrimitive, createCompactScratch, type CompactScratch } from '../mesh/compact.js';
 import { generateNormals } from '../mesh/normals.js';
 import { expandToTriangleList, isTriangleMode } from '../mesh/triangulate.js';
 import { computeFrames } from '../frames/computeFrames.js';
@@ -102,14 +103,19 @@ function targetFloats(a: AttributeData | undefined, k: number, genSource: Uint32
 /**
  * Solves one primitive. Returns its report, when its geometry changes the replacement, and
  * with `pictures` true and findings to show (hasFindings) its UV picture data (else null).
+ * An indexed primitive is first compacted to the vertices its indices reference (original
+ * order kept), so its cost and its output follow what it uses, not the size of a vertex
+ * buffer it shares; `scratch` (reused across an asset's primitives) makes that linear.
  * Degenerate geometry never throws: it is counted in the report.
  */
 export function solvePrimitive(
   asset: Asset,
-  p: PrimitiveData,
+  input: PrimitiveData,
   options: ProcessOptions,
   pictures = false,
+  scratch: CompactScratch = createCompactScratch(),
 ): { report: PrimitiveReport; replacement: PrimitiveReplacement | null; picture: UvPicture | null } {
+  let p = input;
   const report = emptyReport(p, options);
   const skip = (reason: string) => {
     report.skipReason = reason;
@@ -126,7 +132,9 @@ export function solvePrimitive(
   if (!need.needsTangents && !options.allPrimitives && asset.container !== 'obj') return skip('no-normal-texture');
   const uvAttr = p.attributes[`TEXCOORD_${uvSet}`];
   if (!uvAttr) return skip('no-texcoord');
-  const vertexCount = pos.array.length / 3;
+  p = compactPrimitive(scratch, p);
+  const vertexCount = p.attributes.POSITION.array.length / 3;
+  report.verticesIn = vertexCount;
   const tri = expandToTriangleList(p.mode, p.indices, vertexCount);
   const triangleCount = tri.length / 3;
   report.triangles = triangleCount;
@@ -134,8 +142,8 @@ export function solvePrimitive(
 
   const transform = solveTransform(need, uvSet);
   // The primitive's decoded input, once (diagnostics read these too).
-  const inputPositions = toFloat32(pos);
-  const inputUvs = toFloat32(uvAttr);
+  const inputPositions = toFloat32(p.attributes.POSITION);
+  const inputUvs = toFloat32(p.attributes[`TEXCOORD_${uvSet}`]);
   const normalAttr = p.attributes.NORMAL;
   const inputNormals = normalAttr ? toFloat32(normalAttr) : null;
   let positions = inputPositions;
@@ -219,15 +227,38 @@ export function solvePrimitive(
     positions, normals, uvs, indices, faces: p.faces,
     outIndices: frames.indices, outTangents: toFloat32(tangent), outCount: source.length,
   };
+  // Targets that name the same accessors (the same decoded arrays) are gathered and solved
+  // once and share their output arrays, so the writer shares their accessors too.
+  const gathered = new Map<AttributeData, AttributeData>();
+  const ids = new Map<AttributeData, number>();
+  const idOf = (a: AttributeData | undefined) => {
+    if (!a) return -1;
+    let id = ids.get(a);
+    if (id === undefined) ids.set(a, (id = ids.size));
+    return id;
+  };
+  const deltas = new Map<string, AttributeData | null>();
   const targets = p.targets.map((target) => {
     const out: Record<string, AttributeData> = {};
-    for (const name of Object.keys(target).sort()) if (name !== 'TANGENT') out[name] = gatherAttribute(target[name], source);
-    const delta = morphTangentDelta(base, {
-      positions: targetFloats(target.POSITION, 3, genSource),
-      normals: targetFloats(target.NORMAL, 3, genSource),
-      uvs: targetFloats(target[`TEXCOORD_${uvSet}`], 2, genSource),
-    }, { method: options.method, weight: options.weight, transform });
-    if (delta) out.TANGENT = floatAttribute(delta, 3);
+    for (const name of Object.keys(target).sort()) {
+      if (name === 'TANGENT') continue;
+      let g = gathered.get(target[name]);
+      if (!g) gathered.set(target[name], (g = gatherAttribute(target[name], source)));
+      out[name] = g;
+    }
+    const uvTarget = target[`TEXCOORD_${uvSet}`];
+    const key = `${idOf(target.POSITION)},${idOf(target.NORMAL)},${idOf(uvTarget)}`;
+    let delta = deltas.get(key);
+    if (delta === undefined) {
+      const d = morphTangentDelta(base, {
+        positions: targetFloats(target.POSITION, 3, genSource),
+        normals: targetFloats(target.NORMAL, 3, genSource),
+        uvs: targetFloats(uvTarget, 2, genSource),
+      }, { method: options.method, weight: options.weight, transform });
+      delta = d ? floatAttribute(d, 3) : null;
+      deltas.set(key, delta);
+    }
+    if (delta) out.TANGENT = delta;
     return out;
   });
   report.action = 'baked';
@@ -244,6 +275,7 @@ export function solveAsset(asset: Asset, options: ProcessOptions, pictures = fal
   const replacements = new Map<number, PrimitiveReplacement>();
   const shown: UvPicture[] = [];
   const solved = new Map<string, { report: PrimitiveReport; replacement: PrimitiveReplacement | null }>();
+  const scratch = createCompactScratch();
   for (let i = 0; i < asset.primitives.length; i++) {
     const p = asset.primitives[i];
     const key = shareKey(asset, p, options);
@@ -253,7 +285,7 @@ export function solveAsset(asset: Asset, options: ProcessOptions, pictures = fal
       if (earlier.replacement) replacements.set(i, earlier.replacement);
       continue;
     }
-    const r = solvePrimitive(asset, p, options, pictures);
+    const r = solvePrimitive(asset, p, options, pictures, scratch);
     primitives.push(r.report);
     const replacement = earlier ? earlier.replacement : r.replacement;
     if (replacement) replacements.set(i, replacement);

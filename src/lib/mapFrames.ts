@@ -13,6 +13,7 @@ import type { FrameMethod } from '../mesh/types.js';
 import { uvTransformOf } from '../mesh/uvTransform.js';
 import type { FrameSet, MapPart, MapSpace } from '../imaging/convert.js';
 import { solvePrimitive } from './bakeAsset.js';
+import { createCompactScratch, type CompactScratch } from '../mesh/compact.js';
 import { defaultProcessOptions } from './options.js';
 
 /** A primitive named on the command line: mesh index or name, primitive index. */
@@ -121,13 +122,13 @@ function parsePrimitiveRefs(asset: Asset, refs: PrimitiveRef[]): number[] {
  * no position, no triangles or no such TEXCOORD set.
  */
 export function primitiveFrameSet(
-  asset: Asset, p: PrimitiveData, method: FrameMethod, uvSet: number,
+  asset: Asset, p: PrimitiveData, method: FrameMethod, uvSet: number, scratch: CompactScratch = createCompactScratch(),
 ): { frames: FrameSet | null; skipReason: string | null; triangles: number } {
   const options = defaultProcessOptions();
   options.method = method;
   options.uv = uvSet;
   options.allPrimitives = true;
-  const solved = solvePrimitive(asset, p, options);
+  const solved = solvePrimitive(asset, p, options, false, scratch);
   const rep = solved.replacement;
   if (!rep) return { frames: null, skipReason: solved.report.skipReason ?? 'skipped', triangles: solved.report.triangles };
   const uvAttr = rep.attributes[`TEXCOORD_${uvSet}`];
@@ -177,6 +178,8 @@ export function mapPartsForAsset(asset: Asset, req: MapPartsRequest): MapParts {
   }
   const parts: MapPart[] = [];
   const primitives: MapPrimitiveInfo[] = [];
+  // One compaction scratch for all primitives (they may share one large vertex buffer).
+  const scratch = createCompactScratch();
   const skipped: string[] = [];
   for (const i of indices) {
     const p = asset.primitives[i];
@@ -184,11 +187,11 @@ export function mapPartsForAsset(asset: Asset, req: MapPartsRequest): MapParts {
     const info = infos.find((x) => sameImage(imageOfTextureInfo(asset.json, x), wanted)) ?? infos[0] ?? null;
     const uvSet = req.uv ?? (info ? texCoordOf(info) : 0);
     const xf = info ? uvTransformOf(info) : null;
-    const decode = req.from === 'tangent' ? primitiveFrameSet(asset, p, req.fromMethod, uvSet) : null;
+    const decode = req.from === 'tangent' ? primitiveFrameSet(asset, p, req.fromMethod, uvSet, scratch) : null;
     const encode = req.to !== 'tangent' ? null
-      : decode && req.toMethod === req.fromMethod ? decode : primitiveFrameSet(asset, p, req.toMethod, uvSet);
+      : decode && req.toMethod === req.fromMethod ? decode : primitiveFrameSet(asset, p, req.toMethod, uvSet, scratch);
     // Object -> object needs only the UV triangles.
-    const geometry = decode ?? encode ?? primitiveFrameSet(asset, p, req.toMethod, uvSet);
+    const geometry = decode ?? encode ?? primitiveFrameSet(asset, p, req.toMethod, uvSet, scratch);
     if (!geometry.frames || (decode && !decode.frames) || (encode && !encode.frames)) {
       skipped.push(`mesh ${p.mesh} primitive ${p.primitive}: ${(decode ?? encode ?? geometry).skipReason ?? 'skipped'}`);
       continue;

@@ -16,6 +16,7 @@ export type ErrorCode =
   | 'bad-gltf'
   | 'bad-accessor'
   | 'bad-index'
+  | 'bad-draco'
   | 'bad-uri'
   | 'missing-resource'
   | 'unsupported-feature'

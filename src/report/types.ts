@@ -38,6 +38,7 @@ export interface PrimitiveReport {
   /** Why a primitive was skipped: 'not-triangles', 'no-texcoord', 'no-normal-texture', 'no-position', 'empty'. */
   skipReason: string | null;
   triangles: number;
+  /** Vertices the primitive uses: those its indices reference (all when it has none); a skipped primitive's accessor count. */
   verticesIn: number;
   verticesOut: number;
   splitVertices: number;

@@ -35,7 +35,7 @@ const valuesExpected: Record<string, ValuesExpectation> = JSON.parse(fs.readFile
 /** Every code a report may carry (src/mesh/errors.ts), so a typo in expected.json cannot pass. */
 const KNOWN_CODES: ErrorCode[] = [
   'usage', 'unsupported-format', 'read-failed', 'empty-file', 'bad-glb', 'bad-json', 'bad-gltf', 'bad-accessor',
-  'bad-index', 'bad-uri', 'missing-resource', 'unsupported-feature', 'bad-obj', 'too-large', 'write-failed', 'timeout', 'internal',
+  'bad-index', 'bad-draco', 'bad-uri', 'missing-resource', 'unsupported-feature', 'bad-obj', 'too-large', 'write-failed', 'timeout', 'internal',
 ];
 
 function sha256(file: string): string {

@@ -47,6 +47,16 @@ describe('--file-timeout', () => {
   });
 });
 
+describe('--jobs', () => {
+  it('is capped at the cores available: more threads would only add memory', async () => {
+    const { threadCount } = await import('../../src/cli/batch.js');
+    const cores = os.availableParallelism();
+    expect(threadCount({ jobs: 100 })).toBe(Math.min(100, cores));
+    expect(threadCount({ jobs: 1 })).toBe(1);
+    expect(threadCount({})).toBe(cores);
+  });
+});
+
 describe('failure messages', () => {
   it('a reason quoting megabytes of hostile JSON is cut to one short line', async () => {
     // The reader quotes the offending value; here it is a 2 MB string.

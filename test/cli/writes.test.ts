@@ -255,4 +255,15 @@ describe('--file-timeout', () => {
     // The stopped file left no output and no temporary file.
     expect(listFiles(out)).toEqual(['b_small.glb']);
   });
+
+  it('holds for a single input too: the one file runs on a worker thread that is stopped', async () => {
+    const out = path.join(tmp, 'timeout-single-out');
+    const r = await runCli(['bake', bigInput, '-o', out, '--file-timeout', '0.5', '--json'], repo);
+    expect(r.code).toBe(3);
+    expect(r.stderr).toMatch(/^tanframe: .*big\.glb: stopped after 0\.5 s \(--file-timeout\)\n$/);
+    const file = JSON.parse(r.stdout).files[0];
+    expect(file.error.code).toBe('timeout');
+    expect(file.output).toBeNull();
+    expect(fs.existsSync(out) ? listFiles(out) : []).toEqual([]);
+  });
 });

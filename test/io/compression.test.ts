@@ -171,10 +171,29 @@ describe('KHR_draco_mesh_compression', () => {
     await expect(readGltf(await writeGlb(dir(), 'd', json, bin))).rejects.toMatchObject({ code: 'bad-gltf', message: expect.stringMatching(/COLOR_0 is not an attribute/) });
   });
 
+  it('refuses a stream holding more triangles than the primitive declares, from its header (before decoding)', async () => {
+    for (const method of ['sequential', 'edgebreaker'] as const) {
+      const { json, bin } = await dracoGltf(method);
+      json.accessors[3].count = 3;
+      await expect(readGltf(await writeGlb(dir(), 'd', json, bin))).rejects.toMatchObject({ code: 'bad-draco', message: expect.stringMatching(/stream holds 4 triangles but the primitive declares 1/) });
+    }
+  });
+
+  it('refuses a truncated stream header and a point cloud with bad-draco', async () => {
+    const { json, bin } = await dracoGltf('sequential');
+    json.bufferViews[0].byteLength = 9;
+    await expect(readGltf(await writeGlb(dir(), 'd', json, bin))).rejects.toMatchObject({ code: 'bad-draco', message: expect.stringMatching(/header is truncated/) });
+    const cloud = await dracoGltf('sequential');
+    // Source: Draco bitstream specification, header byte 7: encoder type (0 point cloud, 1 mesh).
+    cloud.bin[7] = 0;
+    await expect(readGltf(await writeGlb(dir(), 'd', cloud.json, cloud.bin))).rejects.toMatchObject({ code: 'bad-draco', message: expect.stringMatching(/point cloud/) });
+  });
+
   it('refuses a stream whose vertex count differs from the accessors', async () => {
     const { json, bin } = await dracoGltf('sequential');
     json.accessors[0].count = 5;
-    await expect(readGltf(await writeGlb(dir(), 'd', json, bin))).rejects.toMatchObject({ code: 'bad-gltf', message: expect.stringMatching(/decodes to 6 x 3 values but accessor 0 declares 5 x 3/) });
+    // Refused from the stream's header, before the decoder runs.
+    await expect(readGltf(await writeGlb(dir(), 'd', json, bin))).rejects.toMatchObject({ code: 'bad-draco', message: expect.stringMatching(/stream holds 6 vertices but accessor 0 \(POSITION\) declares 5/) });
   });
 });
 

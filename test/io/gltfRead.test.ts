@@ -391,7 +391,7 @@ describe('readGltf refuses bad files with the right code', () => {
     const { json, bin } = buildGltf([quad()], { extensionsUsed: ['KHR_draco_mesh_compression'] });
     json.bufferViews.push({ buffer: 0, byteOffset: 0, byteLength: 4 });
     json.meshes[0].primitives[0].extensions = { KHR_draco_mesh_compression: { bufferView: json.bufferViews.length - 1, attributes: { POSITION: 0 } } };
-    await expect(readGltf(await glbFile(glbBytes(json, bin)))).rejects.toMatchObject({ code: 'bad-gltf', message: expect.stringMatching(/KHR_draco_mesh_compression data does not decode/) });
+    await expect(readGltf(await glbFile(glbBytes(json, bin)))).rejects.toMatchObject({ code: 'bad-draco', message: expect.stringMatching(/KHR_draco_mesh_compression data does not decode/) });
   });
 
   it('glTF 1.0 and a missing asset.version', async () => {

@@ -246,3 +246,96 @@ describe.skipIf(!haveFifo)('pipes and devices are never read', () => {
   });
 });
 
+
+describe.skipIf(process.platform !== 'linux')('kernel pseudo-files are never read', () => {
+  // Found by review (issue 11): /proc/self/pagemap reports size 0 but reads as hundreds of
+  // gigabytes; behind a link named like a mesh it was read until memory ran out. Files of
+  // /proc and /sys are refused before a byte is read.
+  it('refuses inputs linked to /proc and /sys files', async () => {
+    const dir = path.join(root, `proc${counter++}`);
+    fs.mkdirSync(dir);
+    fs.symlinkSync('/proc/self/pagemap', path.join(dir, 'pagemap.glb'));
+    fs.symlinkSync('/proc/self/status', path.join(dir, 'status.gltf'));
+    for (const name of ['pagemap.glb', 'status.gltf']) {
+      const e = await refusal(readInputBytes(path.join(dir, name)));
+      expect(e.code).toBe('read-failed');
+      expect(e.message).toMatch(/not a regular file/);
+    }
+    const sys = fs.readdirSync('/sys/kernel').map((n) => path.join('/sys/kernel', n)).find((p) => fs.statSync(p, { throwIfNoEntry: false })?.isFile());
+    if (sys) {
+      fs.symlinkSync(sys, path.join(dir, 'sys.obj'));
+      expect((await refusal(readInputBytes(path.join(dir, 'sys.obj')))).code).toBe('read-failed');
+    }
+  });
+});
+
+describe('JSON errors and budget', () => {
+  // Found by review (issue 11): a JSON parse error quoted the text around the fault (any
+  // bytes, terminal escapes included) into the message.
+  it('a JSON parse error names the position and never quotes the text', async () => {
+    const dir = path.join(root, `json${counter++}`);
+    fs.mkdirSync(dir);
+    for (const text of ['{"asset": \u001b]0;owned\u0007}', '{"asset": {"version": "2.0"} x}', 'SECRET-BYTES']) {
+      const file = path.join(dir, 'a.gltf');
+      fs.writeFileSync(file, text);
+      const e = await refusal(readGltf(file));
+      expect(e.code).toBe('bad-json');
+      expect(e.message).not.toMatch(/\u001b|\u0007|owned|SECRET|"/);
+      const glb = path.join(dir, 'a.glb');
+      fs.writeFileSync(glb, glbBytesOfText(text));
+      const g = await refusal(readGltf(glb));
+      expect(g.code).toBe('bad-json');
+      expect(g.message).not.toMatch(/\u001b|\u0007|owned|SECRET|"/);
+    }
+  });
+
+  it('text of many tiny values is refused with too-large before it is parsed; glTF-like density passes', async () => {
+    // [{},{},...]: 3 bytes per object, about 19 times its size once parsed (see jsonBudget.ts).
+    const dense = new TextEncoder().encode(`{"asset":{"version":"2.0"},"extras":[${'{},'.repeat(4_000_000)}{}]}`);
+    const e = await refusal(readGltfBytes(dense, 'dense.gltf'));
+    expect(e.code).toBe('too-large');
+    expect(e.message).toMatch(/values in \d+ bytes/);
+    // The same size of nodes written the way exporters do ({"mesh":0} and a name) reads.
+    const nodes = `{"asset":{"version":"2.0"},"nodes":[${'{"name":"crate","mesh":0},'.repeat(500_000)}{}]}`;
+    const asset = await readGltfBytes(new TextEncoder().encode(nodes), 'nodes.gltf');
+    expect(asset.json.nodes).toHaveLength(500_001);
+  });
+
+  it('nesting deeper than 512 levels is refused from the bytes (also inside a GLB)', async () => {
+    const deep = `{"asset":{"version":"2.0"},"extras":${'['.repeat(600)}${']'.repeat(600)}}`;
+    expect((await refusal(readGltfBytes(new TextEncoder().encode(deep), 'deep.gltf'))).message).toMatch(/nests deeper than 512/);
+    expect((await refusal(readGltfBytes(glbBytesOfText(deep), 'deep.glb'))).code).toBe('bad-json');
+    // Brackets inside strings do not count.
+    const quoted = `{"asset":{"version":"2.0"},"extras":"${'['.repeat(600)}"}`;
+    expect((await readGltfBytes(new TextEncoder().encode(quoted), 'q.gltf')).json.extras).toHaveLength(600);
+  });
+});
+
+/** A GLB holding `text` as its JSON chunk (glTF 2.0 specification, 4.4: header, JSON chunk padded with spaces). */
+function glbBytesOfText(text: string): Uint8Array {
+  const t = new TextEncoder().encode(text);
+  const len = (t.length + 3) & ~3;
+  const out = new Uint8Array(20 + len).fill(0x20, 20);
+  const dv = new DataView(out.buffer);
+  dv.setUint32(0, 0x46546c67, true);
+  dv.setUint32(4, 2, true);
+  dv.setUint32(8, out.length, true);
+  dv.setUint32(12, len, true);
+  dv.setUint32(16, 0x4e4f534a, true);
+  out.set(t, 20);
+  return out;
+}
+
+describe.skipIf(!haveFifo)('planning reads references as safely as the readers', () => {
+  // Found while merging the write plan (issue 11): listing an input's references opened a
+  // named pipe without O_NONBLOCK (waiting for a writer) and parsed JSON without the budget.
+  it('a pipe named like a GLB and JSON past the budget give no references, at once', async () => {
+    const { listAssetReferences } = await import('../../src/io/assetRefs.js');
+    const dir = path.join(root, `plan${counter++}`);
+    fs.mkdirSync(dir);
+    expect(mkfifo(path.join(dir, 'a.glb'))).toBe(true);
+    expect(await listAssetReferences(path.join(dir, 'a.glb'))).toBeNull();
+    fs.writeFileSync(path.join(dir, 'dense.gltf'), `{"asset":{"version":"2.0"},"extras":[${'{},'.repeat(4_000_000)}{}]}`);
+    expect(await listAssetReferences(path.join(dir, 'dense.gltf'))).toBeNull();
+  });
+});

@@ -67,7 +67,7 @@ function grid() {
   return { positions, normals, uvs, dPos, dNrm, dPosOnly, staleTangent, indices: Uint16Array.from(idx) };
 }
 
-async function writeMorphingGrid(dir: string): Promise<{ file: string; g: ReturnType<typeof grid> }> {
+async function writeMorphingGrid(dir: string, copiesOfBump = 0): Promise<{ file: string; g: ReturnType<typeof grid> }> {
   const g = grid();
   const b = new GltfBuilder();
   b.addPrimitive({
@@ -87,6 +87,13 @@ async function writeMorphingGrid(dir: string): Promise<{ file: string; g: Return
   const json = b.json;
   json.meshes[0].weights = [0, 0, 0];
   json.meshes[0].extras = { targetNames: ['bump', 'shear', 'shear with a stale tangent'] };
+  // Further targets naming the bump's own accessors (exporters write one per animation clip).
+  const prim = json.meshes[0].primitives[0];
+  for (let i = 0; i < copiesOfBump; i++) {
+    prim.targets.push({ ...prim.targets[0] });
+    json.meshes[0].weights.push(0);
+    json.meshes[0].extras.targetNames.push(`bump ${i + 2}`);
+  }
   const png = encodePngRgba8(1, 1, new Uint8Array([128, 128, 255, 255]));
   json.images = [{ uri: `data:image/png;base64,${Buffer.from(png).toString('base64')}` }];
   json.textures = [{ source: 0 }];
@@ -167,6 +174,27 @@ describe('morph target TANGENT deltas', () => {
     expect(Object.keys(targets[2])).toEqual(['POSITION']);
     expect(baked.json.meshes[0].weights).toEqual([0, 0, 0]);
     expect(baked.json.meshes[0].extras.targetNames).toHaveLength(3);
+    // Source: Khronos gltf-validator.
+    const v = await validateGltfFile(out);
+    expect(v.errors, v.messages.join('\n')).toBe(0);
+  });
+
+  it('targets naming the same accessors are solved once and share their written accessors', async () => {
+    const dir = path.join(root, 'copies');
+    const { file } = await writeMorphingGrid(dir, 3);
+    const single = path.join(dir, 'single');
+    const { file: one } = await writeMorphingGrid(single);
+    const out = path.join(dir, 'out.glb');
+    const outOne = path.join(single, 'out.glb');
+    expect((await runCli(['bake', file, '-o', out], dir)).code).toBe(0);
+    expect((await runCli(['bake', one, '-o', outOne], single)).code).toBe(0);
+    const baked = await readGltf(out);
+    const targets = baked.json.meshes[0].primitives[0].targets;
+    expect(targets).toHaveLength(6);
+    for (const t of targets.slice(3)) expect(t).toEqual(targets[0]);
+    // As many accessors as the file with the bump target alone: the copies add none.
+    expect(baked.json.accessors).toHaveLength((await readGltf(outOne)).json.accessors.length);
+    expect(Array.from(baked.primitives[0].targets[5].TANGENT.array)).toEqual(Array.from(baked.primitives[0].targets[0].TANGENT.array));
     // Source: Khronos gltf-validator.
     const v = await validateGltfFile(out);
     expect(v.errors, v.messages.join('\n')).toBe(0);

@@ -111,3 +111,54 @@ describe('accessors shared between primitives', () => {
     expect((await validateGltfFile(out)).errors).toBe(0);
   });
 });
+
+// Two quads packed into one shared vertex buffer of 8 vertices (exporters that pack a scene
+// into one buffer write this); primitive A indexes vertices 0..3, primitive B 4..7, and a
+// third primitive C repeats A's index accessor:
+//   3 -- 2   7 -- 6
+//   |  / |   |  / |      B lies at x + 2, z = 1
+//   0 -- 1   4 -- 5
+describe('primitives over slices of one shared vertex buffer', () => {
+  async function packedFile(): Promise<string> {
+    const b = new GltfBuilder();
+    const pos = new Float32Array([...POS, ...Array.from(POS, (v, i) => (i % 3 === 0 ? v + 2 : i % 3 === 2 ? 1 : v))]);
+    const nrm = new Float32Array([...NRM, ...NRM]);
+    const uv = new Float32Array([...UV0, ...UV0]);
+    b.addPrimitive({
+      attributes: { POSITION: { array: pos, type: 'VEC3' }, NORMAL: { array: nrm, type: 'VEC3' }, TEXCOORD_0: { array: uv, type: 'VEC2' } },
+      indices: IDX,
+      material: 0,
+    });
+    const first = b.json.meshes[0].primitives[0];
+    const idxB = b.addAccessorObject({ ...b.json.accessors[first.indices] });
+    const view = b.addView(new Uint8Array(new Uint16Array(Array.from(IDX, (i) => i + 4)).buffer));
+    b.json.accessors[idxB].bufferView = view;
+    b.json.accessors[idxB].byteOffset = 0;
+    b.json.meshes[0].primitives.push({ ...structuredClone(first), indices: idxB }, structuredClone(first));
+    const png = encodePngRgba8(1, 1, new Uint8Array([128, 128, 255, 255]));
+    b.json.images = [{ uri: `data:image/png;base64,${Buffer.from(png).toString('base64')}` }];
+    b.json.textures = [{ source: 0 }];
+    b.json.materials = [{ normalTexture: { index: 0 } }];
+    const { json, bin } = b.build();
+    return writeGlb(path.join(root, `case${n++}`), 'packed', json, bin);
+  }
+
+  it('each primitive is baked over the vertices it references, in their order; one sharing the index range shares the solve', async () => {
+    const { asset, out, report } = await bake(await packedFile());
+    const [a, b, c] = asset.json.meshes[0].primitives;
+    // Each output holds its own 4 vertices, not the 8 of the shared buffer.
+    expect(asset.primitives[0].attributes.POSITION.array).toEqual(POS);
+    expect(Array.from(asset.primitives[1].attributes.POSITION.array.subarray(0, 3))).toEqual([2, 0, 1]);
+    expect(asset.primitives[1].attributes.POSITION.array.length).toBe(12);
+    expect(Array.from(asset.primitives[1].indices!)).toEqual(Array.from(IDX));
+    expect(report.files[0].primitives.map((p: any) => p.verticesIn)).toEqual([4, 4, 4]);
+    // A and C name the same accessors: one solve, shared written accessors; B has its own.
+    expect(c.attributes).toEqual(a.attributes);
+    expect(c.indices).toBe(a.indices);
+    expect(b.attributes.POSITION).not.toBe(a.attributes.POSITION);
+    expect(frame(asset, 1)).toEqual([1, 0, 0, 1]);
+    // Source: Khronos gltf-validator.
+    const v = await validateGltfFile(out);
+    expect(v.errors).toBe(0);
+  });
+});
