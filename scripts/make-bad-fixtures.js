@@ -5,7 +5,9 @@
  *                     fixtures/bad/expected.json mapping each file to the error code it must get;
  *   fixtures/values/  files with hostile *values* (NaN, infinities, zero normals, degenerate or
  *                     empty primitives, missing textures) that must be processed, not refused,
- *                     and fixtures/values/expected.json saying what each must report.
+ *                     and fixtures/values/expected.json saying what each must report;
+ *   fixtures/maps/    normal maps (and meshes) `convert-map` must refuse, and
+ *                     fixtures/maps/expected.json mapping each map to its code (and its mesh).
  *
  * Based on: glTF 2.0 specification (3.6 buffers, buffer views and accessors, 3.7 meshes,
  * 3.9 materials, 4.4 GLB file format), RFC 2397 (data: URIs), RFC 3986 (percent-encoding),
@@ -26,6 +28,7 @@ const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..'
 const fixturesDir = path.resolve(process.argv[2] ?? path.join(repoRoot, 'fixtures'));
 const badDir = path.join(fixturesDir, 'bad');
 const valuesDir = path.join(fixturesDir, 'values');
+const mapsDir = path.join(fixturesDir, 'maps');
 
 // ---------------------------------------------------------------------------------------------
 // A tiny PNG (1x1 RGB, the flat tangent-space normal 128,128,255) for the normal texture.
@@ -490,6 +493,125 @@ addValues('obj-degenerate-uvs.obj', 'v 0 0 0\nv 1 0 0\nv 1 1 0\nv 0 1 0\nvt 0.5 
 });
 
 // ---------------------------------------------------------------------------------------------
+// Cost classes (bounded cost): small cases of structures that once cost quadratic time or
+// unbounded memory, and strings from files holding terminal control characters.
+
+// A face split over continued lines ("\" at the end of a line), then a chain of empty ones.
+addValues('obj-continued-lines.obj', `${OBJ_QUAD.replace('f 1/1/1 2/2/1 3/3/1 4/4/1\n', 'f 1/1/1 \\\n2/2/1 \\  \r\n3/3/1 \\\n4/4/1 ')}${'\\\n'.repeat(200)}\n`, {
+  exit: 0, action: 'baked', counts: { triangles: 2 }, validatorAllows: [],
+});
+{
+  // 64 triangles on the same three positions, each with its own three texture coordinates
+  // (side by side in UV): 64 corners per position, de-duplicated through a hash.
+  const parts = ['v 0 0 0\nv 1 0 0\nv 0 1 0\nvn 0 0 1\n'];
+  for (let k = 0; k < 64; k++) parts.push(`vt ${k / 64} 0\nvt ${(k + 0.9) / 64} 0\nvt ${k / 64} 0.5\n`);
+  for (let k = 0; k < 64; k++) parts.push(`f 1/${3 * k + 1}/1 2/${3 * k + 2}/1 3/${3 * k + 3}/1\n`);
+  addValues('obj-many-uvs-one-position.obj', parts.join(''), { exit: 0, action: 'baked', counts: { triangles: 64, uvOverlap: 0 }, validatorAllows: [] });
+}
+// 300 unknown texture options on one MTL line: 100 warnings listed, the rest counted.
+addValues('obj-many-warnings.obj', `mtllib obj-many-warnings.mtl\nusemtl panel\n${OBJ_QUAD}`, {
+  exit: 0, action: 'baked', warning: 'more warnings not listed', counts: {}, validatorAllows: ['IO_ERROR'],
+});
+addValues('obj-many-warnings.mtl', `newmtl panel\nnorm ${'-x '.repeat(300)}missing_normal.png\n`, null);
+// Eight copies of the quad, copy k moved by k * 1e-6 in UV (near-stacked, not exact copies).
+{
+  const K = 8;
+  const positions = new Float32Array(K * 12), normals = new Float32Array(K * 12), uvs = new Float32Array(K * 8), indices = new Uint16Array(K * 6);
+  const quadUv = [0, 1, 1, 1, 1, 0, 0, 0];
+  for (let k = 0; k < K; k++) {
+    positions.set([0, 0, k * 0.01, 1, 0, k * 0.01, 1, 1, k * 0.01, 0, 1, k * 0.01], k * 12);
+    normals.set([0, 0, 1, 0, 0, 1, 0, 0, 1, 0, 0, 1], k * 12);
+    for (let i = 0; i < 8; i++) uvs[k * 8 + i] = quadUv[i] * 0.5 + 0.25 + (i % 2 === 0 ? k * 1e-6 : k * 0.7e-6);
+    indices.set([0, 1, 2, 0, 2, 3].map((x) => x + 4 * k), k * 6);
+  }
+  const a = asset({ positions, normals, uvs, indices });
+  addValues('near-stacked-uv-copies.gltf', gltfEmbedded(a.json, a.bin), { exit: 0, action: 'baked', counts: { uvOverlap: 16 }, validatorAllows: [] });
+}
+// Terminal control characters (ESC, OSC, BEL, a newline) in names and versions.
+{
+  const a = edited((j) => { j.meshes[0].name = 'hull\u001b]0;owned\u0007\u001b[2J\n'; });
+  addValues('control-characters-mesh-name.gltf', gltfEmbedded(a.json, a.bin), { exit: 0, action: 'baked', counts: {}, validatorAllows: [] });
+}
+badGltf('control-characters-extension.gltf', 'unsupported-feature', 'a required extension whose name holds ESC, OSC and BEL', (j) => {
+  j.extensionsUsed = ['EXT_\u001b]0;owned\u0007\u001b[2J'];
+  j.extensionsRequired = ['EXT_\u001b]0;owned\u0007\u001b[2J'];
+});
+badGltf('control-characters-version.gltf', 'bad-gltf', 'asset.version holding ESC and a newline', (j) => { j.asset.version = '2.0\u001b[2J\ntanframe: forged line'; });
+
+// ---------------------------------------------------------------------------------------------
+// convert-map inputs: PNG faults (PNG specification 5.3, 5.6, 11.2) and a texel budget breach.
+
+const maps = new Map(); // file name -> { bytes, expect } (expect null: a helper file)
+function addMap(name, bytes, expect) {
+  if (maps.has(name)) throw new Error(`duplicate fixture ${name}`);
+  maps.set(name, { bytes: typeof bytes === 'string' ? Buffer.from(bytes, 'utf8') : Buffer.from(bytes), expect });
+}
+
+/** Bits into bytes, least significant bit first (RFC 1951 3.1.1). */
+class BitWriter {
+  constructor() { this.bytes = []; this.cur = 0; this.n = 0; }
+  bit(b) { this.cur |= b << this.n; if (++this.n === 8) { this.bytes.push(this.cur); this.cur = 0; this.n = 0; } }
+  bits(value, count) { for (let i = 0; i < count; i++) this.bit((value >> i) & 1); }
+  /** A Huffman code: most significant bit first (RFC 1951 3.1.1). */
+  code(value, length) { for (let i = length - 1; i >= 0; i--) this.bit((value >> i) & 1); }
+  done() { if (this.n > 0) this.bytes.push(this.cur); return Buffer.from(this.bytes); }
+}
+
+/**
+ * A zlib stream that inflates to `total` zero bytes in a few bytes per 258: one fixed-Huffman
+ * block, a literal 0, then copies of length 258 at distance 1 (RFC 1951 3.2.6: literal 0 is
+ * 00110000, length code 285 is 11000101, distance code 0 is 00000, end of block 0000000).
+ */
+function zlibZeros(total) {
+  const w = new BitWriter();
+  w.bits(1, 1); // BFINAL
+  w.bits(1, 2); // BTYPE 01: fixed Huffman codes
+  w.code(0x30, 8); // literal 0
+  let left = total - 1;
+  while (left >= 258) { w.code(0xc5, 8); w.code(0, 5); left -= 258; }
+  for (; left > 0; left--) w.code(0x30, 8);
+  w.code(0, 7); // end of block
+  const a = 1, b = total % 65521; // Adler-32 of zeros: a stays 1, b grows by 1 per byte
+  const adler = Buffer.alloc(4);
+  adler.writeUInt32BE(((b << 16) | a) >>> 0);
+  return Buffer.concat([Buffer.from([0x78, 0x01]), w.done(), adler]);
+}
+
+function ihdrOf(width, height, depth = 8, colourType = 2) {
+  const h = Buffer.alloc(13);
+  h.writeUInt32BE(width, 0);
+  h.writeUInt32BE(height, 4);
+  h[8] = depth;
+  h[9] = colourType;
+  return h;
+}
+const IEND = pngChunk('IEND', Buffer.alloc(0));
+
+// 1 x 1 RGB declares 4 bytes of scanlines; this stream inflates to 1 MiB.
+addMap('png-bomb.png', Buffer.concat([PNG_SIGNATURE, pngChunk('IHDR', ihdrOf(1, 1)), pngChunk('IDAT', zlibZeros(1 << 20)), IEND]),
+  { code: 'bad-png', fault: 'IHDR says 1 x 1, the image data inflates to 1 MiB' });
+addMap('png-ihdr-not-first.png', Buffer.concat([PNG_SIGNATURE, pngChunk('tEXt', Buffer.from('Comment\0harbour')), PNG.subarray(8)]),
+  { code: 'bad-png', fault: 'a tEXt chunk before IHDR' });
+{
+  const b = Buffer.from(PNG);
+  b[8 + 8 + 13] ^= 0xff; // IHDR's CRC
+  addMap('png-bad-crc.png', b, { code: 'bad-png', fault: 'the IHDR chunk CRC does not match' });
+}
+addMap('png-unknown-critical-chunk.png', Buffer.concat([PNG.subarray(0, 33), pngChunk('QUUX', Buffer.alloc(4)), PNG.subarray(33)]),
+  { code: 'bad-png', fault: 'an unknown critical chunk QUUX' });
+addMap('png-data-short.png', Buffer.concat([PNG_SIGNATURE, pngChunk('IHDR', ihdrOf(4, 4)), pngChunk('IDAT', zlibStored([0, 128, 128, 255])), IEND]),
+  { code: 'bad-png', fault: '4 of the 52 bytes of scanlines a 4 x 4 RGB image holds' });
+{
+  // A flat 64 x 64 map and a quad whose UVs wrap over 32 x 32 tiles: 64 times the map's texels.
+  const side = 64;
+  const raw = [];
+  for (let y = 0; y < side; y++) { raw.push(0); for (let x = 0; x < side; x++) raw.push(128, 128, 255); }
+  // Stored blocks hold at most 65535 bytes; this image is 12,352.
+  addMap('flat-64.png', Buffer.concat([PNG_SIGNATURE, pngChunk('IHDR', ihdrOf(side, side)), pngChunk('IDAT', zlibStored(raw)), IEND]), null);
+  addMap('uv-tiles-32x32.obj', 'v 0 0 0\nv 1 0 0\nv 1 1 0\nv 0 1 0\nvt 0 0.05\nvt 31.9 0.05\nvt 31.9 31.95\nvt 0 31.95\nvn 0 0 1\nf 1/1/1 2/2/1 3/3/1\nf 1/1/1 3/3/1 4/4/1\n',
+    { code: 'too-large', fault: 'two triangles wrapping over 32 x 32 UV tiles (texel budget)', map: 'flat-64.png' });
+}
+
 // Cost faults (issue 11): structures that used to cost far more than their bytes
 
 {
@@ -559,4 +681,8 @@ const valuesManifest = {};
 for (const [name, e] of [...values].sort(([a], [b]) => (a < b ? -1 : 1))) if (e.expect) valuesManifest[name] = e.expect;
 writeAll(valuesDir, values, valuesManifest);
 
-console.log(`wrote ${bad.size} files to ${path.relative(process.cwd(), badDir) || '.'} and ${values.size} to ${path.relative(process.cwd(), valuesDir) || '.'}`);
+const mapsManifest = {};
+for (const [name, e] of [...maps].sort(([a], [b]) => (a < b ? -1 : 1))) if (e.expect) mapsManifest[name] = e.expect;
+writeAll(mapsDir, maps, mapsManifest);
+
+console.log(`wrote ${maps.size} files to ${path.relative(process.cwd(), mapsDir) || '.'}, ${bad.size} files to ${path.relative(process.cwd(), badDir) || '.'} and ${values.size} to ${path.relative(process.cwd(), valuesDir) || '.'}`);

@@ -40,7 +40,7 @@ export async function runAudit(inputs: string[], o: Record<string, any>, io: Cli
   // Audit writes no meshes: the plan holds the report files and --uv-maps, checked against every input and what it references.
   const run = await planRun({ cwd: io.cwd, inputs: expanded.files.map((f) => f.path), meshes: [], ...namedWrites(o, io) });
   const batch = await runBatch(jobs, options, o, io, run.plan);
-  reports.push(...batch.reports);
+  for (const r of batch.reports) reports.push(r); // no spread: a batch may hold any number of files
   const seconds = (performance.now() - started) / 1000;
   const report = buildReport('audit', toolVersion(), options.method, reportOptions(o), sortReports(reports), seconds);
   const writeFailures = batch.writeFailures + (await writeReportFiles(report, o, io, batch.pictures, run.files)) + (await emitReport(report, o, io, run.files));

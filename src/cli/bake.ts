@@ -113,7 +113,7 @@ export async function runBake(inputs: string[], o: Record<string, any>, io: CliI
     });
   }
   const batch = await runBatch(jobs, options, o, io, run.plan);
-  reports.push(...batch.reports);
+  for (const r of batch.reports) reports.push(r); // no spread: a batch may hold any number of files
   const seconds = (performance.now() - started) / 1000;
   const report = buildReport('bake', toolVersion(), options.method, reportOptions(o), sortReports(reports), seconds);
   const writeFailures = batch.writeFailures + (await writeReportFiles(report, o, io, batch.pictures, run.files)) + (await emitReport(report, o, io, run.files));

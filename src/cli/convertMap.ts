@@ -6,6 +6,7 @@
 import * as path from 'node:path';
 import { Command, InvalidArgumentError, Option } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
+import { cleanText } from '../mesh/text.js';
 import type { FrameMethod } from '../mesh/types.js';
 import { readInputBytes, writeFilesAtomic } from '../io/files.js';
 import { convertNormalMap, flipGreen, MAX_PADDING, type GreenDirection, type MapSpace } from '../imaging/convert.js';
@@ -123,7 +124,7 @@ export async function runConvertMap(o: Record<string, any>, io: CliIo): Promise<
     const selection = inFile(o.mesh, () => mapPartsForAsset(asset, {
       imageName: path.basename(inAbs), from, to, fromMethod, toMethod, uv: o.uv ?? null, primitives: o.meshPrimitive ?? null,
     }));
-    if (!o.quiet) for (const s of selection.skipped) io.stderr(`tanframe: ${o.mesh}: skipped ${s}\n`);
+    if (!o.quiet) for (const s of selection.skipped) io.stderr(`tanframe: ${cleanText(o.mesh)}: skipped ${cleanText(s)}\n`);
     const showProgress = texels >= PROGRESS_MIN_TEXELS && progressWanted(!!io.stderrIsTTY, io.env, o);
     let last = -Infinity, drawn = false;
     const onProgress = showProgress
@@ -155,7 +156,7 @@ export async function runConvertMap(o: Record<string, any>, io: CliIo): Promise<
       (s.skippedTriangles > 0 ? `, ${n(s.skippedTriangles)} triangles skipped (UVs not finite or too large)` : '');
   }
   const showWrite = texels >= PROGRESS_MIN_TEXELS && progressWanted(!!io.stderrIsTTY, io.env, o);
-  if (showWrite) io.stderr(`\r\u001b[2Ktanframe convert-map: writing ${o.out}`);
+  if (showWrite) io.stderr(`\r\u001b[2Ktanframe convert-map: writing ${cleanText(o.out)}`);
   try {
     const bytes = encodePng(result);
     await inFileAsync(o.out, () => writeFilesAtomic([{ path: outAbs, bytes }]));
@@ -163,6 +164,6 @@ export async function runConvertMap(o: Record<string, any>, io: CliIo): Promise<
     if (showWrite) io.stderr('\r\u001b[2K');
   }
   const seconds = (performance.now() - started) / 1000;
-  if (!o.quiet) io.stdout(`convert-map: ${o.in} -> ${o.out}: ${summary}, ${seconds.toFixed(2)} s\n`);
+  if (!o.quiet) io.stdout(`convert-map: ${cleanText(o.in)} -> ${cleanText(o.out)}: ${summary}, ${seconds.toFixed(2)} s\n`);
   return 0;
 }

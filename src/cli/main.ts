@@ -5,6 +5,7 @@
  */
 import { Command, CommanderError } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
+import { cleanText } from '../mesh/text.js';
 import { registerAudit } from './audit.js';
 import { registerBake } from './bake.js';
 import { registerConvertMap } from './convertMap.js';
@@ -63,11 +64,11 @@ export async function main(argv: string[], io: CliIo = processIo()): Promise<num
       return 2;
     }
     if (err instanceof TanframeError) {
-      io.stderr(`tanframe: ${err.message}\n`);
+      io.stderr(`tanframe: ${cleanText(err.message)}\n`);
       return err.code === 'write-failed' ? 3 : 2;
     }
     const e = err as Error;
-    io.stderr(`tanframe: internal error: ${e?.message ?? String(err)}\n`);
+    io.stderr(`tanframe: internal error: ${cleanText(e?.message ?? String(err))}\n`);
     if (debug && e?.stack) io.stderr(e.stack + '\n');
     return 2;
   }

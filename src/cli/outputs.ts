@@ -4,6 +4,7 @@
  */
 import * as path from 'node:path';
 import { writeFilesAtomic } from '../io/files.js';
+import { cleanText } from '../mesh/text.js';
 import type { RunRequest, WritePlan } from '../lib/writePlan.js';
 import { renderHtml, type HtmlPicture } from '../report/html.js';
 import { renderJunit } from '../report/junit.js';
@@ -29,7 +30,7 @@ export function namedWrites(o: Record<string, any>, io: CliIo): Pick<RunRequest,
 /** One line on stderr for a file that could not be written: `tanframe: <what>: <reason>`. */
 export function writeFailure(io: CliIo, what: string, err: unknown): void {
   const reason = String((err as Error)?.message ?? err).split('\n')[0];
-  io.stderr(`tanframe: ${what}: ${reason}\n`);
+  io.stderr(`tanframe: ${cleanText(what)}: ${cleanText(reason)}\n`);
 }
 
 /**

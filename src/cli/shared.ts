@@ -7,6 +7,7 @@ import * as path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { Command, InvalidArgumentError, Option } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
+import { cleanText, jsonText } from '../mesh/text.js';
 import { GATE_NAMES, defaultProcessOptions, type GateName, type ProcessOptions } from '../lib/options.js';
 import { writeFilesAtomic } from '../io/files.js';
 import { DEFAULT_MAX_TRIANGLES } from '../io/limits.js';
@@ -162,19 +163,19 @@ export function exitStatus(files: FileReport[], writeFailures = 0): number {
  */
 export async function emitReport(report: Report, o: Record<string, any>, io: CliIo, planned?: Map<string, string>): Promise<number> {
   for (const f of report.files) {
-    if (f.status === 'failed') io.stderr(`tanframe: ${f.input}: ${f.error?.message ?? 'failed'}\n`);
+    if (f.status === 'failed') io.stderr(`tanframe: ${cleanText(f.input)}: ${cleanText(f.error?.message ?? 'failed')}\n`);
   }
   let failed = 0;
   if (o.report) {
     const target = planned?.get('--report') ?? path.resolve(io.cwd, o.report);
     try {
-      await writeFilesAtomic([{ path: target, bytes: new TextEncoder().encode(JSON.stringify(report, null, 2) + '\n') }]);
+      await writeFilesAtomic([{ path: target, bytes: new TextEncoder().encode(jsonText(report) + '\n') }]);
     } catch (err) {
-      io.stderr(`tanframe: --report ${o.report}: ${String((err as Error)?.message ?? err).split('\n')[0]}\n`);
+      io.stderr(`tanframe: --report ${cleanText(String(o.report))}: ${cleanText(String((err as Error)?.message ?? err).split('\n')[0]!)}\n`);
       failed = 1;
     }
   }
-  if (o.json) io.stdout(JSON.stringify(report, null, 2) + '\n');
+  if (o.json) io.stdout(jsonText(report) + '\n');
   else if (!o.quiet) io.stdout(renderSummary(report, { color: io.isTTY && !io.env.NO_COLOR }));
   if (o.annotate === 'github') io.stdout(renderGithubAnnotations(report));
   return failed;

@@ -30,7 +30,7 @@ export interface UvOverlapStats {
   cellsV: number;
   /** Triangles entered into the grid (finite, non-degenerate UVs). */
   gridTriangles: number;
-  /** Pairs of triangles met in the grid's cells (the broad phase's own work). */
+  /** Pairs of triangles the broad phase looked at in the grid's cells (its own work; pairs of two marked triangles are not visited). */
   cellPairs: number;
   /** Candidate pairs given to the exact triangle-triangle test. */
   exactTests: number;
@@ -187,46 +187,83 @@ export function findUvOverlaps(
   }
 
   // Pairs within each cell; a pair is tested only in the cell of the lower-left corner of
-  // the intersection of its bounding boxes, so once over the whole grid.
-  let exactTests = 0, cellPairs = 0;
+  // the intersection of its bounding boxes, so once over the whole grid. A pair of two
+  // triangles already known to overlap something teaches nothing, so for an already-marked
+  // triangle only the cell's still-unmarked later entries are visited: `live` holds them,
+  // compacted as they get marked. Near-stacked copies (offset by a little, so not exact copies)
+  // all mark each other in the first pass, and the cell then costs its length, not its square.
+  let maxRow = 0;
+  for (let c = 0; c < cellCount; c++) if (cellStart[c + 1] - cellStart[c] > maxRow) maxRow = cellStart[c + 1] - cellStart[c];
+  const live = new Uint32Array(maxRow);
+  const counts = new Float64Array(2); // exact tests, pairs visited
   for (let c = 0; c < cellCount; c++) {
     const start = cellStart[c], end = cellStart[c + 1];
     if (end - start < 2) continue;
-    cellPairs += ((end - start) * (end - start - 1)) / 2;
     const cu = c % nu, cv = (c - cu) / nu;
+    let liveN = 0;
+    for (let k = start; k < end; k++) live[liveN++] = k;
     for (let i = start; i < end - 1; i++) {
       const a = entries[i];
-      const aMinU = box[a * 4], aMinV = box[a * 4 + 1], aMaxU = box[a * 4 + 2], aMaxV = box[a * 4 + 3];
-      const a0 = indices[a * 3] * 2, a1 = indices[a * 3 + 1] * 2, a2 = indices[a * 3 + 2] * 2;
-      const au0 = uvs[a0], av0 = uvs[a0 + 1], au1 = uvs[a1], av1 = uvs[a1 + 1], au2 = uvs[a2], av2 = uvs[a2 + 1];
-      for (let j = i + 1; j < end; j++) {
-        const b = entries[j];
-        if (flags[a] !== 0 && flags[b] !== 0) continue; // nothing left to learn from this pair
-        const bMinU = box[b * 4], bMinV = box[b * 4 + 1], bMaxU = box[b * 4 + 2], bMaxV = box[b * 4 + 3];
-        // Boxes that only touch cannot overlap with positive area.
-        if (bMinU >= aMaxU || aMinU >= bMaxU || bMinV >= aMaxV || aMinV >= bMaxV) continue;
-        const ru = aMinU > bMinU ? aMinU : bMinU, rv = aMinV > bMinV ? aMinV : bMinV;
-        if (cellOf(ru, minU, inv, nu) !== cu || cellOf(rv, minV, inv, nv) !== cv) continue;
-        const b0 = indices[b * 3] * 2, b1 = indices[b * 3 + 1] * 2, b2 = indices[b * 3 + 2] * 2;
-        const bu0 = uvs[b0], bv0 = uvs[b0 + 1], bu1 = uvs[b1], bv1 = uvs[b1 + 1], bu2 = uvs[b2], bv2 = uvs[b2 + 1];
-        if (
-          hasPoint(au0, av0, bu0, bv0, bu1, bv1, bu2, bv2) &&
-          hasPoint(au1, av1, bu0, bv0, bu1, bv1, bu2, bv2) &&
-          hasPoint(au2, av2, bu0, bv0, bu1, bv1, bu2, bv2)
-        ) continue; // coincident UV triangles: intentional stacking / mirroring
-        exactTests++;
-        if (trianglesOverlap(au0, av0, au1, av1, au2, av2, bu0, bv0, bu1, bv1, bu2, bv2)) {
-          flags[a] = 1;
-          flags[b] = 1;
+      let after = i; // entries at positions <= after have been paired with a
+      if (flags[a] === 0) {
+        for (let j = i + 1; j < end; j++) {
+          testPair(a, entries[j], flags, box, indices, uvs, minU, minV, inv, nu, nv, cu, cv, counts);
+          if (flags[a] !== 0) { after = j; break; }
         }
+        if (flags[a] === 0) continue;
       }
+      // a is marked: only unmarked later entries can still learn something.
+      let w = 0;
+      for (let r = 0; r < liveN; r++) {
+        const pos = live[r];
+        if (pos <= i) continue; // behind a: dropped for good
+        const b = entries[pos];
+        if (flags[b] !== 0) continue; // marked: dropped for good
+        live[w++] = pos;
+        if (pos > after) testPair(a, b, flags, box, indices, uvs, minU, minV, inv, nu, nv, cu, cv, counts);
+      }
+      liveN = w;
     }
   }
+  const exactTests = counts[0], cellPairs = counts[1];
   if (stats) { stats.cellsU = nu; stats.cellsV = nv; stats.cellPairs = cellPairs; stats.exactTests = exactTests; }
   if (stacked > 0) {
     for (let t = 0; t < triangleCount; t++) if (classOf[t] !== t) flags[t] = flags[classOf[t]];
   }
   return findingFromMarks(flags, triangleCount);
+}
+
+/**
+ * Tests one pair of grid triangles met in cell (cu, cv): skipped unless their boxes overlap,
+ * this cell holds the lower-left corner of the boxes' intersection, and their UV points are
+ * not the same three points; then the exact test, marking both when they overlap.
+ * counts[0] += exact tests, counts[1] += pairs visited.
+ */
+function testPair(
+  a: number, b: number, flags: Uint8Array, box: Float32Array, indices: Uint32Array, uvs: Float32Array,
+  minU: number, minV: number, inv: number, nu: number, nv: number, cu: number, cv: number, counts: Float64Array,
+): void {
+  counts[1]++;
+  const aMinU = box[a * 4], aMinV = box[a * 4 + 1], aMaxU = box[a * 4 + 2], aMaxV = box[a * 4 + 3];
+  const bMinU = box[b * 4], bMinV = box[b * 4 + 1], bMaxU = box[b * 4 + 2], bMaxV = box[b * 4 + 3];
+  // Boxes that only touch cannot overlap with positive area.
+  if (bMinU >= aMaxU || aMinU >= bMaxU || bMinV >= aMaxV || aMinV >= bMaxV) return;
+  const ru = aMinU > bMinU ? aMinU : bMinU, rv = aMinV > bMinV ? aMinV : bMinV;
+  if (cellOf(ru, minU, inv, nu) !== cu || cellOf(rv, minV, inv, nv) !== cv) return;
+  const a0 = indices[a * 3] * 2, a1 = indices[a * 3 + 1] * 2, a2 = indices[a * 3 + 2] * 2;
+  const au0 = uvs[a0], av0 = uvs[a0 + 1], au1 = uvs[a1], av1 = uvs[a1 + 1], au2 = uvs[a2], av2 = uvs[a2 + 1];
+  const b0 = indices[b * 3] * 2, b1 = indices[b * 3 + 1] * 2, b2 = indices[b * 3 + 2] * 2;
+  const bu0 = uvs[b0], bv0 = uvs[b0 + 1], bu1 = uvs[b1], bv1 = uvs[b1 + 1], bu2 = uvs[b2], bv2 = uvs[b2 + 1];
+  if (
+    hasPoint(au0, av0, bu0, bv0, bu1, bv1, bu2, bv2) &&
+    hasPoint(au1, av1, bu0, bv0, bu1, bv1, bu2, bv2) &&
+    hasPoint(au2, av2, bu0, bv0, bu1, bv1, bu2, bv2)
+  ) return; // coincident UV triangles: intentional stacking / mirroring
+  counts[0]++;
+  if (trianglesOverlap(au0, av0, au1, av1, au2, av2, bu0, bv0, bu1, bv1, bu2, bv2)) {
+    flags[a] = 1;
+    flags[b] = 1;
+  }
 }
 
 /** Writes the UV points of triangle t into out[0..5], sorted by u then v. */

@@ -26,7 +26,7 @@ import { TanframeError, assert } from '../mesh/errors.js';
 import { TEXEL_FRAME_MIN_DET, TEXEL_ZERO_LENGTH } from '../mesh/tolerances.js';
 import { uvTransformMatrix, type UvTransform } from '../mesh/uvTransform.js';
 import type { PngImage } from './png.js';
-import { RASTER_DEGENERATE, RASTER_OK, createSpanBuffer, rasterizeTriangle, type SpanBuffer } from './rasterize.js';
+import { RASTER_DEGENERATE, RASTER_OK, createSpanBuffer, rasterWork, rasterizeTriangle, type SpanBuffer } from './rasterize.js';
 
 /** The space a normal map is expressed in. */
 export type MapSpace = 'tangent' | 'object';
@@ -88,6 +88,17 @@ export interface ConvertMapStats {
   fallbackTexels: number;
 }
 
+/**
+ * Texel budget of a conversion: the rasteriser may do at most RASTER_WORK_PER_TEXEL texel
+ * steps per texel of the map plus RASTER_WORK_PER_TRIANGLE per triangle (rasterWork), so its
+ * time is linear in the map and the mesh. An atlas covers each texel about once (mirrored or
+ * stacked parts a few times); UVs that wrap over many tiles cover the map over and over and are
+ * refused with 'too-large' before anything is rasterised. Our choices.
+ */
+export const RASTER_WORK_PER_TEXEL = 16;
+/** Texel steps every triangle may take on top of RASTER_WORK_PER_TEXEL (a few rows of a thin sliver). */
+export const RASTER_WORK_PER_TRIANGLE = 64;
+
 /** Largest accepted `padding`. */
 export const MAX_PADDING = 250;
 
@@ -145,7 +156,8 @@ export function flipGreen(image: PngImage, outDepth?: 8 | 16): PngImage {
  * `parts`, then pads and fills the rest as described at the top of this file. Returns the
  * new image (same width, height and channels; depth = options.outDepth or the input's) and
  * counts. `onProgress(done, total)` is called a hundred times or so over the triangles.
- * Throws TanframeError 'unsupported-format' for a grey input. Preconditions: every part has
+ * Throws TanframeError 'unsupported-format' for a grey input and 'too-large' beyond the texel
+ * budget (RASTER_WORK_PER_TEXEL, checked before rasterising). Preconditions: every part has
  * the frames its direction needs (decode when from = 'tangent', encode when to = 'tangent',
  * at least one of them in any case); a part's decode and encode sets hold the same triangles
  * in the same order; padding in [0, MAX_PADDING].
@@ -171,6 +183,7 @@ export function convertNormalMap(
     total += geo!.indices.length / 3;
   }
   const texels = width * height;
+  checkRasterBudget(parts, width, height, total);
   const inCh = image.channels, outCh = image.channels;
   const outDepth = options.outDepth ?? image.depth;
   const outMax = outDepth === 16 ? 65535 : 255;
@@ -212,6 +225,35 @@ export function convertNormalMap(
   stats.fallbackTexels = counters[4];
   stats.padded = padRings(out, outCh, outMax, state, width, height, options.padding);
   return { image: { width, height, channels: outCh as 3 | 4, depth: outDepth, data: out }, stats };
+}
+
+/**
+ * Refuses with 'too-large', before any texel is touched, a conversion whose triangles would
+ * take more rasteriser work than the texel budget (RASTER_WORK_PER_TEXEL per texel plus
+ * RASTER_WORK_PER_TRIANGLE per triangle). Stops summing as soon as the budget is exceeded.
+ */
+function checkRasterBudget(parts: MapPart[], width: number, height: number, triangles: number): void {
+  const budget = RASTER_WORK_PER_TEXEL * width * height + RASTER_WORK_PER_TRIANGLE * triangles;
+  let work = 0;
+  for (const part of parts) {
+    const geo = (part.decode ?? part.encode)!;
+    const xf = affineOf(part.uvTransform ?? null);
+    const uvs = geo.uvs, indices = geo.indices, tri = indices.length / 3;
+    const xa = xf ? xf[0] : 1, xb = xf ? xf[1] : 0, xc = xf ? xf[2] : 0, xd = xf ? xf[3] : 0, xe = xf ? xf[4] : 1, xff = xf ? xf[5] : 0;
+    for (let t = 0; t < tri; t++) {
+      const i0 = indices[t * 3] * 2, i1 = indices[t * 3 + 1] * 2, i2 = indices[t * 3 + 2] * 2;
+      const a0 = uvs[i0], b0 = uvs[i0 + 1], a1 = uvs[i1], b1 = uvs[i1 + 1], a2 = uvs[i2], b2 = uvs[i2 + 1];
+      work += rasterWork(
+        xa * a0 + xb * b0 + xc, xd * a0 + xe * b0 + xff, xa * a1 + xb * b1 + xc, xd * a1 + xe * b1 + xff,
+        xa * a2 + xb * b2 + xc, xd * a2 + xe * b2 + xff, width, height,
+      );
+      if (work > budget) {
+        throw new TanframeError('too-large',
+          `the UV triangles would take more than ${RASTER_WORK_PER_TEXEL} texel steps per texel of the ${width} x ${height} map ` +
+          `(UVs wrapping over many tiles?); at most ${budget} are allowed`);
+      }
+    }
+  }
 }
 
 /**

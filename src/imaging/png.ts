@@ -21,7 +21,7 @@
  * machines) took 1.2 s and wrote 9.6 MB (level 3: 2.1 s, 8.7 MB). Both read back identically.
  */
 import { decode as fastPngDecode, convertIndexedToRgb } from 'fast-png';
-import { zlibSync } from 'fflate';
+import { Inflate, zlibSync } from 'fflate';
 import { TanframeError } from '../mesh/errors.js';
 
 /** Largest width or height accepted (the rasteriser's fixed-point bounds). */
@@ -71,13 +71,164 @@ const KIND_NAMES: Record<ImageKind, string> = {
   png: 'PNG', jpeg: 'JPEG', webp: 'WebP', gif: 'GIF', bmp: 'BMP', tiff: 'TIFF', ktx2: 'KTX2', dds: 'DDS', unknown: 'unknown',
 };
 
+/** Samples per pixel of each PNG colour type and the bit depths it allows (PNG specification, 11.2.2). */
+const COLOUR_TYPES: Record<number, { channels: number; depths: number[] }> = {
+  0: { channels: 1, depths: [1, 2, 4, 8, 16] },
+  2: { channels: 3, depths: [8, 16] },
+  3: { channels: 1, depths: [1, 2, 4, 8] },
+  4: { channels: 2, depths: [8, 16] },
+  6: { channels: 4, depths: [8, 16] },
+};
+
+/** Adam7 passes: x start, y start, x step, y step (PNG specification, 8.2). */
+const ADAM7 = [[0, 0, 8, 8], [4, 0, 8, 8], [0, 4, 4, 8], [2, 0, 4, 4], [0, 2, 2, 4], [1, 0, 2, 2], [0, 1, 1, 2]];
+
+/** Compressed bytes handed to the inflater at a time: deflate expands at most ~1032x, so one step outputs at most ~4 MB. */
+const INFLATE_STEP = 4096;
+
+function badPng(reason: string): TanframeError {
+  return new TanframeError('bad-png', `damaged PNG: ${reason}`);
+}
+
+/** Bytes of the filtered scanlines an image of this header holds (each row: a filter byte, then its packed samples). */
+function rawImageBytes(width: number, height: number, bitsPerPixel: number, interlace: number): number {
+  const rowBytes = (cols: number) => 1 + Math.ceil((cols * bitsPerPixel) / 8);
+  if (interlace === 0) return height * rowBytes(width);
+  let total = 0;
+  for (const [x0, y0, dx, dy] of ADAM7) {
+    const cols = width > x0 ? Math.ceil((width - x0) / dx) : 0;
+    const rows = height > y0 ? Math.ceil((height - y0) / dy) : 0;
+    if (cols > 0 && rows > 0) total += rows * rowBytes(cols);
+  }
+  return total;
+}
+
+/**
+ * Walks the chunks of a PNG and checks them before anything is decoded: IHDR first (13 bytes,
+ * valid colour type, bit depth, methods), the image size within MAX_IMAGE_SIDE and
+ * MAX_IMAGE_TEXELS, every chunk inside the file with a matching CRC-32, no unknown critical
+ * chunk, PLTE for palette images, IDAT chunks consecutive, IEND present. Then inflates the
+ * IDAT stream a few kilobytes at a time and stops as soon as it would give more bytes than
+ * the header's image holds (a decompression bomb costs what the header declares, not what the
+ * stream expands to). Returns a PNG of the critical chunks and tRNS only, copied verbatim
+ * (ancillary chunks, some of them compressed, are never decoded).
+ * Source: PNG specification sections 5.3 (chunk layout, CRC), 5.6 (chunk ordering),
+ * 11.2 (critical chunks), 10 (zlib stream; RFC 1950 header).
+ */
+function checkedPng(bytes: Uint8Array): Uint8Array {
+  const dv = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  const n = bytes.length;
+  if (n < 8 + 25) throw badPng('the file ends before the image header');
+  if (dv.getUint32(8) !== 13 || bytes[12] !== 0x49 || bytes[13] !== 0x48 || bytes[14] !== 0x44 || bytes[15] !== 0x52) {
+    throw badPng('the first chunk is not a 13-byte IHDR');
+  }
+  // Size from IHDR before anything is allocated.
+  const width = dv.getUint32(16), height = dv.getUint32(20);
+  if (width > MAX_IMAGE_SIDE || height > MAX_IMAGE_SIDE || width * height > MAX_IMAGE_TEXELS) {
+    throw new TanframeError('too-large', `image is ${width} x ${height}; at most ${MAX_IMAGE_SIDE} texels per side and ${MAX_IMAGE_TEXELS} in all are supported`);
+  }
+  if (width === 0 || height === 0) throw badPng('zero width or height');
+  const depth = bytes[24], colourType = bytes[25], compression = bytes[26], filter = bytes[27], interlace = bytes[28];
+  const ct = COLOUR_TYPES[colourType];
+  if (!ct) throw badPng(`colour type ${colourType} does not exist`);
+  if (!ct.depths.includes(depth)) throw badPng(`bit depth ${depth} is not allowed for colour type ${colourType}`);
+  if (compression !== 0 || filter !== 0 || interlace > 1) throw badPng('unknown compression, filter or interlace method');
+  const expected = rawImageBytes(width, height, ct.channels * depth, interlace);
+
+  const keep: Uint8Array[] = [bytes.subarray(0, 8)];
+  const idat: [number, number][] = [];
+  let idatDone = false, palette = false, ended = false;
+  let at = 8;
+  while (at < n) {
+    if (at + 12 > n) throw badPng('truncated chunk');
+    const length = dv.getUint32(at);
+    if (length > 0x7fffffff || at + 12 + length > n) throw badPng('a chunk runs past the end of the file');
+    const t0 = bytes[at + 4], t1 = bytes[at + 5], t2 = bytes[at + 6], t3 = bytes[at + 7];
+    const type = String.fromCharCode(t0, t1, t2, t3);
+    if (!/^[A-Za-z]{4}$/.test(type)) throw badPng('a chunk type is not four letters');
+    if (crc32(bytes, at + 4, at + 8 + length) !== dv.getUint32(at + 8 + length)) throw badPng(`${type} chunk CRC mismatch`);
+    const whole = bytes.subarray(at, at + 12 + length);
+    if (type === 'IDAT') {
+      if (idatDone) throw badPng('IDAT chunks are not consecutive');
+      idat.push([at + 8, at + 8 + length]);
+      keep.push(whole);
+    } else {
+      if (idat.length > 0) idatDone = true;
+      if (type === 'IHDR') {
+        if (at !== 8) throw badPng('a second IHDR chunk');
+        keep.push(whole);
+      } else if (type === 'PLTE') {
+        if (length === 0 || length % 3 !== 0 || length > 768) throw badPng('PLTE length is not a multiple of 3 up to 768');
+        palette = true;
+        keep.push(whole);
+      } else if (type === 'tRNS') {
+        keep.push(whole);
+      } else if (type === 'IEND') {
+        keep.push(whole);
+        ended = true;
+        break;
+      } else if (t0 >= 0x41 && t0 <= 0x5a) {
+        throw badPng(`unknown critical chunk ${type}`);
+      }
+    }
+    at += 12 + length;
+  }
+  if (!ended) throw badPng('no IEND chunk');
+  if (idat.length === 0) throw badPng('no IDAT chunk');
+  if (colourType === 3 && !palette) throw badPng('a palette image without PLTE');
+  inflateBounded(bytes, idat, expected);
+  let total = 0;
+  for (const k of keep) total += k.length;
+  const out = new Uint8Array(total);
+  let o = 0;
+  for (const k of keep) { out.set(k, o); o += k.length; }
+  return out;
+}
+
+/** Inflates the zlib stream split over `ranges` of `bytes`; refuses it unless it gives exactly `expected` bytes, stopping early. */
+function inflateBounded(bytes: Uint8Array, ranges: [number, number][], expected: number): void {
+  let produced = 0;
+  let header = 0;
+  const head = new Uint8Array(2);
+  let over = false;
+  const inflater = new Inflate((chunk: Uint8Array) => {
+    produced += chunk.length;
+    if (produced > expected) over = true;
+  });
+  try {
+    for (const [from, to] of ranges) {
+      let p = from;
+      // The two-byte zlib header (RFC 1950): deflate, no preset dictionary.
+      while (header < 2 && p < to) head[header++] = bytes[p++];
+      if (header === 2 && head[0] !== 0) {
+        if ((head[0] & 0x0f) !== 8 || ((head[0] << 8) | head[1]) % 31 !== 0 || (head[1] & 0x20) !== 0) throw badPng('image data is not a zlib stream');
+        head[0] = 0; // checked once
+      }
+      for (; p < to; p += INFLATE_STEP) {
+        inflater.push(bytes.subarray(p, Math.min(to, p + INFLATE_STEP)), false);
+        if (over) throw badPng(`image data inflates beyond the ${expected} bytes its header declares`);
+      }
+    }
+    if (header < 2) throw badPng('image data is not a zlib stream');
+    inflater.push(new Uint8Array(0), true);
+  } catch (err) {
+    if (err instanceof TanframeError) throw err;
+    throw badPng(`image data does not inflate (${String((err as Error)?.message ?? err).split('\n')[0]})`);
+  }
+  if (over) throw badPng(`image data inflates beyond the ${expected} bytes its header declares`);
+  if (produced < expected) throw badPng(`image data holds ${produced} of the ${expected} bytes its header declares`);
+}
+
 /**
  * Decodes PNG bytes. Grey, grey-alpha, RGB and RGBA at 8 or 16 bits come back as stored;
  * palette images are expanded to 8-bit RGB (RGBA when the palette has transparency); a tRNS
  * colour key on a grey or RGB image becomes an alpha channel (0 where the key matches, full
- * elsewhere), as the PNG specification defines it. Throws TanframeError 'unsupported-format'
- * for other containers (JPEG, WebP, ...) and for grey at 1, 2 or 4 bits, 'too-large' beyond
- * MAX_IMAGE_SIDE, and 'read-failed' for a damaged PNG. Messages are one line.
+ * elsewhere), as the PNG specification defines it. The file is checked first (checkedPng:
+ * IHDR first, CRCs, chunk layout, inflation capped by the header's size), so time and memory
+ * stay proportional to the file and the image it declares. Throws TanframeError
+ * 'unsupported-format' for other containers (JPEG, WebP, ...) and for grey at 1, 2 or 4 bits,
+ * 'too-large' beyond MAX_IMAGE_SIDE / MAX_IMAGE_TEXELS, and 'bad-png' for a damaged or
+ * malformed PNG (messages start "damaged PNG:"). Messages are one line.
  */
 export function decodePng(bytes: Uint8Array): PngImage {
   if (!(bytes instanceof Uint8Array)) throw new TanframeError('invalid-argument', 'assertion failed: decodePng needs a Uint8Array');
@@ -86,30 +237,23 @@ export function decodePng(bytes: Uint8Array): PngImage {
     const what = kind === 'unknown' ? 'not a PNG image' : `${KIND_NAMES[kind]} images are not supported`;
     throw new TanframeError('unsupported-format', `${what} (convert-map reads and writes PNG only)`);
   }
-  // Size from IHDR (the first chunk, PNG specification 11.2.2) before anything is allocated.
-  if (bytes.length >= 24 && bytes[12] === 0x49 && bytes[13] === 0x48 && bytes[14] === 0x44 && bytes[15] === 0x52) {
-    const dv = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-    const w = dv.getUint32(16), h = dv.getUint32(20);
-    if (w > MAX_IMAGE_SIDE || h > MAX_IMAGE_SIDE || w * h > MAX_IMAGE_TEXELS) {
-      throw new TanframeError('too-large', `image is ${w} x ${h}; at most ${MAX_IMAGE_SIDE} texels per side and ${MAX_IMAGE_TEXELS} in all are supported`);
-    }
-  }
+  const checked = checkedPng(bytes);
   let png: ReturnType<typeof fastPngDecode>;
   try {
-    png = fastPngDecode(bytes);
+    png = fastPngDecode(checked);
   } catch (err) {
     const reason = String((err as Error)?.message ?? err).split('\n')[0];
-    throw new TanframeError('read-failed', `damaged PNG: ${reason}`);
+    throw badPng(reason);
   }
   const { width, height } = png;
-  if (!(width > 0 && height > 0)) throw new TanframeError('read-failed', 'damaged PNG: zero width or height');
+  if (!(width > 0 && height > 0)) throw badPng('zero width or height');
   if (png.palette) {
     const channels = png.palette[0]?.length === 4 ? 4 : 3;
     let data: Uint8Array;
     try {
       data = convertIndexedToRgb(png);
     } catch (err) {
-      throw new TanframeError('read-failed', `damaged PNG palette: ${String((err as Error)?.message ?? err).split('\n')[0]}`);
+      throw badPng(`palette: ${String((err as Error)?.message ?? err).split('\n')[0]}`);
     }
     return { width, height, channels, depth: 8, data };
   }
@@ -120,7 +264,7 @@ export function decodePng(bytes: Uint8Array): PngImage {
   const depth = png.depth as 8 | 16;
   let data: Uint8Array | Uint16Array = png.data instanceof Uint16Array ? png.data : new Uint8Array(png.data.buffer, png.data.byteOffset, png.data.length);
   const expected = width * height * channels;
-  if (data.length !== expected) throw new TanframeError('read-failed', `damaged PNG: ${data.length} samples for ${width} x ${height} x ${channels}`);
+  if (data.length !== expected) throw badPng(`${data.length} samples for ${width} x ${height} x ${channels}`);
   const key = png.transparency;
   if (key && key.length === channels && (channels === 1 || channels === 3)) {
     return colourKeyToAlpha(width, height, channels, depth, data, key);

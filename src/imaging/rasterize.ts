@@ -178,6 +178,40 @@ export function rasterizeTriangle(
   return RASTER_OK;
 }
 
+/**
+ * The work rasterizeTriangle will do for this triangle, in texel steps: the texels it covers
+ * (its snapped UV area, which wrapping does not change) plus the rows it visits in every tile
+ * (each costs a few edge evaluations even where nothing is covered). 0 for triangles it skips
+ * (non-finite, too large) or whose area is zero. Cheap: no spans are made. Preconditions as
+ * rasterizeTriangle.
+ */
+export function rasterWork(
+  u0: number, v0: number, u1: number, v1: number, u2: number, v2: number, width: number, height: number,
+): number {
+  const sx = width * SUBTEXEL, sy = height * SUBTEXEL;
+  const X0 = Math.round(u0 * sx), Y0 = Math.round(v0 * sy);
+  const X1 = Math.round(u1 * sx), Y1 = Math.round(v1 * sy);
+  const X2 = Math.round(u2 * sx), Y2 = Math.round(v2 * sy);
+  if (!(Math.abs(X0) <= MAX_SNAPPED && Math.abs(Y0) <= MAX_SNAPPED && Math.abs(X1) <= MAX_SNAPPED &&
+    Math.abs(Y1) <= MAX_SNAPPED && Math.abs(X2) <= MAX_SNAPPED && Math.abs(Y2) <= MAX_SNAPPED)) return 0;
+  let minX = X0 < X1 ? X0 : X1; if (X2 < minX) minX = X2;
+  let maxX = X0 > X1 ? X0 : X1; if (X2 > maxX) maxX = X2;
+  let minY = Y0 < Y1 ? Y0 : Y1; if (Y2 < minY) minY = Y2;
+  let maxY = Y0 > Y1 ? Y0 : Y1; if (Y2 > maxY) maxY = Y2;
+  const limit = MAX_TRIANGLE_EXTENT_TEXELS * SUBTEXEL;
+  if (maxX - minX > limit || maxY - minY > limit) return 0;
+  const shiftX = Math.floor(minX / sx) * sx, shiftY = Math.floor(minY / sy) * sy;
+  const tilesX = Math.floor((maxX - shiftX) / sx) + 1, tilesY = Math.floor((maxY - shiftY) / sy) + 1;
+  if (tilesX * tilesY > MAX_TRIANGLE_TILES) return 0;
+  const area2 = (X1 - X0) * (Y2 - Y0) - (Y1 - Y0) * (X2 - X0);
+  if (area2 === 0) return 0;
+  const texels = Math.abs(area2) / (2 * SUBTEXEL * SUBTEXEL);
+  // Rows visited: per tile row at most the image's height and the box's height, times the tile columns.
+  const boxRows = (maxY - minY) / SUBTEXEL + 1;
+  const rows = Math.min(boxRows, tilesY * height) * tilesX;
+  return texels + rows;
+}
+
 /** Counts of `countCoverage`. */
 export interface CoverageStats {
   /** Texels covered at least once. */

@@ -72,3 +72,4 @@ export function declaredGltfTriangles(json: any): number {
   }
   return total;
 }
+

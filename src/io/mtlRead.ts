@@ -6,6 +6,7 @@
  * Parses the text of a .mtl file into the few material properties tanframe carries
  * into glTF: diffuse colour, diffuse texture and normal texture (with its scale).
  */
+import { MAX_WARNINGS_PER_FILE, capWarnings, quoteText } from '../mesh/text.js';
 
 /** A texture statement of a material: the file it names and the options we keep. */
 export interface MtlTexture {
@@ -32,8 +33,22 @@ export interface MtlMaterial {
 export interface MtlLibrary {
   /** Materials by name, in order of definition (a repeated `newmtl` replaces the earlier one). */
   materials: Map<string, MtlMaterial>;
-  /** Malformed statements that were skipped, one line each ("<label> line N: ..."). */
+  /** Malformed statements that were skipped, one line each ("<label> line N: ..."), at most MAX_WARNINGS_PER_FILE and a closing count. */
   warnings: string[];
+}
+
+/** Keeps the first MAX_WARNINGS_PER_FILE warnings and counts the rest (no strings built for them). */
+class WarningSink {
+  list: string[] = [];
+  dropped = 0;
+  /** Whether another warning would still be listed (callers build the text only then). */
+  get open(): boolean {
+    return this.list.length < MAX_WARNINGS_PER_FILE;
+  }
+  push(text: string): void {
+    if (this.open) this.list.push(text);
+    else this.dropped++;
+  }
 }
 
 /**
@@ -72,7 +87,7 @@ export function parseObjFloat(token: string): number {
  * name is the rest of the text after the options (it may contain spaces).
  * Returns null (and a warning) when no file name is left or an option's argument is malformed.
  */
-function parseTextureArgs(args: string, line: number, label: string, warnings: string[]): MtlTexture | null {
+function parseTextureArgs(args: string, line: number, label: string, warnings: WarningSink): MtlTexture | null {
   let rest = args.trim();
   let bumpMultiplier: number | null = null;
   const nextToken = (): string => {
@@ -86,7 +101,8 @@ function parseTextureArgs(args: string, line: number, label: string, warnings: s
     const opt = m[1]!.toLowerCase();
     const arity = TEXTURE_OPTIONS[opt];
     if (!arity) {
-      warnings.push(`${label} line ${line}: unknown texture option '${m[1]}' skipped`);
+      if (warnings.open) warnings.push(`${label} line ${line}: unknown texture option '${quoteText(m[1]!, 40)}' skipped`);
+      else warnings.dropped++;
       nextToken();
       continue;
     }
@@ -129,7 +145,7 @@ function parseTextureArgs(args: string, line: number, label: string, warnings: s
  */
 export function parseMtl(text: string, label: string): MtlLibrary {
   const materials = new Map<string, MtlMaterial>();
-  const warnings: string[] = [];
+  const warnings = new WarningSink();
   let current: MtlMaterial | null = null;
   const lines = text.replace(/^\uFEFF/, '').split('\n');
   for (let i = 0; i < lines.length; i++) {
@@ -188,5 +204,5 @@ export function parseMtl(text: string, label: string): MtlLibrary {
         break;
     }
   }
-  return { materials, warnings };
+  return { materials, warnings: capWarnings(warnings.list, warnings.dropped) };
 }

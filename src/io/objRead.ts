@@ -118,6 +118,22 @@ export function splitMtllib(rest: string): string[] {
   return rest === '' ? [] : [rest];
 }
 
+/** Whether a character code is white space as String.prototype.trim sees it (the ASCII and common Unicode ones). */
+function isSpace(c: number): boolean {
+  return c === 32 || (c >= 9 && c <= 13) || c === 0xa0 || c === 0xfeff || c === 0x1680 || (c >= 0x2000 && c <= 0x200a) ||
+    c === 0x2028 || c === 0x2029 || c === 0x202f || c === 0x205f || c === 0x3000;
+}
+
+/**
+ * Index of the backslash that continues the physical line text[start, end) (the last
+ * character before trailing white space), or -1 when the line does not continue.
+ */
+function continuationAt(text: string, start: number, end: number): number {
+  let k = end - 1;
+  while (k >= start && isSpace(text.charCodeAt(k))) k--;
+  return k >= start && text.charCodeAt(k) === 92 ? k : -1;
+}
+
 /** Parses OBJ text; refuses with 'too-large' once the faces hold more than `limits` allow. */
 function parseObjText(text: string, limits: ReadLimits): ObjText {
   const maxTriangles = limits.maxTriangles ?? DEFAULT_MAX_TRIANGLES;
@@ -152,18 +168,34 @@ function parseObjText(text: string, limits: ReadLimits): ObjText {
     if (end < 0) end = len;
     lineNo++;
     const startLine = lineNo;
-    let line = text.slice(pos, end);
-    pos = end + 1;
-    // Line continuation: a backslash at the end of a line joins the next one.
-    while (line.trimEnd().endsWith('\\') && pos < len) {
-      line = line.trimEnd();
-      line = line.slice(0, line.length - 1) + ' ';
-      let e2 = text.indexOf('\n', pos);
-      if (e2 < 0) e2 = len;
-      line += text.slice(pos, e2);
-      pos = e2 + 1;
-      lineNo++;
+    let line: string;
+    // Line continuation: a backslash at the end of a line (before trailing white space) joins
+    // the next one, the backslash becoming a space. Each physical line is scanned once; only
+    // pieces with text are kept (a run of empty continued lines becomes one run of spaces),
+    // and everything is joined once, so a long chain costs its length.
+    let cut = continuationAt(text, pos, end);
+    if (cut < 0 || end + 1 >= len) {
+      line = text.slice(pos, end);
+    } else {
+      const pieces: string[] = [];
+      let spaces = 0;
+      while (cut >= 0 && end + 1 < len) {
+        if (cut > pos) {
+          if (spaces > 0) pieces.push(' '.repeat(spaces));
+          pieces.push(text.slice(pos, cut));
+          spaces = 0;
+        }
+        spaces++; // the backslash
+        pos = end + 1;
+        end = text.indexOf('\n', pos);
+        if (end < 0) end = len;
+        lineNo++;
+        cut = continuationAt(text, pos, end);
+      }
+      pieces.push(' '.repeat(spaces), text.slice(pos, end));
+      line = pieces.join('');
     }
+    pos = end + 1;
     const hash = line.indexOf('#');
     if (hash >= 0) line = line.slice(0, hash);
     line = line.trim();
@@ -308,7 +340,6 @@ function buildPrimitive(
   faceList: Int32Array,
   faceFrom: number,
   faceTo: number,
-  head: Int32Array,
   primitiveIndex: number,
   meshName: string,
   material: number | null,
@@ -342,11 +373,16 @@ function buildPrimitive(
     warnings.push(`${label}: ${missingN} of ${corners} face corners lack normals; NORMAL omitted`);
   }
 
-  // De-duplication: output vertex o copies (srcV[o], srcT[o], srcN[o]); chains per position index.
+  // De-duplication: output vertex e copies (srcV[e], srcT[e], srcN[e]); an open-addressing
+  // hash on the triple finds an earlier equal corner in constant expected time, however many
+  // texture coordinates or normals meet at one position.
   const srcV = new GrowI32();
   const srcT = new GrowI32();
   const srcN = new GrowI32();
-  const next = new GrowI32();
+  let size = 16;
+  while (size < corners * 2) size *= 2;
+  const mask = size - 1;
+  const table = new Int32Array(size).fill(-1);
   const cornerOut = new Int32Array(corners);
   let cc = 0;
   for (let i = faceFrom; i < faceTo; i++) {
@@ -355,21 +391,27 @@ function buildPrimitive(
       const v = cv[c]!;
       const t = useT ? ct[c]! : -1;
       const n = useN ? cn[c]! : -1;
-      let e = head[v]!;
-      while (e >= 0 && (srcT.a[e] !== t || srcN.a[e] !== n)) e = next.a[e]!;
+      let h = Math.imul(v, 0x9e3779b1) ^ Math.imul(t + 1, 0x85ebca6b) ^ Math.imul(n + 1, 0xc2b2ae35);
+      h ^= h >>> 15;
+      h = Math.imul(h, 0x2c1b3c6d);
+      h ^= h >>> 13;
+      let slot = h & mask;
+      let e = table[slot]!;
+      while (e >= 0 && (srcV.a[e] !== v || srcT.a[e] !== t || srcN.a[e] !== n)) {
+        slot = (slot + 1) & mask;
+        e = table[slot]!;
+      }
       if (e < 0) {
         e = srcV.n;
         srcV.push(v);
         srcT.push(t);
         srcN.push(n);
-        next.push(head[v]!);
-        head[v] = e;
+        table[slot] = e;
       }
       cornerOut[cc++] = e;
     }
   }
   const vertexCount = srcV.n;
-  for (let e = 0; e < vertexCount; e++) head[srcV.a[e]!] = -1;
 
   const pIn = o.positions.a;
   const positions = new Float32Array(vertexCount * 3);
@@ -663,11 +705,10 @@ export async function readObjBytes(bytes: Uint8Array, path: string, limits: Read
   const faceList = new Int32Array(faceCount);
   for (let f = 0; f < faceCount; f++) faceList[fill[o.faceGroup.a[f]!]!++] = f;
 
-  const head = new Int32Array(o.positions.n / 3).fill(-1);
   const primitives: PrimitiveData[] = [];
   for (let g = 0; g < groupCount; g++) {
     const material = materialIndexOfGroup[g]!;
-    const p = buildPrimitive(o, faceList, groupStart[g]!, groupStart[g + 1]!, head, g, meshName, material, warnings);
+    const p = buildPrimitive(o, faceList, groupStart[g]!, groupStart[g + 1]!, g, meshName, material, warnings);
     primitives.push(p);
     const jp: any = { attributes: {}, mode: MODE_TRIANGLES };
     if (material !== null) jp.material = material;

@@ -10,6 +10,7 @@ import { writeFilesAtomic } from '../io/files.js';
 import { readGltf, readGltfBytes } from '../io/gltfRead.js';
 import { encodeGltf, isBufferFileOf } from '../io/gltfWrite.js';
 import type { ReadLimits } from '../io/limits.js';
+import { capWarnings, quoteText } from '../mesh/text.js';
 import { readObj, readObjBytes } from '../io/objRead.js';
 import { memoryResources, type AssetResources } from '../io/resources.js';
 import type { FileReport } from '../report/types.js';
@@ -93,9 +94,10 @@ export function toReportError(err: unknown): { code: string; message: string } {
  */
 const MAX_MESSAGE_LENGTH = 1000;
 
+/** One line of at most MAX_MESSAGE_LENGTH characters, control characters as visible escapes (cleanText). */
 function oneLine(s: string): string {
-  const line = s.replace(/\s*[\r\n]+\s*/g, ' ').trim();
-  return line.length > MAX_MESSAGE_LENGTH ? `${line.slice(0, MAX_MESSAGE_LENGTH - 3)}...` : line;
+  const line = s.length > MAX_MESSAGE_LENGTH * 4 ? s.slice(0, MAX_MESSAGE_LENGTH * 4) : s;
+  return quoteText(line.replace(/\s*[\r\n]+\s*/g, ' ').trim(), MAX_MESSAGE_LENGTH);
 }
 
 /**
@@ -126,7 +128,7 @@ export async function processFileOutcome(job: FileJob, options: ProcessOptions):
   let pictures: UvPicture[] = [];
   try {
     const asset = await readAsset(job.input, { maxTriangles: options.maxTriangles });
-    report.warnings.push(...asset.warnings);
+    report.warnings = capWarnings(asset.warnings).map((w) => quoteText(w, MAX_MESSAGE_LENGTH));
     for (const ext of asset.decompressed ?? []) {
       report.notes.push(job.command === 'bake' ? `decompressed ${ext} (written uncompressed)` : `decompressed ${ext}`);
     }

@@ -21,6 +21,7 @@ export type ErrorCode =
   | 'missing-resource'
   | 'unsupported-feature'
   | 'bad-obj'
+  | 'bad-png'
   | 'too-large'
   | 'write-failed'
   | 'timeout'

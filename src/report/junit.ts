@@ -6,15 +6,19 @@
  * One test case per input file: failed (<failure>) when a --fail-on gate tripped, in error
  * (<error>) when the file could not be read or processed, skipped when the file was skipped.
  */
+import { cleanText } from '../mesh/text.js';
 import type { FileReport, PrimitiveReport, Report } from './types.js';
 
 /** Triangle indices a failure text lists per primitive and finding. */
 export const JUNIT_LISTED_TRIANGLES = 20;
 
-/** Escapes text for XML content and attributes and drops characters XML 1.0 does not allow. */
+/**
+ * Escapes text for XML content and attributes. Our own line breaks (tab, newline) stay; every
+ * other character XML 1.0 does not allow, or a terminal would act on, is written as a visible
+ * escape (see cleanText). Strings from files go through cleanText first (one line each).
+ */
 export function xmlText(s: string): string {
-  return s
-    .replace(/[^\t\n\r\u0020-\uD7FF\uE000-\uFFFD\u{10000}-\u{10FFFF}]/gu, '\uFFFD')
+  return s.split('\n').map((line) => line.split('\t').map(cleanText).join('\t')).join('\n')
     .replace(/[&<>"]/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;' })[c]!);
 }
 
@@ -23,7 +27,7 @@ function seconds(x: number): string {
 }
 
 function where(p: PrimitiveReport): string {
-  return `mesh ${p.mesh}${p.meshName ? ` "${p.meshName}"` : ''} primitive ${p.primitive}`;
+  return `mesh ${p.mesh}${p.meshName ? ` "${cleanText(p.meshName)}"` : ''} primitive ${p.primitive}`;
 }
 
 function firstOf(triangles: number[], count: number): string {
@@ -83,10 +87,10 @@ function shortReason(gate: string, f: FileReport): string {
 
 /** The <testcase> of one file. */
 function testCase(f: FileReport, command: string): string {
-  const open = `    <testcase classname="tanframe.${command}" name="${xmlText(f.input)}" time="${seconds(f.seconds)}"`;
+  const open = `    <testcase classname="tanframe.${command}" name="${xmlText(cleanText(f.input))}" time="${seconds(f.seconds)}"`;
   if (f.status === 'failed') {
     const code = f.error?.code ?? 'internal';
-    const message = f.error?.message ?? 'failed';
+    const message = cleanText(f.error?.message ?? 'failed');
     return `${open}>\n      <error type="${xmlText(code)}" message="${xmlText(`${code}: ${message}`)}">${xmlText(`the file could not be processed: ${message} [${code}]`)}</error>\n    </testcase>`;
   }
   if (f.status === 'skipped') return `${open}>\n      <skipped message="skipped"/>\n    </testcase>`;

@@ -3,6 +3,7 @@
  * table of its primitives' findings (worst first), then a closing total. Colour only when the
  * caller says the stream is a terminal and NO_COLOR is unset.
  */
+import { cleanText, warningTotal } from '../mesh/text.js';
 import type { FileReport, PrimitiveReport, Report } from './types.js';
 
 /** Styling switch for the summary. */
@@ -62,7 +63,8 @@ function storedCell(p: PrimitiveReport): string {
 }
 
 function primitiveCells(p: PrimitiveReport): string[] {
-  const name = p.meshName ? ` ${p.meshName.length > 20 ? p.meshName.slice(0, 19) + '\u2026' : p.meshName}` : '';
+  const meshName = p.meshName ? cleanText(p.meshName) : '';
+  const name = meshName ? ` ${meshName.length > 20 ? meshName.slice(0, 19) + '\u2026' : meshName}` : '';
   return [
     `m${p.mesh}p${p.primitive}${name}`,
     n(p.triangles),
@@ -102,7 +104,7 @@ function skippedLine(f: FileReport): string | null {
   const reasons = new Map<string, number>();
   for (const p of f.primitives) {
     if (p.action !== 'skipped') continue;
-    const r = p.skipReason ?? 'skipped';
+    const r = cleanText(p.skipReason ?? 'skipped');
     reasons.set(r, (reasons.get(r) ?? 0) + 1);
   }
   if (reasons.size === 0) return null;
@@ -112,13 +114,14 @@ function skippedLine(f: FileReport): string | null {
 }
 
 function fileBlock(f: FileReport, style: SummaryStyle): string[] {
-  const target = f.output ? ` -> ${f.output}` : '';
+  const input = cleanText(f.input);
+  const target = f.output ? ` -> ${cleanText(f.output)}` : '';
   if (f.status === 'failed') {
-    return [`${paint(style.color, '31;1', 'failed   ')}${f.input}: ${f.error?.message ?? 'failed'} [${f.error?.code ?? 'internal'}]`];
+    return [`${paint(style.color, '31;1', 'failed   ')}${input}: ${cleanText(f.error?.message ?? 'failed')} [${cleanText(f.error?.code ?? 'internal')}]`];
   }
   const done = f.primitives.filter((p) => p.action !== 'skipped');
   const tag = f.gates.length ? paint(style.color, '31;1', 'gated    ') : fileWeight(f) > 0 ? paint(style.color, '33;1', 'findings ') : paint(style.color, '32', 'ok       ');
-  const head = `${tag}${f.input}${target}`;
+  const head = `${tag}${input}${target}`;
   const lines = [f.gates.length ? `${head}  ${paint(style.color, '31', `[${f.gates.join(', ')}]`)}` : head];
   const rows = primitivesWorstFirst(done);
   if (rows.length) {
@@ -127,18 +130,19 @@ function fileBlock(f: FileReport, style: SummaryStyle): string[] {
   }
   const skipped = skippedLine(f);
   if (skipped) lines.push(`         ${skipped}`);
-  for (const w of f.warnings) lines.push(`         warning: ${w}`);
-  for (const note of f.notes ?? []) lines.push(`         note: ${note}`);
+  for (const w of f.warnings) lines.push(`         warning: ${cleanText(w)}`);
+  for (const note of f.notes ?? []) lines.push(`         note: ${cleanText(note)}`);
   return lines;
 }
 
 function cleanLine(f: FileReport, style: SummaryStyle): string {
   const done = f.primitives.filter((p) => p.action !== 'skipped');
   const tri = done.reduce((a, p) => a + p.triangles, 0);
-  const target = f.output ? ` -> ${f.output}` : '';
-  const notes = (f.notes ?? []).map((note) => `, ${note}`).join('');
-  const extra = `${f.warnings.length ? `, ${f.warnings.length} warning${f.warnings.length === 1 ? '' : 's'}` : ''}${notes}`;
-  return `${paint(style.color, '32', 'ok       ')}${f.input}${target}  (${done.length} of ${f.primitives.length} primitives, ${n(tri)} triangles, no findings${extra})`;
+  const target = f.output ? ` -> ${cleanText(f.output)}` : '';
+  const notes = (f.notes ?? []).map((note) => `, ${cleanText(note)}`).join('');
+  const warnings = warningTotal(f.warnings);
+  const extra = `${warnings ? `, ${n(warnings)} warning${warnings === 1 ? '' : 's'}` : ''}${notes}`;
+  return `${paint(style.color, '32', 'ok       ')}${cleanText(f.input)}${target}  (${done.length} of ${f.primitives.length} primitives, ${n(tri)} triangles, no findings${extra})`;
 }
 
 /** Files worst first: by severity, then by findings, then by name. */

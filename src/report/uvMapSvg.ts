@@ -5,6 +5,7 @@
  * Renders one primitive's UV layout: triangles outlined, mirrored ones tinted, overlapping
  * ones hatched, degenerate ones marked at their centroid, and a legend in words.
  */
+import { markupText } from '../mesh/text.js';
 import { MAX_PICTURE_TRIANGLES, PICTURE_DEGENERATE_UV, PICTURE_MIRRORED, PICTURE_OVERLAP, type UvPicture } from './uvPicture.js';
 
 /** UVs this far outside the unit square (in UV units) still fit in the picture; beyond, they are off it. */
@@ -30,7 +31,7 @@ export interface UvMapSvgOptions {
 
 /** Escapes text for XML content and attribute values. */
 export function escapeXml(s: string): string {
-  return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
+  return markupText(s);
 }
 
 function n(x: number): string {

@@ -12,12 +12,17 @@ import * as os from 'node:os';
 import * as path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import type { ErrorCode } from '../../src/mesh/errors.js';
+import { convertNormalMap } from '../../src/imaging/convert.js';
+import { decodePng } from '../../src/imaging/png.js';
+import { mapPartsForAsset } from '../../src/lib/mapFrames.js';
+import { readAsset } from '../../src/lib/processFile.js';
 import { runCli } from '../helpers/cli.js';
 import { validateGltfFile } from '../helpers/validate.js';
 
 const repo = path.resolve(__dirname, '../..');
 const badDir = path.join(repo, 'fixtures', 'bad');
 const valuesDir = path.join(repo, 'fixtures', 'values');
+const mapsDir = path.join(repo, 'fixtures', 'maps');
 const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'tanframe-bad-'));
 afterAll(() => fs.rmSync(tmp, { recursive: true, force: true }));
 
@@ -35,7 +40,7 @@ const valuesExpected: Record<string, ValuesExpectation> = JSON.parse(fs.readFile
 /** Every code a report may carry (src/mesh/errors.ts), so a typo in expected.json cannot pass. */
 const KNOWN_CODES: ErrorCode[] = [
   'usage', 'unsupported-format', 'read-failed', 'empty-file', 'bad-glb', 'bad-json', 'bad-gltf', 'bad-accessor',
-  'bad-index', 'bad-draco', 'bad-uri', 'missing-resource', 'unsupported-feature', 'bad-obj', 'too-large', 'write-failed', 'timeout', 'internal',
+  'bad-index', 'bad-draco', 'bad-uri', 'missing-resource', 'unsupported-feature', 'bad-obj', 'bad-png', 'too-large', 'write-failed', 'timeout', 'internal',
 ];
 
 function sha256(file: string): string {
@@ -79,6 +84,7 @@ describe('the generated corpus', () => {
     expect(r.status, r.stderr).toBe(0);
     expect(hashes(path.join(out, 'bad'))).toEqual(hashes(badDir));
     expect(hashes(path.join(out, 'values'))).toEqual(hashes(valuesDir));
+    expect(hashes(path.join(out, 'maps'))).toEqual(hashes(mapsDir));
   });
 
   it('names an expected, known code for every bad file and a file for every entry', () => {
@@ -115,6 +121,41 @@ describe('fixtures/bad: refused with a reason, nothing written, input unchanged'
       expect(listFiles(out)).toEqual([]);
 
       expect(hashes(badDir)).toEqual(before);
+    });
+  }
+});
+
+const mapsExpected: Record<string, { code: ErrorCode; fault: string; map?: string }> = JSON.parse(fs.readFileSync(path.join(mapsDir, 'expected.json'), 'utf8'));
+
+describe('fixtures/maps: convert-map refuses with a reason and writes nothing', () => {
+  for (const [name, e] of Object.entries(mapsExpected)) {
+    it(`${name} -> ${e.code} (${e.fault})`, async () => {
+      expect(KNOWN_CODES).toContain(e.code);
+      const before = hashes(mapsDir);
+      const out = path.join(tmp, `map-${name}.png`);
+      const mapName = e.map ?? name;
+      const input = path.join('fixtures', 'maps', mapName);
+      const args = e.map
+        ? ['convert-map', '--mesh', path.join('fixtures', 'maps', name), '--in', input, '--out', out, '--from', 'tangent', '--to', 'object']
+        : ['convert-map', '--in', input, '--out', out, '--from', 'tangent', '--to', 'tangent', '--out-green', 'down'];
+      const r = await runCli(args, repo);
+      expect(r.code).toBe(2);
+      expectOneLine(r.stderr, input);
+      expect(fs.existsSync(out)).toBe(false);
+      // The stable code, through the library calls convert-map makes.
+      let code = 'none';
+      try {
+        const image = decodePng(new Uint8Array(fs.readFileSync(path.join(mapsDir, mapName))));
+        if (e.map) {
+          const asset = await readAsset(path.join(mapsDir, name));
+          const sel = mapPartsForAsset(asset, { imageName: mapName, from: 'tangent', to: 'object', fromMethod: 'mikktspace', toMethod: 'mikktspace', uv: null, primitives: null });
+          convertNormalMap(image, sel.parts, { from: 'tangent', to: 'object', inGreen: 'up', outGreen: 'up', padding: 0 });
+        }
+      } catch (err) {
+        code = (err as { code?: string }).code ?? 'not a TanframeError';
+      }
+      expect(code).toBe(e.code);
+      expect(hashes(mapsDir)).toEqual(before);
     });
   }
 });

@@ -185,6 +185,34 @@ describe('findUvOverlaps', () => {
     expect(stats.exactTests).toBe(10000);
   });
 
+  it('visits a linear number of pairs for near-stacked copies (offset, so not exact copies)', () => {
+    //  An 8 x 8 unwelded grid (128 triangles) copied K times, copy k moved by
+    //  (k * 1e-6, k * 0.7e-6): every copy overlaps the same triangle of every other copy, so
+    //  each cell holds K times its few triangles. Every triangle overlaps; the pairs visited
+    //  must grow with K, not K^2.
+    const g = unweldedGrid(8);
+    const run = (K: number) => {
+      const uvs = new Float32Array(g.uvs.length * K);
+      for (let k = 0; k < K; k++) {
+        for (let i = 0; i < g.uvs.length; i += 2) {
+          uvs[k * g.uvs.length + i] = g.uvs[i] + k * 1e-6;
+          uvs[k * g.uvs.length + i + 1] = g.uvs[i + 1] + k * 0.7e-6;
+        }
+      }
+      const triangleCount = g.triangleCount * K;
+      const indices = new Uint32Array(triangleCount * 3).map((_, i) => i);
+      const stats = newStats();
+      const f = findUvOverlaps(indices, uvs, triangleCount, null, stats);
+      expect(f.count).toBe(triangleCount);
+      expect(stats.gridTriangles).toBe(triangleCount); // none are exact copies
+      return stats.cellPairs;
+    };
+    const p50 = run(50), p200 = run(200);
+    // All pairs of one cell's 4 x 200 entries alone would be 320,000.
+    expect(p200).toBeLessThan(40 * 128 * 200);
+    expect(p200 / p50).toBeLessThan(8); // x4 copies: within 2x of linear
+  });
+
   it('keeps a fine grid when a few stray triangles lie far away', () => {
     //  30 x 30 grid in the unit square (1800 triangles) and 10 + 10 small strays far off on
     //  both sides (up to 1e6 away): without robust bounds the grid would be one cell.

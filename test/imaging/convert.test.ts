@@ -328,3 +328,32 @@ describe('coverage, conflicts, padding, background and alpha', () => {
     }
   });
 });
+
+describe('the texel budget', () => {
+  /** A unit quad whose UVs are the square [0, k] x [0, k] (k x k tiles). */
+  function quad(k: number): UvMesh {
+    return {
+      positions: new Float32Array([0, 0, 0, 1, 0, 0, 1, 1, 0, 0, 1, 0]),
+      normals: new Float32Array([0, 0, 1, 0, 0, 1, 0, 0, 1, 0, 0, 1]),
+      uvs: new Float32Array([0, 0, k, 0, k, k, 0, k]),
+      indices: new Uint32Array([0, 1, 2, 0, 2, 3]),
+    };
+  }
+  const flat = paint(32, 32, 8, () => [0, 0, 1]);
+  const options: ConvertMapOptions = { from: 'tangent', to: 'object', inGreen: 'up', outGreen: 'up', padding: 0 };
+
+  it('accepts layouts that cover the map a few times over (here 3 x 3 wrapped tiles: 9 times)', () => {
+    const r = convertNormalMap(flat, [part(quad(3), 'mikktspace', null)], options);
+    expect(r.stats.covered).toBe(32 * 32);
+    expect(r.stats.conflicts).toBe(32 * 32);
+  });
+
+  it("refuses with 'too-large' before rasterising when the UVs wrap over 8 x 8 tiles (64 times the map)", () => {
+    let err: any;
+    let progress = 0;
+    try { convertNormalMap(flat, [part(quad(8), 'mikktspace', null)], options, () => { progress++; }); } catch (e) { err = e; }
+    expect(err?.code).toBe('too-large');
+    expect(err.message).toMatch(/^the UV triangles would take more than 16 texel steps per texel of the 32 x 32 map/);
+    expect(progress).toBe(0); // no triangle was rasterised
+  });
+});

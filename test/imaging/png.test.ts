@@ -1,7 +1,8 @@
+import { deflateSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
 import { decodePng, detectImageKind, encodePng, type PngImage } from '../../src/imaging/png.js';
 import { TanframeError } from '../../src/mesh/errors.js';
-import { readRawPng, writeRawPng } from './pngBytes.js';
+import { chunk, readRawPng, writeRawPng } from './pngBytes.js';
 
 /** Deterministic samples covering the whole range of a depth. */
 function samplesFor(n: number, depth: 8 | 16): number[] {
@@ -121,4 +122,95 @@ describe('PNG encoding follows the specification', () => {
       });
     }
   }
+});
+
+/** The chunks of a PNG as [type, data] (no checks: the test inputs are our own). */
+function chunksOf(bytes: Uint8Array): [string, Uint8Array][] {
+  const dv = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  const out: [string, Uint8Array][] = [];
+  for (let at = 8; at < bytes.length;) {
+    const length = dv.getUint32(at);
+    out.push([String.fromCharCode(...bytes.subarray(at + 4, at + 8)), bytes.slice(at + 8, at + 8 + length)]);
+    at += 12 + length;
+  }
+  return out;
+}
+
+/** A PNG file from the signature and these chunks. */
+function pngOf(chunks: [string, Uint8Array][]): Uint8Array {
+  const parts = [new Uint8Array([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]), ...chunks.map(([t, d]) => chunk(t, d))];
+  const out = new Uint8Array(parts.reduce((s, p) => s + p.length, 0));
+  let o = 0;
+  for (const p of parts) { out.set(p, o); o += p.length; }
+  return out;
+}
+
+function codeOf(fn: () => unknown): { code: string; message: string } {
+  try { fn(); } catch (e) { return { code: (e as TanframeError).code, message: (e as Error).message }; }
+  return { code: 'none', message: '' };
+}
+
+describe('PNG structure is checked before decoding (PNG specification 5.3, 5.6, 11.2)', () => {
+  const good = writeRawPng({ width: 4, height: 3, colorType: 2, depth: 8, samples: samplesFor(36, 8) });
+
+  it('refuses a decompression bomb whose header says 1 x 1, stopping at the declared size', () => {
+    // 1 x 1 RGB declares 4 bytes of scanlines (a filter byte and three samples); the stream
+    // holds 64 MiB of zeros. Source: PNG specification 11.2.2 / 7.2 (scanline layout).
+    const ihdr = chunksOf(good)[0][1].slice();
+    new DataView(ihdr.buffer).setUint32(0, 1);
+    new DataView(ihdr.buffer).setUint32(4, 1);
+    const bomb = pngOf([['IHDR', ihdr], ['IDAT', deflateSync(new Uint8Array(64 << 20))], ['IEND', new Uint8Array(0)]]);
+    const r = codeOf(() => decodePng(bomb));
+    expect(r.code).toBe('bad-png');
+    expect(r.message).toBe('damaged PNG: image data inflates beyond the 4 bytes its header declares');
+  });
+
+  it('refuses image data shorter than the header declares', () => {
+    const c = chunksOf(good);
+    const short = pngOf([c[0], ['IDAT', deflateSync(new Uint8Array(10))], ['IEND', new Uint8Array(0)]]);
+    expect(codeOf(() => decodePng(short))).toEqual({ code: 'bad-png', message: 'damaged PNG: image data holds 10 of the 39 bytes its header declares' });
+  });
+
+  it('refuses a file whose first chunk is not IHDR', () => {
+    const c = chunksOf(good);
+    const text = new TextEncoder().encode('Comment\0harbour');
+    expect(codeOf(() => decodePng(pngOf([['tEXt', text], ...c]))).code).toBe('bad-png');
+  });
+
+  it('refuses a chunk whose CRC does not match', () => {
+    const bytes = good.slice();
+    bytes[8 + 8 + 13] ^= 1; // the IHDR CRC's first byte
+    expect(codeOf(() => decodePng(bytes))).toEqual({ code: 'bad-png', message: 'damaged PNG: IHDR chunk CRC mismatch' });
+    const idat = good.slice();
+    idat[8 + 25 + 8] ^= 0x40; // a byte of the IDAT data
+    expect(codeOf(() => decodePng(idat)).message).toBe('damaged PNG: IDAT chunk CRC mismatch');
+  });
+
+  it('refuses unknown critical chunks and a missing IEND, and ignores unknown ancillary ones', () => {
+    const c = chunksOf(good);
+    expect(codeOf(() => decodePng(pngOf([c[0], ['ABCD', new Uint8Array(1)], ...c.slice(1)]))).message).toBe('damaged PNG: unknown critical chunk ABCD');
+    expect(codeOf(() => decodePng(pngOf(c.slice(0, -1)))).message).toBe('damaged PNG: no IEND chunk');
+    // An iCCP chunk whose profile inflates hugely is never inflated.
+    const iccp = new Uint8Array([...new TextEncoder().encode('p'), 0, 0, ...deflateSync(new Uint8Array(16 << 20))]);
+    const withIccp = decodePng(pngOf([c[0], ['iCCP', iccp], ...c.slice(1)]));
+    expect(Array.from(withIccp.data)).toEqual(samplesFor(36, 8));
+  });
+
+  it('still reads images split over several IDAT chunks, and Adam7-interlaced ones', () => {
+    const c = chunksOf(good);
+    const idat = c[1][1];
+    const split = pngOf([c[0], ['IDAT', idat.slice(0, 1)], ['IDAT', idat.slice(1, 5)], ['IDAT', idat.slice(5)], c[2]]);
+    expect(Array.from(decodePng(split).data)).toEqual(samplesFor(36, 8));
+    // Interlaced: a 3 x 3 grey image in Adam7 passes (PNG specification 8.2); passes 2 and 3
+    // are empty, each row is a filter byte and its samples: pass 1 (0,0): 1 row of 1; pass 4
+    // (2,0): 1 of 1; pass 5 (0,2): 1 row of 2; pass 6 (1,0): 2 rows of 1; pass 7 (0,1): 1 row of 3.
+    const img = [10, 20, 30, 40, 50, 60, 70, 80, 90];
+    const rows = [[0, 10], [0, 30], [0, 70, 90], [0, 20], [0, 80], [0, 40, 50, 60]];
+    const ihdr = new Uint8Array(13);
+    new DataView(ihdr.buffer).setUint32(0, 3);
+    new DataView(ihdr.buffer).setUint32(4, 3);
+    ihdr[8] = 8; ihdr[9] = 0; ihdr[12] = 1;
+    const laced = pngOf([['IHDR', ihdr], ['IDAT', deflateSync(new Uint8Array(rows.flat()))], ['IEND', new Uint8Array(0)]]);
+    expect(Array.from(decodePng(laced).data)).toEqual(img);
+  });
 });

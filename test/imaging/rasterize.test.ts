@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import {
-  RASTER_DEGENERATE, RASTER_NOT_FINITE, RASTER_OK, RASTER_TOO_LARGE, countCoverage, createSpanBuffer, rasterizeTriangle,
+  RASTER_DEGENERATE, RASTER_NOT_FINITE, RASTER_OK, RASTER_TOO_LARGE, countCoverage, createSpanBuffer, rasterWork, rasterizeTriangle,
 } from '../../src/imaging/rasterize.js';
 import { mulberry32 } from '../helpers/surfaces.js';
 
@@ -180,5 +180,34 @@ describe('rasteriser skips what it cannot cover', () => {
     expect(rasterizeTriangle(spans, 0, 0, 1e15, 0, 0, 1, 8, 8)).toBe(RASTER_NOT_FINITE);
     expect(rasterizeTriangle(spans, 0, 0, 100, 0, 0, 100, 8, 8)).toBe(RASTER_TOO_LARGE);
     expect(spans.count).toBe(0);
+  });
+});
+
+describe('rasterWork: the texel budget estimate', () => {
+  it('is at least the texels covered plus the spans made, for small, thin and wrapping triangles', () => {
+    const spans = createSpanBuffer();
+    const cases: number[][] = [
+      [0.1, 0.1, 0.9, 0.2, 0.3, 0.8], // ordinary
+      [0, 0, 1, 0.001, 0.002, 1], // a thin sliver over all rows
+      [-0.5, -0.5, 2.5, -0.5, -0.5, 2.5], // wraps over 3 x 3 tiles
+      [0.3, 0.3, 0.3001, 0.3, 0.3, 0.3001], // smaller than a texel
+    ];
+    for (const [u0, v0, u1, v1, u2, v2] of cases) {
+      expect(rasterizeTriangle(spans, u0, v0, u1, v1, u2, v2, 64, 48)).toBe(RASTER_OK);
+      let texels = 0;
+      for (let s = 0; s < spans.count; s++) texels += spans.x1[s] - spans.x0[s];
+      const work = rasterWork(u0, v0, u1, v1, u2, v2, 64, 48);
+      expect(work).toBeGreaterThanOrEqual(spans.count);
+      // The snapped area stands for the covered texels: equal up to the texels along the edges.
+      expect(work).toBeGreaterThanOrEqual(texels * 0.9);
+      expect(work).toBeLessThanOrEqual(texels + spans.count * 3 + 64);
+    }
+  });
+
+  it('counts a triangle over 32 x 32 tiles as covering the map about 512 times', () => {
+    const work = rasterWork(0, 0.05, 31.9, 0.05, 31.9, 31.95, 64, 64);
+    const texels = 64 * 64;
+    expect(work / texels).toBeGreaterThan(400);
+    expect(work / texels).toBeLessThan(600);
   });
 });

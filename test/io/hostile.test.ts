@@ -13,6 +13,8 @@ import { DEFAULT_MAX_TRIANGLES, TRIANGLE_ALLOWANCE, TRIANGLES_PER_INPUT_BYTE, ch
 import { readObj } from '../../src/io/objRead.js';
 import { isInside } from '../../src/io/uri.js';
 import { TanframeError } from '../../src/mesh/errors.js';
+import { defaultProcessOptions } from '../../src/lib/options.js';
+import { processFile } from '../../src/lib/processFile.js';
 import { buildGltf, glbBytes, writeGltf, type BuildPrimitive } from '../helpers/gltfBuilder.js';
 
 const root = fs.mkdtempSync(path.join(os.tmpdir(), 'tanframe-hostile-'));
@@ -246,6 +248,24 @@ describe.skipIf(!haveFifo)('pipes and devices are never read', () => {
   });
 });
 
+
+describe('many warnings', () => {
+  it('an MTL line of 200,000 unknown options gives 100 warnings and a closing count, not a stack overflow', async () => {
+    const dir = path.join(root, 'many-warnings');
+    fs.mkdirSync(dir);
+    fs.writeFileSync(path.join(dir, 'a.obj'), 'mtllib a.mtl\nv 0 0 0\nv 1 0 0\nv 0 1 0\nvt 0 0\nvt 1 0\nvt 0 1\nusemtl m\nf 1/1 2/2 3/3\n');
+    fs.writeFileSync(path.join(dir, 'a.mtl'), `newmtl m\nmap_Kd ${'-x '.repeat(200_000)}a.png\n`);
+    const r = await processFile(
+      { command: 'audit', input: path.join(dir, 'a.obj'), output: null, format: null, dryRun: true, displayInput: 'a.obj', displayOutput: null },
+      defaultProcessOptions(),
+    );
+    expect(r.status, r.error?.message).toBe('ok');
+    expect(r.warnings).toHaveLength(101);
+    expect(r.warnings[0]).toBe("a.mtl line 2: unknown texture option '-x' skipped");
+    // 200,000 unknown options and the missing image a.png: 200,001 warnings, 100 listed.
+    expect(r.warnings[100]).toBe('199,901 more warnings not listed (200,001 in all)');
+  });
+});
 
 describe.skipIf(process.platform !== 'linux')('kernel pseudo-files are never read', () => {
   // Found by review (issue 11): /proc/self/pagemap reports size 0 but reads as hundreds of

@@ -113,7 +113,9 @@ describe('OBJ reader cross-checked with @loaders.gl/obj', () => {
 
   it('valueFixturesAgree', async () => {
     const dir = path.join(repoRoot, 'fixtures/values');
-    const files = fs.readdirSync(dir).filter((f) => f.endsWith('.obj')).sort();
+    // @loaders.gl/obj does not implement line continuations ("\" at a line's end), so the
+    // fixture made of them is checked by our own tests only (test/io/objRead.test.ts).
+    const files = fs.readdirSync(dir).filter((f) => f.endsWith('.obj') && f !== 'obj-continued-lines.obj').sort();
     expect(files.length).toBeGreaterThan(0);
     for (const f of files) await crossCheck(path.join(dir, f));
   });

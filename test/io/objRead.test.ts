@@ -321,3 +321,21 @@ f 1/1/1 3/3/1 4/4/1
     expect(report.issues.numErrors).toBe(0);
   });
 });
+
+describe('line continuations', () => {
+  it('join a backslash-ended line with the next, trailing white space and CRLF included', async () => {
+    // One triangle whose v and f statements are split over lines (OBJ format: "\" at the end
+    // of a line continues it); the face ends in a chain of empty continued lines.
+    const obj = 'v 0 \\\n0 0\nv 1 0 0 \\  \r\n\nv 0 1 0\nf 1 \\\r\n2 \\\t\n3 \\\n\\\n\\\n\n';
+    const a = await readText(obj);
+    expect(Array.from(a.primitives[0].attributes.POSITION!.array)).toEqual([0, 0, 0, 1, 0, 0, 0, 1, 0]);
+    expect(Array.from(a.primitives[0].indices!)).toEqual([0, 1, 2]);
+  });
+
+  it('count the joined lines for messages and keep a backslash on the last line of the file', async () => {
+    // Lines 4-6 are one face; line 7 ends the file with a backslash, which stays a token.
+    const e = await errorOf('v 0 0 0\nv 1 0 0\nv 0 1 0\nf 1 \\\n2 \\\n3\nf 1 2 3 \\');
+    expect(e.code).toBe('bad-obj');
+    expect(e.message).toBe("line 7: malformed vertex index '\\' in face");
+  });
+});

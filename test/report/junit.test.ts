@@ -78,7 +78,9 @@ describe.skipIf(!hasXmllint)('junit file', () => {
     fs.writeFileSync(file, renderJunit(report));
     const v = validate(file);
     expect(v.status, v.out).toBe(0);
-    expect(xpath(file, 'string(//testcase/@name)')).toBe('we\uFFFDird\uFFFD.glb');
+    // Control characters are written as visible escapes (the one sanitiser, src/mesh/text.ts).
+    expect(xpath(file, 'string(//testcase/@name)')).toBe('we\\u0001ird\\u0000.glb');
+    expect(xpath(file, 'string(//testcase/error/@message)')).toBe('bad-glb: bad \\u001b[31m');
   });
 });
 
