@@ -4,8 +4,10 @@
  * the Actions toolkit applies (from memory: in the message `%` `\r` `\n` become `%25` `%0D`
  * `%0A`; in a property value `:` and `,` also become `%3A` and `%2C`).
  * `--annotate github`: one error annotation per tripped gate of each file and one per file
- * that failed, with `file=` the input path as the report names it.
+ * that failed, with `file=` the input path as the report names it. Strings from files and
+ * file names pass the sanitiser (cleanText) first, so no control character reaches the log.
  */
+import { cleanText } from '../mesh/text.js';
 import { gateDetails } from './junit.js';
 import type { FileReport, Report } from './types.js';
 
@@ -27,7 +29,7 @@ export function errorCommand(properties: [string, string][], message: string): s
 
 /** The message of a tripped gate: what the file's primitives hold, one line each. */
 function gateMessage(gate: string, f: FileReport): string {
-  const lines = gateDetails(gate, f);
+  const lines = gateDetails(gate, f).map(cleanText);
   if (gate === 'unchecked' && lines.length === 0) return 'gates were asked for and no primitive of this file could be checked';
   if (lines.length === 0) return `the ${gate} gate tripped`;
   return lines.join('\n');
@@ -44,11 +46,11 @@ export function renderGithubAnnotations(report: Report): string {
   for (const f of report.files) {
     if (f.status === 'failed') {
       const code = f.error?.code ?? 'internal';
-      out.push(errorCommand([['file', f.input], ['title', `tanframe: cannot process (${code})`]], f.error?.message ?? 'failed'));
+      out.push(errorCommand([['file', cleanText(f.input)], ['title', `tanframe: cannot process (${cleanText(code)})`]], cleanText(f.error?.message ?? 'failed')));
       continue;
     }
     for (const g of f.gates) {
-      out.push(errorCommand([['file', f.input], ['title', `tanframe: ${g}`]], `gate ${g} tripped\n${gateMessage(g, f)}`));
+      out.push(errorCommand([['file', cleanText(f.input)], ['title', `tanframe: ${cleanText(g)}`]], `gate ${cleanText(g)} tripped\n${gateMessage(g, f)}`));
     }
   }
   return out.length ? out.join('\n') + '\n' : '';

@@ -22,17 +22,20 @@ describe('escaping', () => {
     expect(errorCommand([['file', 'a,b.glb'], ['title', 't: x']], 'm\nn')).toBe('::error file=a%2Cb.glb,title=t%3A x::m%0An');
   });
 
-  it('keepsEveryCommandOnOneLineWhateverTheFileName', () => {
-    const nasty = 'odd\nname,with:colons%.glb';
+  it('keepsEveryCommandOnOneLineWithNoControlCharactersWhateverTheFileName', () => {
+    // Control characters from names and messages go through the sanitiser (visible \uXXXX);
+    // then the workflow-command escaping applies to what is left.
+    const nasty = 'odd\nname,with:colons%\u001b[31m.glb';
     const failed: FileReport = {
       input: nasty, output: null, status: 'failed', error: { code: 'bad-glb', message: 'bad magic\r\nsecond line' },
       gates: [], primitives: [], warnings: [], notes: [], seconds: 0,
     };
     const text = renderGithubAnnotations(buildReport('audit', '0.0.0', 'mikktspace', {}, [failed], 0));
     expect(text.split('\n')).toEqual([
-      '::error file=odd%0Aname%2Cwith%3Acolons%25.glb,title=tanframe%3A cannot process (bad-glb)::bad magic%0D%0Asecond line',
+      '::error file=odd\\u000aname%2Cwith%3Acolons%25\\u001b[31m.glb,title=tanframe%3A cannot process (bad-glb)::bad magic\\u000d\\u000asecond line',
       '',
     ]);
+    expect(text).not.toMatch(/[\u0000-\u0009\u000b-\u001f\u007f]/);
   });
 });
 
