@@ -4,6 +4,7 @@
  * one-line record at least every 10 s (files done of total, failures so far). Neither with
  * --quiet or --no-progress. The clock is injectable so tests need no real waiting.
  */
+import { cleanText } from '../mesh/text.js';
 import type { FileReport } from '../report/types.js';
 
 /** Width of the bar in characters. */
@@ -36,7 +37,8 @@ function keepEnd(label: string, max: number): string {
 }
 
 /**
- * The text of one progress line (no carriage return): bar, count, and the last file's label.
+ * The text of one progress line (no carriage return): bar, count, and the last file's label
+ * (through the sanitiser: a file name's control characters never reach the terminal).
  * With `columns` (the terminal's width) the line fits in `columns - 1` characters, so it
  * never wraps: the label is cut first (keeping its end), then the bar narrows, then the
  * label and at last the bar are left out. Without it: a 24-cell bar and up to 48 characters
@@ -67,7 +69,7 @@ export function progressLine(done: number, total: number, label: string, columns
   const filled = total > 0 ? Math.round((barWidth * done) / total) : barWidth;
   const bar = '\u2588'.repeat(filled) + '\u00b7'.repeat(barWidth - filled);
   const head = `tanframe [${bar}] ${count}`;
-  return labelMax > 0 ? `${head}  ${keepEnd(label, labelMax)}` : head;
+  return labelMax > 0 ? `${head}  ${keepEnd(cleanText(label), labelMax)}` : head;
 }
 
 /** A progress bar writing to `write` (stderr); `update` after each file, `finish` at the end. */

@@ -36,6 +36,10 @@ describe('progressLine', () => {
     expect(progressLine(12, 12, 'x')).toContain(`[${'\u2588'.repeat(24)}] 12/12`);
   });
 
+  it('showsAFileNamesControlCharactersAsVisibleEscapes', () => {
+    expect(progressLine(1, 2, 'a\u001b]0;title\u0007.glb')).toBe(`tanframe [${'\u2588'.repeat(12)}${'\u00b7'.repeat(12)}] 1/2 files  a\\u001b]0;title\\u0007.glb`);
+  });
+
   it('keepsTheEndOfALongPath', () => {
     const label = 'a/'.repeat(40) + 'last.glb';
     const line = progressLine(1, 2, label);
