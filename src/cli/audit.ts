@@ -29,7 +29,7 @@ export async function runAudit(inputs: string[], o: Record<string, any>, io: Cli
   const started = performance.now();
   checkOutputOptions(o);
   const options = toProcessOptions(o);
-  const expanded = await expandInputs(inputs, io.cwd);
+  const expanded = await expandInputs(inputs, io.cwd, { exclude: o.exclude });
   const reports: FileReport[] = expanded.problems.map((p) => ({
     input: p.input, output: null, status: 'failed' as const, error: { code: 'read-failed', message: p.message },
     gates: [], primitives: [], warnings: [], notes: [], seconds: 0,

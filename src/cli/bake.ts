@@ -13,6 +13,7 @@ import type { InputFile } from '../io/inputs.js';
 import { containerOf, outputRelativeName, outputTarget } from '../lib/outputNames.js';
 import { planRun, type PlannedMesh } from '../lib/writePlan.js';
 import { addSharedOptions, checkOutputOptions, emitReport, exitStatus, shardOf, toProcessOptions, toolVersion, type CliIo } from './shared.js';
+import { RunState, STATE_FILE_NAME } from '../lib/runState.js';
 import { runBatch } from './batch.js';
 import { namedWrites, writeReportFiles } from './outputs.js';
 
@@ -48,7 +49,8 @@ export function registerBake(program: Command, io: CliIo, done: (code: number) =
       return x;
     }, 60)
     .addOption(new Option('--tangent-type <type>', 'TANGENT component type').choices(['float', 'snorm16', 'snorm8']).default('float'))
-    .option('--dry-run', 'do everything but write the meshes', false);
+    .option('--dry-run', 'do everything but write the meshes', false)
+    .option('--force', `bake every file, ignoring the state of earlier runs (${STATE_FILE_NAME})`, false);
   addSharedOptions(cmd);
   cmd.action(async (inputs: string[], o: Record<string, any>) => {
     done(await runBake(inputs, o, io));
@@ -66,7 +68,7 @@ export async function runBake(inputs: string[], o: Record<string, any>, io: CliI
   options.normals = o.normals;
   options.smoothAngle = o.smoothAngle;
   options.tangentType = o.tangentType;
-  const expanded = await expandInputs(inputs, io.cwd);
+  const expanded = await expandInputs(inputs, io.cwd, { exclude: o.exclude, skipFolders: o.out ? [o.out] : [] });
   const files = shardOf(expanded.files, o.shard);
   // One input named as a file (one that does not exist fails as unreadable, not as a usage error).
   const first = inputs.length === 1 ? fs.statSync(path.resolve(io.cwd, inputs[0]), { throwIfNoEntry: false }) : undefined;
@@ -112,8 +114,15 @@ export async function runBake(inputs: string[], o: Record<string, any>, io: CliI
       displayInput: f.display, displayOutput: shownOutput(f, m, o), writes: writes ?? undefined,
     });
   }
-  const batch = await runBatch(jobs, options, o, io, run.plan);
+  const stateFolder = target && target.kind === 'folder' && !o.dryRun ? target.path : null;
+  if (stateFolder) run.plan.write(path.join(stateFolder, STATE_FILE_NAME), `the state file ${run.plan.shown(path.join(stateFolder, STATE_FILE_NAME))}`);
+  const state = stateFolder ? await RunState.open(stateFolder, {
+    version: toolVersion(), options, force: !!o.force, inputs: files.map((f) => f.path), warn: (m) => io.stderr(`tanframe: warning: ${m}\n`),
+  }) : null;
+  const pending = state ? await state.pending(jobs, reports) : jobs;
+  const batch = await runBatch(pending, options, o, io, run.plan, state ? (i, outcome) => state.take(pending[i], outcome.report, outcome.record) : undefined);
   for (const r of batch.reports) reports.push(r); // no spread: a batch may hold any number of files
+  await state?.save();
   const seconds = (performance.now() - started) / 1000;
   const report = buildReport('bake', toolVersion(), options.method, reportOptions(o), sortReports(reports), seconds);
   const writeFailures = batch.writeFailures + (await writeReportFiles(report, o, io, batch.pictures, run.files)) + (await emitReport(report, o, io, run.files));

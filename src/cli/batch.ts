@@ -3,7 +3,7 @@
  * progress bar, and the pictures streamed to --uv-maps / --html as files finish.
  */
 import * as os from 'node:os';
-import type { FileJob } from '../lib/processFile.js';
+import type { FileJob, FileOutcome } from '../lib/processFile.js';
 import type { ProcessOptions } from '../lib/options.js';
 import type { FileReport } from '../report/types.js';
 import type { WritePlan } from '../lib/writePlan.js';
@@ -30,7 +30,7 @@ export function fileTimeoutMs(o: Record<string, any>): number {
 /**
  * Runs `jobs` and returns their reports in job order, with the pictures (when --uv-maps or
  * --html asks for them) written (through `plan`'s guard) or kept for the page, and how many
- * pictures could not be written (each told on stderr).
+ * pictures could not be written (each told on stderr). `onOutcome` sees each job's outcome.
  */
 export async function runBatch(
   jobs: FileJob[],
@@ -38,6 +38,7 @@ export async function runBatch(
   o: Record<string, any>,
   io: CliIo,
   plan: WritePlan | null = null,
+  onOutcome?: (index: number, outcome: FileOutcome) => void,
 ): Promise<{ reports: FileReport[]; pictures: PictureOutputs; writeFailures: number }> {
   const pictures = new PictureOutputs(o, io, undefined, plan);
   const withPictures = pictures.wanted ? jobs.map((j) => ({ ...j, pictures: true })) : jobs;
@@ -51,6 +52,7 @@ export async function runBatch(
       threads: threadCount(o),
       fileTimeoutMs: fileTimeoutMs(o),
       workerScript: io.workerScript,
+      onOutcome,
       onPictures: pictures.wanted ? (_i, list) => pictures.take(list) : undefined,
       onProgress: bar || records
         ? (done, _total, input, report) => {

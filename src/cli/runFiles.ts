@@ -21,6 +21,8 @@ export interface RunSettings {
   workerScript?: URL;
   /** Receives each file's pictures, in job order (whatever order the files finish in). */
   onPictures?: (index: number, pictures: UvPicture[]) => void;
+  /** Receives each job's whole outcome, in completion order. */
+  onOutcome?: (index: number, outcome: FileOutcome) => void;
   /** Called after each file, in completion order, with the count done so far and the file's report. */
   onProgress?: (done: number, total: number, input: string, report: FileReport) => void;
 }
@@ -40,6 +42,7 @@ export async function runFiles(jobs: FileJob[], options: ProcessOptions, setting
   let done = 0;
   const take = (index: number, outcome: FileOutcome) => {
     reports[index] = outcome.report;
+    s.onOutcome?.(index, outcome);
     done++;
     s.onProgress?.(done, jobs.length, outcome.report.input, outcome.report);
     if (!s.onPictures) return;

@@ -98,6 +98,7 @@ export function addSharedOptions(cmd: Command): Command {
     .option('--uv-epsilon <x>', 'relative UV area below which a triangle is degenerate', numberArg(0, 1))
     .option('--max-triangles <n>', `most triangles one file may hold, checked before decoding (default ${DEFAULT_MAX_TRIANGLES})`, intArg(1))
     .option('--file-timeout <s>', `seconds one file may take in a batch before it fails with 'timeout' (0: no limit; default ${DEFAULT_FILE_TIMEOUT_S})`, numberArg(0, 1e9))
+    .option('--exclude <glob>', 'leave out of folder walks and globs what this glob matches (repeatable)', (v: string, prev: string[]) => [...prev, v], [] as string[])
     .option('--report <file>', 'write the JSON report to this file')
     .option('--junit <file>', 'write a JUnit XML file: one test case per input file')
     .option('--html <file>', 'write one self-contained HTML page: summary, per-file tables, UV pictures')

@@ -1,7 +1,8 @@
 /**
  * Based on: glTF 2.0 specification, section 3.7.2.1 (TANGENT: XYZ a normalized vertex tangent,
- * W = +1 or -1 the handedness; bitangent = cross(normal, tangent.xyz) * w), and the angle
- * between two directions as atan2(|a x b|, a . b), accurate at small angles.
+ * W = +1 or -1 the handedness; bitangent = cross(normal, tangent.xyz) * w), the angle between
+ * two directions as atan2(|a x b|, a . b), accurate at small angles, and METHODS.md step 8
+ * (corners where the standard method defines no tangent are left out of the statistics).
  */
 import { assert } from '../mesh/errors.js';
 import {
@@ -15,8 +16,13 @@ const DEG_PER_RAD = 180 / Math.PI;
 
 /** What compareStoredTangents found. Angles are in degrees, statistics over triangle corners. */
 export interface StoredTangentComparison {
-  /** Input vertices whose stored tangent is invalid (see isStoredTangentValid). */
+  /** Input vertices whose stored tangent is invalid (see isStoredTangentValid); their corners are not compared. */
   invalid: number;
+  /**
+   * Corners left out because the recomputed frame is undefined there (the method's fallback:
+   * no contributing triangle reaches the vertex), whatever the file stores.
+   */
+  undefinedFrames: number;
   /** Mean of the corner angles between stored and computed xyz; 0 when nothing was compared. */
   meanAngleDeg: number;
   /** 95th percentile (nearest rank) of the corner angles; 0 when nothing was compared. */
@@ -27,7 +33,7 @@ export interface StoredTangentComparison {
   signMismatch: number;
   /** Compared corners with an angle above the tolerance or a sign mismatch. */
   mismatched: number;
-  /** Corners compared (those whose stored tangent is finite with a non-zero xyz). */
+  /** Corners compared: a valid stored tangent and a defined recomputed frame. */
   compared: number;
 }
 
@@ -85,41 +91,58 @@ export function isStoredTangentSetValid(stored: Float32Array, normals: Float32Ar
  * c, the stored tangent of input vertex sourceVertex[computedIndices[c]] is compared with the
  * computed tangent of output vertex computedIndices[c]:
  * - angle = the angle between the two xyz directions, in degrees in [0, 180] (w ignored);
- * - sign mismatch when the stored w and the computed w have different signs (a stored w < 0
- *   reads as -1, anything else, 0 included, as +1).
- * Statistics count CORNERS, not vertices (a vertex shared by six triangles weighs six times),
- * and only the corners whose stored tangent has four finite values and a non-zero xyz
- * (length > ZERO_LENGTH): invalid-but-finite stored tangents (non-unit, w not +-1, not
- * orthogonal) are still compared, as the renderer would still use them. p95 is the
- * nearest-rank 95th percentile of the sorted corner angles (float64). `mismatched` counts the
- * compared corners with angle > toleranceDeg or a sign mismatch. `invalid` counts input
- * VERTICES in [0, vertexCount) with an invalid stored tangent (isStoredTangentValid against
- * `normals`, which may be null). With nothing compared the three angles are 0.
+ * - sign mismatch when the stored w and the computed w differ.
+ * Statistics count CORNERS, not vertices (a vertex shared by six triangles weighs six times).
+ * A corner is left out of them when:
+ * - `undefinedCorners` (the solve's FrameResult.undefinedCorners, per corner of
+ *   computedIndices; null when unknown) marks it: the method defines no tangent there and the
+ *   file holds some implementation's default (METHODS.md step 8). Counted in `undefinedFrames`;
+ * - else its stored tangent is invalid (isStoredTangentValid against `normals`, which may be
+ *   null: not unit, not orthogonal to the normal, w not +-1, or not finite): it says nothing
+ *   about the method (glTF 2.0 requires TANGENT xyz unit and w = +-1; the Khronos validator
+ *   reports xyz with | |xyz| - 1 | > 0.00674 as non-unit and any other w as an invalid sign,
+ *   read from the code of gltf-validator 2.0.0-dev.3.10, not from memory; the unit test here
+ *   is isStoredTangentValid's, with the tolerance of src/mesh/tolerances.ts). Counted as
+ *   `invalid`, which counts input VERTICES in [0, vertexCount), used by a triangle or not.
+ * p95 is the nearest-rank 95th percentile of the sorted corner angles (float64). `mismatched`
+ * counts the compared corners with angle > toleranceDeg or a sign mismatch. With nothing
+ * compared the three angles are 0.
  * Preconditions: stored holds 4 floats and normals (if given) 3 floats per input vertex;
  * computed holds 4 floats per output vertex; computedIndices < sourceVertex.length;
- * sourceVertex entries < vertexCount.
+ * sourceVertex entries < vertexCount; undefinedCorners (if given) holds one entry per corner.
  */
 export function compareStoredTangents(
   stored: Float32Array,
   computed: Float32Array,
   sourceVertex: Uint32Array,
   computedIndices: Uint32Array,
+  undefinedCorners: Uint8Array | null,
   normals: Float32Array | null,
   vertexCount: number,
   toleranceDeg: number = DEFAULT_TANGENT_MISMATCH_DEG,
 ): StoredTangentComparison {
   assert(computed.length >= sourceVertex.length * 4, 'computed tangents must hold 4 floats per output vertex');
-  const invalid = countInvalidStoredTangents(stored, normals, vertexCount);
+  assert(stored.length >= vertexCount * 4, 'stored tangents must hold 4 floats per vertex');
+  assert(!normals || normals.length >= vertexCount * 3, 'normals must hold 3 floats per vertex');
   const cornerCount = computedIndices.length;
+  assert(!undefinedCorners || undefinedCorners.length >= cornerCount, 'undefinedCorners must hold one entry per corner');
+  const valid = new Uint8Array(vertexCount);
+  let invalid = 0;
+  for (let v = 0; v < vertexCount; v++) {
+    if (isStoredTangentValid(stored, normals, v)) valid[v] = 1;
+    else invalid++;
+  }
   const angles = new Float64Array(cornerCount);
-  let compared = 0, signMismatch = 0, mismatched = 0, sum = 0, max = 0;
+  let compared = 0, undefinedFrames = 0, signMismatch = 0, mismatched = 0, sum = 0, max = 0;
   for (let c = 0; c < cornerCount; c++) {
+    if (undefinedCorners && undefinedCorners[c]) {
+      undefinedFrames++;
+      continue;
+    }
     const o = computedIndices[c];
     const v = sourceVertex[o];
+    if (!valid[v]) continue;
     const sx = stored[v * 4], sy = stored[v * 4 + 1], sz = stored[v * 4 + 2], sw = stored[v * 4 + 3];
-    // x - x is 0 for finite x, NaN for NaN and +-Infinity.
-    if (sx - sx !== 0 || sy - sy !== 0 || sz - sz !== 0 || sw - sw !== 0) continue;
-    if (!(sx * sx + sy * sy + sz * sz > ZERO_LENGTH * ZERO_LENGTH)) continue;
     const cx = computed[o * 4], cy = computed[o * 4 + 1], cz = computed[o * 4 + 2], cw = computed[o * 4 + 3];
     const xx = sy * cz - sz * cy, xy = sz * cx - sx * cz, xz = sx * cy - sy * cx;
     const angle = Math.atan2(Math.sqrt(xx * xx + xy * xy + xz * xz), sx * cx + sy * cy + sz * cz) * DEG_PER_RAD;
@@ -137,6 +160,7 @@ export function compareStoredTangents(
   }
   return {
     invalid,
+    undefinedFrames,
     meanAngleDeg: compared > 0 ? sum / compared : 0,
     p95AngleDeg: p95,
     maxAngleDeg: max,

@@ -11,7 +11,8 @@ import { splitByCornerFrames } from './split.js';
 /**
  * Computes tangent frames for a triangle mesh.
  * Returns tangents (4 floats per output vertex, xyz unit, w = +1 | -1), a triangle list over
- * the output vertices and, per output vertex, the input vertex it copies. `mikktspace`
+ * the output vertices, per output vertex the input vertex it copies and, per corner of that
+ * list, whether the method defined no tangent there (the fallback was written). `mikktspace`
  * (default) splits a vertex where its corners' frames differ (mirror seams); `lengyel` gives
  * one frame per input vertex and never splits. `uvOrigin` defaults to 'top-left' (glTF);
  * frames are solved with v measured upward either way. Degenerate input never throws: it
@@ -56,13 +57,17 @@ export function computeFrames(input: FrameInput, options: FrameOptions = {}): Fr
 
   if (method === 'lengyel') {
     const tangents = new Float32Array(vertexCount * 4);
-    const s = computeLengyelTangents(tangents, indices, positions, normals, uvs, vSign, weight, triangleCount, vertexCount);
+    const undefinedVertex = new Uint8Array(vertexCount);
+    const s = computeLengyelTangents(tangents, undefinedVertex, indices, positions, normals, uvs, vSign, weight, triangleCount, vertexCount);
     const sourceVertex = new Uint32Array(vertexCount);
     for (let v = 0; v < vertexCount; v++) sourceVertex[v] = v;
+    const undefinedCorners = new Uint8Array(indices.length);
+    for (let c = 0; c < indices.length; c++) undefinedCorners[c] = undefinedVertex[indices[c]];
     return {
       tangents,
       indices: indices.slice(),
       sourceVertex,
+      undefinedCorners,
       stats: {
         degenerateUvTriangles: s.degenerateUvTriangles,
         mirroredTriangles: s.mirroredTriangles,
@@ -72,12 +77,14 @@ export function computeFrames(input: FrameInput, options: FrameOptions = {}): Fr
     };
   }
   const cornerFrame = new Uint32Array(triangleCount * 3);
-  const s = computeMikktspaceFrames(cornerFrame, indices, positions, normals, uvs, faces, vSign, triangleCount, vertexCount);
+  const undefinedCorners = new Uint8Array(triangleCount * 3);
+  const s = computeMikktspaceFrames(cornerFrame, undefinedCorners, indices, positions, normals, uvs, faces, vSign, triangleCount, vertexCount);
   const split = splitByCornerFrames(cornerFrame, s.frames, indices, normals, vertexCount);
   return {
     tangents: split.tangents,
     indices: split.indices,
     sourceVertex: split.sourceVertex,
+    undefinedCorners,
     stats: {
       degenerateUvTriangles: s.degenerateUvTriangles,
       mirroredTriangles: s.mirroredTriangles,

@@ -21,11 +21,14 @@ export interface LengyelStats {
  * keeps t and flips w). `weight` selects how triangle tangents are summed: `derivative` adds
  * the unnormalised solutions; `angle`, `area` and `uniform` normalise them first and weight
  * by corner angle, triangle area or 1. Triangles with a degenerate UV determinant contribute
- * nothing; a vertex left without a direction gets the documented fallback.
- * Preconditions: indices hold 3 * triangleCount entries < vertexCount; out.length >= 4 * vertexCount.
+ * nothing; a vertex left without a direction gets the documented fallback and a 1 in
+ * `undefinedVertex` (0 elsewhere).
+ * Preconditions: indices hold 3 * triangleCount entries < vertexCount; out.length >= 4 * vertexCount;
+ * undefinedVertex.length >= vertexCount.
  */
 export function computeLengyelTangents(
   out: Float32Array,
+  undefinedVertex: Uint8Array,
   indices: Uint32Array,
   positions: Float32Array,
   normals: Float32Array,
@@ -94,9 +97,11 @@ export function computeLengyelTangents(
     const tl = Math.sqrt(tx * tx + ty * ty + tz * tz);
     if (!(tl > ZERO_LENGTH)) {
       writeFallbackTangent(out, v * 4, nx, ny, nz);
+      undefinedVertex[v] = 1;
       fallback++;
       continue;
     }
+    undefinedVertex[v] = 0;
     tx /= tl; ty /= tl; tz /= tl;
     // w = sign(dot(cross(N, t), B)); cross(N, t) is parallel to cross(N, T).
     const cx = ny * tz - nz * ty, cy = nz * tx - nx * tz, cz = nx * ty - ny * tx;

@@ -48,17 +48,22 @@ function newFrame(store: FrameStore): number {
 
 /**
  * Computes tangent frames with the MikkTSpace method: one frame per group, and for every
- * triangle corner (corner c = triangle c/3, slot c%3) the id of its frame in `cornerFrame`.
+ * triangle corner (corner c = triangle c/3, slot c%3) the id of its frame in `cornerFrame`
+ * and in `undefinedCorner` 1 where the frame is the documented fallback (no contributing
+ * triangle reached the corner, or their directions summed to zero: the method defines no
+ * tangent there, METHODS.md step 8), else 0.
  * A frame is xyz unit, w = +1 for an orientation-preserving group, -1 otherwise. `vSign` is +1
  * when v grows upward and -1 for glTF's top-left origin (negates every dv). `faces`, when
- * given, holds an original face id per triangle; consecutive triangles with the same id (a
- * split quad) are forced to one orientation. Corners with no usable direction get the
+ * given, holds an original face id per triangle; exactly two consecutive triangles with the
+ * same id (a split quad) are forced to one orientation, while three or more (a fanned polygon)
+ * are independent triangles. Corners with no usable direction get the
  * documented fallback (see fallback.ts). Returns the frames and the counts.
  * Preconditions: indices hold 3 * triangleCount entries < vertexCount; normals are unit;
- * cornerFrame.length >= 3 * triangleCount.
+ * cornerFrame.length and undefinedCorner.length >= 3 * triangleCount.
  */
 export function computeMikktspaceFrames(
   cornerFrame: Uint32Array,
+  undefinedCorner: Uint8Array,
   indices: Uint32Array,
   positions: Float32Array,
   normals: Float32Array,
@@ -149,17 +154,24 @@ export function computeMikktspaceFrames(
     }
   }
 
-  // Split quads (same face id on consecutive triangles) share one orientation.
+  // Split quads (exactly two consecutive triangles with one face id) share one orientation.
+  // A longer run is a polygon with more corners, fanned by the caller: the method takes only
+  // triangles and quads, so its triangles stay independent (METHODS.md step 7).
   if (faces) {
-    for (let t = 0; t + 1 < triangleCount; t++) {
-      if (faces[t] !== faces[t + 1]) continue;
-      const fa = flags[t], fb = flags[t + 1];
-      if ((fa | fb) & DEGENERATE) continue;
-      if ((fa & ORIENT_PRESERVING) === (fb & ORIENT_PRESERVING)) continue;
-      let first = (fb & GROUP_WITH_ANY) !== 0;
-      if (!first) first = uvArea(uvs, wi, t, vSign) >= uvArea(uvs, wi, t + 1, vSign);
-      const src = first ? t : t + 1, dst = first ? t + 1 : t;
-      flags[dst] = (flags[dst] & ~ORIENT_PRESERVING) | (flags[src] & ORIENT_PRESERVING);
+    let t = 0;
+    while (t < triangleCount) {
+      let end = t + 1;
+      while (end < triangleCount && faces[end] === faces[t]) end++;
+      if (end - t === 2) {
+        const fa = flags[t], fb = flags[t + 1];
+        if (!((fa | fb) & DEGENERATE) && (fa & ORIENT_PRESERVING) !== (fb & ORIENT_PRESERVING)) {
+          let first = (fb & GROUP_WITH_ANY) !== 0;
+          if (!first) first = uvArea(uvs, wi, t, vSign) >= uvArea(uvs, wi, t + 1, vSign);
+          const src = first ? t : t + 1, dst = first ? t + 1 : t;
+          flags[dst] = (flags[dst] & ~ORIENT_PRESERVING) | (flags[src] & ORIENT_PRESERVING);
+        }
+      }
+      t = end;
     }
   }
 
@@ -170,6 +182,7 @@ export function computeMikktspaceFrames(
   // 4-6. Groups at each welded vertex, evaluated as soon as they are complete.
   const cornerGroup = cornerFrame;
   cornerGroup.fill(NONE, 0, cornerCount);
+  undefinedCorner.fill(0, 0, cornerCount);
   const store: FrameStore = { data: new Float32Array(4 * Math.max(16, vertexCount + (vertexCount >>> 3))), count: 0 };
   let stack = new Uint32Array(1024);
   let members = new Uint32Array(64);
@@ -225,6 +238,7 @@ export function computeMikktspaceFrames(
       }
       if (!evaluateGroup(store.data, g, members, memberCount, vrep, orient !== 0, contrib, normals)) {
         fallbackCorners += memberCount;
+        for (let m = 0; m < memberCount; m++) undefinedCorner[members[m]] = 1;
       }
     }
   }
@@ -242,6 +256,7 @@ export function computeMikktspaceFrames(
           const g = newFrame(store);
           writeFallbackTangent(store.data, g * 4, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
           cornerGroup[c] = g;
+          undefinedCorner[c] = 1;
           fallbackCorners++;
         }
         if (firstGood[wi[c]] === NONE) firstGood[wi[c]] = c;
@@ -255,11 +270,13 @@ export function computeMikktspaceFrames(
         const src = firstGood[wi[c]];
         if (src !== NONE) {
           cornerGroup[c] = cornerGroup[src];
+          undefinedCorner[c] = undefinedCorner[src];
         } else {
           const v = wi[c];
           const g = newFrame(store);
           writeFallbackTangent(store.data, g * 4, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
           cornerGroup[c] = g;
+          undefinedCorner[c] = 1;
           fallbackCorners++;
         }
       }

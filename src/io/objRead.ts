@@ -332,6 +332,18 @@ function distSqF32(a: Float32Array, size: number, i: number, j: number): number 
 }
 
 /**
+ * Squared texture-space distance between texture coordinates i and j of the file (`vt` items,
+ * u and v as written, v upward), each rounded to float32 first and evaluated in float32: the
+ * coordinates as the file stores them, before v' = 1 - v (METHODS.md step 7).
+ */
+function fileUvDistSqF32(uvs: Float64Array, i: number, j: number): number {
+  const f = Math.fround;
+  const du = f(f(uvs[j * 2]!) - f(uvs[i * 2]!));
+  const dv = f(f(uvs[j * 2 + 1]!) - f(uvs[i * 2 + 1]!));
+  return f(f(du * du) + f(dv * dv));
+}
+
+/**
  * Builds one primitive from the faces of group `g`: de-duplicates corners by their
  * (v, vt, vn) triple (only the parts emitted as attributes count), then triangulates.
  */
@@ -458,7 +470,11 @@ function buildPrimitive(
   }
 
   // Triangulation. Quads split along the shorter diagonal: texture-space lengths first,
-  // position-space lengths on a tie, 0-2 on a full tie (MikkTSpace reference code, from memory).
+  // measured on the file's own coordinates (float32, v as written, before v' = 1 - v: rounding
+  // 1 - v can reverse a near tie), then position-space lengths on a tie, 0-2 on a full tie
+  // (METHODS.md step 7; MikkTSpace reference code, from memory). Polygons with more corners are
+  // fanned from corner 0; their triangles share the face id, and the solve takes them as
+  // independent triangles (only two triangles with one id form a quad).
   const indices = new Uint32Array(triangles * 3);
   const faces = new Uint32Array(triangles);
   let ti = 0;
@@ -473,8 +489,8 @@ function buildPrimitive(
       const c = cornerOut[cc + 2]!;
       const d = cornerOut[cc + 3]!;
       let diag02: boolean;
-      const t02 = uvs ? distSqF32(uvs, 2, a, c) : 0;
-      const t13 = uvs ? distSqF32(uvs, 2, b, d) : 0;
+      const t02 = uvs ? fileUvDistSqF32(o.uvs.a, srcT.a[a]!, srcT.a[c]!) : 0;
+      const t13 = uvs ? fileUvDistSqF32(o.uvs.a, srcT.a[b]!, srcT.a[d]!) : 0;
       if (t02 < t13) diag02 = true;
       else if (t13 < t02) diag02 = false;
       else diag02 = !(distSqF32(positions, 3, b, d) < distSqF32(positions, 3, a, c));
@@ -562,8 +578,9 @@ function errnoReason(e: unknown): string {
  * Per primitive: POSITION; NORMAL when every corner has a `vn`; TEXCOORD_0 when every corner
  * has a `vt`, stored as (u, 1 - v) in glTF's convention; COLOR_0 when any `v` line carries a
  * colour (white elsewhere). Corners sharing (v, vt, vn) share one vertex, in order of first
- * appearance. Quads split along the shorter diagonal (texture space, then position space);
- * larger polygons as fans. `faces` holds each triangle's face number within the primitive.
+ * appearance. Quads split along the shorter diagonal (texture space, on the coordinates as
+ * written, then position space); larger polygons as fans from corner 0. `faces` holds each
+ * triangle's face number within the primitive.
  *
  * Warnings (never failures): missing .mtl or image files (image bytes null, URI kept), lines
  * and points ignored, undefined materials, partially present vt / vn.
@@ -596,9 +613,11 @@ export async function readObjBytes(bytes: Uint8Array, path: string, limits: Read
   const library = new Map<string, MtlMaterial>();
   const mtlDirOf = new Map<MtlMaterial, string>();
   let mtlMissing = false;
+  const materialLibraries: string[] = [];
   for (const lib of o.mtllibs) {
     const uri = fileNameToUri(lib.file, '');
     const res = resources.resolve(uri, baseDir);
+    if (res.kind === 'file') materialLibraries.push(res.path);
     let mtlText: string;
     if (res.kind === 'data') {
       mtlText = new TextDecoder('utf-8').decode(res.bytes);
@@ -723,6 +742,7 @@ export async function readObjBytes(bytes: Uint8Array, path: string, limits: Read
     json,
     buffers: [],
     externalImages,
+    materialLibraries,
     primitives,
     warnings,
   };

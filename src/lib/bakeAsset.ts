@@ -187,6 +187,7 @@ export function solvePrimitive(
     triangleCount,
     computedTangents: frames.tangents,
     computedIndices: frames.indices,
+    computedUndefined: frames.undefinedCorners,
     sourceVertex: source,
     uvEpsilon: options.uvEpsilon,
     toleranceDeg: options.tolerance,

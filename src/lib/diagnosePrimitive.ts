@@ -23,6 +23,8 @@ export interface DiagnoseInput {
   triangleCount: number;
   computedTangents: Float32Array;
   computedIndices: Uint32Array;
+  /** Per corner of computedIndices, 1 where the solve defined no tangent (FrameResult.undefinedCorners). */
+  computedUndefined: Uint8Array;
   sourceVertex: Uint32Array;
   uvEpsilon: number;
   toleranceDeg: number;
@@ -56,10 +58,12 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
   let valid = false;
   if (storedTangents) {
     const c = compareStoredTangents(
-      storedTangents, input.computedTangents, input.sourceVertex, input.computedIndices, normals, vertexCount, input.toleranceDeg,
+      storedTangents, input.computedTangents, input.sourceVertex, input.computedIndices, input.computedUndefined, normals,
+      vertexCount, input.toleranceDeg,
     );
     report.storedTangents = {
       invalid: c.invalid,
+      undefinedFrames: c.undefinedFrames,
       meanAngleDeg: c.meanAngleDeg,
       p95AngleDeg: c.p95AngleDeg,
       maxAngleDeg: c.maxAngleDeg,

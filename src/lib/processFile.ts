@@ -15,6 +15,8 @@ import { readObj, readObjBytes } from '../io/objRead.js';
 import { memoryResources, type AssetResources } from '../io/resources.js';
 import type { FileReport } from '../report/types.js';
 import type { UvPicture } from '../report/uvPicture.js';
+import { unchangedOutputs } from './assetFiles.js';
+import { recordParts, sha256File, type RecordParts } from './runState.js';
 import { solveAsset } from './bakeAsset.js';
 import { guardOutputs } from './outputGuard.js';
 import { trippedGates } from './gates.js';
@@ -38,12 +40,16 @@ export interface FileJob {
   pictures?: boolean;
   /** What the run's write plan settled for this job (bake): where it writes, image names, buffers to remove. */
   writes?: JobWrites;
+  /** Also measure what the run's state records (RecordParts) for this bake. */
+  record?: boolean;
 }
 
 /** A file's report and, when the job asked for them, its UV pictures (never in the JSON report). */
 export interface FileOutcome {
   report: FileReport;
   pictures: UvPicture[];
+  /** What the state records, when the job asked for it and the bake wrote its outputs. */
+  record?: RecordParts;
 }
 
 /** Reads any supported mesh file by its extension, within `limits` (default limits when omitted). */
@@ -126,7 +132,9 @@ export async function processFileOutcome(job: FileJob, options: ProcessOptions):
     seconds: 0,
   };
   let pictures: UvPicture[] = [];
+  let record: RecordParts | undefined;
   try {
+    const inputSha = job.record && job.output && !job.dryRun ? await sha256File(job.input) : null;
     const asset = await readAsset(job.input, { maxTriangles: options.maxTriangles });
     report.warnings = capWarnings(asset.warnings).map((w) => quoteText(w, MAX_MESSAGE_LENGTH));
     for (const ext of asset.decompressed ?? []) {
@@ -141,9 +149,14 @@ export async function processFileOutcome(job: FileJob, options: ProcessOptions):
       const format = outputFormat(asset.container, job.format);
       const w = job.writes;
       const out = w?.output ?? job.output;
-      const encoded = encodeGltf(asset, solved.replacements, { format, outPath: out, imageUris: w?.imageUris, embedBuffers: w?.embedBuffers && asset.container === 'gltf' });
-      const files = await guardOutputs(encoded, out, job.input, asset, w);
-      if (!job.dryRun) {
+      // A copy keeps the input's image URIs: when the plan renamed one, the file is encoded.
+      const renamed = Object.keys(w?.imageUris ?? {}).length > 0;
+      const unchanged = await unchangedOutputs(asset, job.input, out, format, solved.replacements.size > 0 || renamed, w?.files);
+      if (unchanged) report.notes = [unchanged.length === 0 ? 'nothing to bake: left as it was' : 'nothing to bake: written as the input\'s bytes'];
+      const planned = unchanged ?? encodeGltf(asset, solved.replacements, { format, outPath: out, imageUris: w?.imageUris, embedBuffers: w?.embedBuffers && asset.container === 'gltf' });
+      const files = await guardOutputs(planned, out, job.input, asset, w);
+      // In place with nothing to bake, nothing is written (and nothing the file names is removed).
+      if (!job.dryRun && !(unchanged && unchanged.length === 0)) {
         await writeFilesAtomic(files, {
           main: out,
           removeAfter: w?.removeAfter,
@@ -151,6 +164,7 @@ export async function processFileOutcome(job: FileJob, options: ProcessOptions):
         });
         report.notes.push(...(w?.notes ?? []));
       }
+      if (inputSha) record = await recordParts(inputSha, asset, job.input, planned);
       report.output = job.dryRun ? null : job.displayOutput;
     }
   } catch (err) {
@@ -160,7 +174,8 @@ export async function processFileOutcome(job: FileJob, options: ProcessOptions):
     report.gates = [];
     report.notes = [];
     pictures = [];
+    record = undefined;
   }
   report.seconds = (performance.now() - started) / 1000;
-  return { report, pictures };
+  return record ? { report, pictures, record } : { report, pictures };
 }

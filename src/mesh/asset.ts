@@ -82,6 +82,8 @@ export interface Asset {
   buffers: Uint8Array[];
   /** Images named by URI (embedded images live in bufferViews or data: URIs and need nothing here). */
   externalImages: ExternalImage[];
+  /** OBJ: absolute paths of the material libraries (.mtl) the file names, found or not. */
+  materialLibraries?: string[];
   /** Every mesh primitive in json order (mesh by mesh, primitive by primitive). */
   primitives: PrimitiveData[];
   /** Non-fatal findings worth telling the user (missing image, ...), one line each. */

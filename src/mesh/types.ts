@@ -27,8 +27,10 @@ export interface FrameInput {
   /** Triangle list; when absent, vertices 0,1,2 form the first triangle and so on. */
   indices?: Uint32Array | null;
   /**
-   * Optional original face per triangle (for example an OBJ quad split in two): triangles
-   * sharing a face id are kept together by `mikktspace` (same orientation, same group).
+   * Optional original face per triangle (for example an OBJ quad split in two): exactly two
+   * consecutive triangles sharing a face id are a quad, kept to one orientation by
+   * `mikktspace`; the triangles of a fanned polygon with more corners (three or more with
+   * one id) are solved as independent triangles, as the standard method takes them.
    */
   faces?: Uint32Array | null;
 }
@@ -60,5 +62,12 @@ export interface FrameResult {
   indices: Uint32Array;
   /** For each output vertex, the input vertex it copies. */
   sourceVertex: Uint32Array;
+  /**
+   * Per corner of `indices` (3 per triangle): 1 where the method defines no tangent (no
+   * contributing triangle reaches the corner's vertex, e.g. every triangle around it is
+   * degenerate in UV) and the documented fallback was written, else 0. A file made by another
+   * implementation of the method holds that implementation's default there (METHODS.md step 8).
+   */
+  undefinedCorners: Uint8Array;
   stats: FrameStats;
 }

@@ -91,6 +91,7 @@ function stored(p: PrimitiveReport): string {
   if (s.mismatched) parts.push(`${n(s.mismatched)} of ${n(s.compared)} corners off`);
   if (s.signMismatch) parts.push(`${n(s.signMismatch)} sign`);
   if (s.invalid) parts.push(`${n(s.invalid)} invalid`);
+  if (s.undefinedFrames) parts.push(`${n(s.undefinedFrames)} corners undefined (not compared)`);
   return parts.join('; ');
 }
 

@@ -7,13 +7,14 @@ import type { FileReport, Report, ReportSummary } from './types.js';
 /** Totals over `files`; `seconds` is the wall time of the whole run. */
 export function summarize(files: FileReport[], seconds: number): ReportSummary {
   const s: ReportSummary = {
-    files: files.length, ok: 0, failed: 0, skipped: 0, triangles: 0,
+    files: files.length, ok: 0, failed: 0, skipped: 0, upToDate: 0, triangles: 0,
     degenerateUv: 0, degenerateGeometry: 0, invalidValues: 0, gatesTripped: [], seconds,
   };
   const gates = new Set<string>();
   for (const f of files) {
     if (f.status === 'ok') s.ok++;
     else if (f.status === 'failed') s.failed++;
+    else if (f.status === 'up-to-date') s.upToDate++;
     else s.skipped++;
     for (const g of f.gates) gates.add(g);
     for (const p of f.primitives) {

@@ -59,6 +59,7 @@ function storedCell(p: PrimitiveReport): string {
   if (s.mismatched) parts.push(`${n(s.mismatched)} off`);
   if (s.signMismatch) parts.push(`${n(s.signMismatch)} sign`);
   if (s.invalid) parts.push(`${n(s.invalid)} invalid`);
+  if (s.undefinedFrames) parts.push(`${n(s.undefinedFrames)} undefined`);
   return parts.join(', ');
 }
 
@@ -136,6 +137,7 @@ function fileBlock(f: FileReport, style: SummaryStyle): string[] {
 }
 
 function cleanLine(f: FileReport, style: SummaryStyle): string {
+  if (f.status === 'up-to-date') return `${paint(style.color, '32', 'up-to-date ')}${f.input}${f.output ? ` -> ${f.output}` : ''}`;
   const done = f.primitives.filter((p) => p.action !== 'skipped');
   const tri = done.reduce((a, p) => a + p.triangles, 0);
   const target = f.output ? ` -> ${cleanText(f.output)}` : '';
@@ -174,7 +176,7 @@ export function renderSummary(report: Report, style: SummaryStyle): string {
   if (clean > SUMMARY_CLEAN_FILES) lines.push(`         ... ${n(clean - SUMMARY_CLEAN_FILES)} more files without findings`);
   const gated = report.files.filter((f) => f.gates.length > 0).length;
   const totals = [
-    `${n(s.files)} file${s.files === 1 ? '' : 's'}: ${n(s.ok)} ok, ${n(s.failed)} failed, ${n(gated)} gated`,
+    `${n(s.files)} file${s.files === 1 ? '' : 's'}: ${n(s.ok)} ok, ${s.upToDate ? `${n(s.upToDate)} up-to-date, ` : ''}${n(s.failed)} failed, ${n(gated)} gated`,
     `${n(s.triangles)} triangles`,
     `${n(s.degenerateUv)} degenerate UV`,
     `${s.seconds.toFixed(2)} s`,

@@ -12,12 +12,18 @@ export interface TriangleFinding {
 
 /** Stored-vs-recomputed tangent comparison. */
 export interface StoredTangentReport {
+  /** Input vertices whose stored tangent is invalid (not unit, not orthogonal, w not +-1, not finite); not compared. */
   invalid: number;
+  /**
+   * Corners not compared because the recomputed frame is undefined there (no contributing
+   * triangle reaches the vertex; the file holds some default, tanframe its fallback).
+   */
+  undefinedFrames: number;
   meanAngleDeg: number;
   p95AngleDeg: number;
   maxAngleDeg: number;
   signMismatch: number;
-  /** Corners compared (valid stored tangent, finite recomputed one). */
+  /** Corners compared (valid stored tangent, defined recomputed frame). */
   compared: number;
   /** Corners whose angle exceeds the `--tolerance` or whose sign differs. */
   mismatched: number;
@@ -64,7 +70,8 @@ export interface PrimitiveReport {
 export interface FileReport {
   input: string;
   output: string | null;
-  status: 'ok' | 'failed' | 'skipped';
+  /** 'up-to-date': bake skipped the file, its outputs match the state of an earlier run (no primitives listed). */
+  status: 'ok' | 'failed' | 'skipped' | 'up-to-date';
   error: { code: string; message: string } | null;
   gates: string[];
   primitives: PrimitiveReport[];
@@ -84,6 +91,8 @@ export interface ReportSummary {
   ok: number;
   failed: number;
   skipped: number;
+  /** Files bake skipped as up-to-date. */
+  upToDate: number;
   triangles: number;
   degenerateUv: number;
   degenerateGeometry: number;

@@ -97,6 +97,15 @@ beforeAll(async () => {
   wrong.tangents![(10 * 3) * 4 + 1] = Math.sin(r);
   wrong.tangents![(50 * 3 + 1) * 4 + 3] = -1; // corner 1 of triangle 50: the other handedness
   await writeGridGlb(grids, 'tangents-wrong', wrong);
+  // Triangle 10's three UVs collapsed to one point: its own vertices (no neighbour welds with
+  // them) have no defined frame; the file stores (0, 1, 0), w = -1 there, as another
+  // implementation's default could be.
+  const undef = gridAsset(N, true);
+  for (let k = 0; k < 3; k++) {
+    setCornerUv(undef, 10, k, cornerUv(undef, 10, 0));
+    undef.tangents!.set([0, 1, 0, -1], (10 * 3 + k) * 4);
+  }
+  await writeGridGlb(path.join(tmp, 'extra'), 'tangents-undefined', undef); // outside grids/ (batch tests count those)
 });
 afterAll(() => {
   fs.rmSync(tmp, { recursive: true, force: true });
@@ -213,6 +222,24 @@ describe('audit finds planted defects exactly', () => {
     expect(s.signMismatch).toBe(1);
     expect(s.mismatched).toBe(2);
     expect(s.maxAngleDeg).toBeCloseTo(30, 3);
+  });
+
+  it('cornersWithoutADefinedFrameAreCountedApartAndNotCompared', async () => {
+    // Source: METHODS.md step 8: where no contributing triangle reaches a vertex, the method
+    // defines no tangent; the comparison leaves those corners out and counts them apart.
+    const file = path.join(tmp, 'extra', 'tangents-undefined.glb');
+    const r = await audit([file, '--fail-on', 'tangent-mismatch']);
+    expect(r.code).toBe(0);
+    const p = r.report.files[0].primitives[0];
+    expect(p.storedTangents).toEqual({
+      invalid: 0, undefinedFrames: 3, meanAngleDeg: 0, p95AngleDeg: 0, maxAngleDeg: 0, signMismatch: 0,
+      compared: 3 * 2 * N * N - 3, mismatched: 0,
+    });
+    expect(p.fallbackTangents).toBeGreaterThan(0);
+    const shown = await runCli(['audit', file, '--html', 'undefined.html'], tmp);
+    expect(shown.code).toBe(0);
+    expect(shown.stdout).toMatch(/mean 0\.000\u00b0 max 0\.00\u00b0, 3 undefined/);
+    expect(fs.readFileSync(path.join(tmp, 'undefined.html'), 'utf8')).toContain('3 corners undefined (not compared)');
   });
 
   it('missingTangentsOnANormalMappedPrimitiveTripTheirGate', async () => {

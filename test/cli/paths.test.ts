@@ -143,7 +143,8 @@ describe('outputs stay inside -o', () => {
     const r = await runCli(['bake', src, '-o', out, '--all-primitives', '--json', '--jobs', '1'], tmp);
     expect(r.stderr).toBe('');
     expect(r.code).toBe(0);
-    expect(Object.keys(tree(out)).sort()).toEqual(['..x.glb', '.hidden.glb', path.join('sub', '..y.glb')].sort());
+    // Besides the outputs, a bake into a folder keeps its state file there (DESIGN.md, Guarantees).
+    expect(Object.keys(tree(out)).sort()).toEqual(['..x.glb', '.hidden.glb', '.tanframe-state.json', path.join('sub', '..y.glb')].sort());
     // Nothing landed beside -o.
     expect(fs.readdirSync(tmp).filter((n) => n.endsWith('.glb'))).toEqual([]);
   });
@@ -159,7 +160,7 @@ describe('outputs stay inside -o', () => {
     const r = await runCli(['bake', src, '-o', out, '--quiet'], tmp);
     expect(r.stderr).toBe('');
     expect(r.code).toBe(0);
-    expect(Object.keys(tree(out)).sort().map((f) => f.replace(/\.[0-9a-f]{16}\.bin$/, '.<hash>.bin'))).toEqual(['props/quad.<hash>.bin', 'props/quad.gltf', 'props/textures/normal.png']);
+    expect(Object.keys(tree(out)).sort().map((f) => f.replace(/\.[0-9a-f]{16}\.bin$/, '.<hash>.bin'))).toEqual(['.tanframe-state.json', 'props/quad.<hash>.bin', 'props/quad.gltf', 'props/textures/normal.png']);
     expect(tree(real)).toEqual(before);
   });
 });

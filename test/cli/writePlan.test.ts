@@ -295,7 +295,8 @@ describe('explicit files from different folders keep their layout', () => {
     const r = await runCli(['bake', 'a/x.glb', 'b/deep/x.glb', '-o', 'out', '--all-primitives', '--quiet'], dir);
     expect(r.stderr).toBe('');
     expect(r.code).toBe(0);
-    expect(Object.keys(tree(path.join(dir, 'out'))).sort()).toEqual([path.join('a', 'x.glb'), path.join('b', 'deep', 'x.glb')]);
+    // Beside the outputs, the run's state file (a bake into a folder keeps one).
+    expect(Object.keys(tree(path.join(dir, 'out'))).sort()).toEqual(['.tanframe-state.json', path.join('a', 'x.glb'), path.join('b', 'deep', 'x.glb')]);
   });
 });
 
@@ -331,7 +332,7 @@ describe('output names', () => {
     for (const o of ['existing', 'slashed/', 'newdir']) {
       const r = await runCli(['bake', input, '-o', o, '--all-primitives'], dir);
       expect(r.code, o).toBe(0);
-      expect(fs.readdirSync(path.join(dir, o)), o).toEqual(['crate.glb']);
+      expect(fs.readdirSync(path.join(dir, o)).filter((n) => n !== '.tanframe-state.json'), o).toEqual(['crate.glb']);
     }
     expect(fs.existsSync(path.join(dir, 'newdir.glb'))).toBe(false);
   });
@@ -449,10 +450,11 @@ describe('equal bytes are not rewritten', () => {
     writeQuadGlb(path.join(dir, 'in', 'g.glb'));
     expect((await runCli(['bake', 'in', '-o', 'out', '--all-primitives', '--quiet'], dir)).code).toBe(0);
     const files = Object.keys(tree(path.join(dir, 'out')));
-    expect(files.length).toBe(4); // a.gltf, a.<hash>.bin, textures/normal.png, g.glb
+    expect(files.length).toBe(5); // a.gltf, a.<hash>.bin, textures/normal.png, g.glb, .tanframe-state.json
     const past = new Date('2020-01-01T00:00:00Z');
     for (const f of files) fs.utimesSync(path.join(dir, 'out', f), past, past);
-    expect((await runCli(['bake', 'in', '-o', 'out', '--all-primitives', '--quiet'], dir)).code).toBe(0);
+    // --force: every file is baked and written again (not skipped as up-to-date), to equal bytes.
+    expect((await runCli(['bake', 'in', '-o', 'out', '--all-primitives', '--quiet', '--force'], dir)).code).toBe(0);
     for (const f of files) expect(fs.statSync(path.join(dir, 'out', f)).mtime.getTime(), f).toBe(past.getTime());
   });
 });

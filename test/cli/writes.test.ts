@@ -252,8 +252,8 @@ describe('--file-timeout', () => {
     expect(big.error.code).toBe('timeout');
     expect(big.output).toBeNull();
     expect(ok.status).toBe('ok');
-    // The stopped file left no output and no temporary file.
-    expect(listFiles(out)).toEqual(['b_small.glb']);
+    // The stopped file left no output and no temporary file (beside the run's state file).
+    expect(listFiles(out)).toEqual(['.tanframe-state.json', 'b_small.glb']);
   });
 
   it('holds for a single input too: the one file runs on a worker thread that is stopped', async () => {

@@ -123,6 +123,38 @@ describe('mikktspace', () => {
     for (let c = 0; c < 6; c++) expect(tangentAtCorner(quad, c)[3]).toBe(1);
   });
 
+  it('fannedPolygonTrianglesStayIndependent', () => {
+    // A hexagon fanned from corner 0 into four triangles sharing one face id. Its UVs make the
+    // first triangle orientation preserving and the other three mirrored:
+    //   positions (regular hexagon)      uv
+    //        4 ---- 3                    0 (0,0)  1 (1,0)  2 (1,1)
+    //      /  \ ..   \                   3 (2,1)  4 (3,1)  5 (4,1)
+    //     5 ---0------ 2                 det: t0 (0,1,2) +1; t1 (0,2,3), t2 (0,3,4), t3 (0,4,5) -1
+    //           \    /
+    //            1
+    // Source: METHODS.md step 7: the method takes only triangles and quads; a polygon's fan
+    // triangles are independent (no shared orientation). So a face id on them changes nothing,
+    // where forcing pairs along the fan would have pulled every triangle to w = +1.
+    const positions: number[] = [];
+    for (let k = 0; k < 6; k++) positions.push(Math.cos((k - 3) * Math.PI / 3), Math.sin((k - 3) * Math.PI / 3), 0);
+    const P = new Float32Array(positions);
+    const uvs = new Float32Array([0, 0, 1, 0, 1, 1, 2, 1, 3, 1, 4, 1]);
+    const indices = new Uint32Array([0, 1, 2, 0, 2, 3, 0, 3, 4, 0, 4, 5]);
+    const apart = computeFrames({ positions: P, normals: up(6), uvs, indices }, { uvOrigin: 'bottom-left' });
+    const fan = computeFrames({ positions: P, normals: up(6), uvs, indices, faces: new Uint32Array([3, 3, 3, 3]) }, { uvOrigin: 'bottom-left' });
+    const w = (r: ReturnType<typeof computeFrames>) => [0, 1, 2, 3].map((t) => tangentAtCorner(r, t * 3 + 1)[3]);
+    expect(w(fan)).toEqual([1, -1, -1, -1]);
+    for (let c = 0; c < 12; c++) expect(tangentAtCorner(fan, c)).toEqual(tangentAtCorner(apart, c));
+    expect(Array.from(fan.indices)).toEqual(Array.from(apart.indices));
+    // Two triangles with one id are still a quad: the same first two triangles as a quad are
+    // forced to one orientation (the mirrored one has the same UV area, so the first wins).
+    const quad = computeFrames(
+      { positions: P, normals: up(6), uvs, indices: indices.slice(0, 6), faces: new Uint32Array([3, 3]) },
+      { uvOrigin: 'bottom-left' },
+    );
+    for (let c = 0; c < 6; c++) expect(tangentAtCorner(quad, c)[3]).toBe(1);
+  });
+
   it('smoothSurfaceDoesNotSplit', () => {
     // A 3x3 grid with one consistent UV layout: one group per vertex, no split.
     const positions: number[] = [], uvs: number[] = [], idx: number[] = [];

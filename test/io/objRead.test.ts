@@ -8,6 +8,7 @@ import * as path from 'node:path';
 // @ts-ignore -- the validator ships no type declarations
 import validator from 'gltf-validator';
 import { objAttributesAsGltf, readObj } from '../../src/io/objRead.js';
+import { computeFrames } from '../../src/frames/computeFrames.js';
 import { TanframeError } from '../../src/mesh/errors.js';
 import type { Asset } from '../../src/mesh/asset.js';
 
@@ -91,12 +92,63 @@ f 1/1 2/2 3/3 4/4\n`);
     expect(tris(a)).toEqual([0, 1, 2, 0, 2, 3]);
   });
 
+  it('measures the texture-space diagonals on v as the file stores it, not on 1 - v', async () => {
+    // Source: METHODS.md step 7 (diagonal measured on the file's float32 coordinates, before any
+    // change of v origin). A square UV cell of side 0.1 turned by 30 degrees, coordinates written
+    // to 6 decimals: both diagonals are 0.02 long up to rounding, so float32 rounding decides.
+    //          2 (0.856218, 0.536603)
+    //        /    \
+    //   3 (0.769615, 0.486603)   1 (0.906218, 0.45)
+    //        \    /
+    //          0 (0.819615, 0.4)
+    // On the stored v: |uv2-uv0|^2 < |uv3-uv1|^2 -> diagonal 0-2. On fround(1 - v) the order
+    // reverses (1-3 would win), which is what measuring after the conversion picked.
+    const uv = [[0.819615, 0.4], [0.906218, 0.45], [0.856218, 0.536603], [0.769615, 0.486603]];
+    const f = Math.fround;
+    const d2 = (p: number[], q: number[]) => {
+      const du = f(f(q[0]!) - f(p[0]!)), dv = f(f(q[1]!) - f(p[1]!));
+      return f(f(du * du) + f(dv * dv));
+    };
+    const flip = (p: number[]) => [p[0]!, 1 - p[1]!];
+    expect(d2(uv[0]!, uv[2]!)).toBeLessThan(d2(uv[1]!, uv[3]!)); // stored v: 0-2 shorter
+    expect(d2(flip(uv[1]!), flip(uv[3]!))).toBeLessThan(d2(flip(uv[0]!), flip(uv[2]!))); // 1 - v: 1-3 shorter
+    const a = await readText(`v 0 0 0\nv 1 0 0\nv 1 1 0\nv 0 1 0
+${uv.map((p) => `vt ${p[0]} ${p[1]}`).join('\n')}
+f 1/1 2/2 3/3 4/4\n`);
+    expect(tris(a)).toEqual([0, 1, 2, 0, 2, 3]);
+  });
+
   it('fans polygons with more than four corners and keeps one face id per polygon', async () => {
     // pentagon 0..4 followed by a triangle
     const a = await readText(`v 0 0 0\nv 1 0 0\nv 2 1 0\nv 1 2 0\nv 0 1 0
 f 1 2 3 4 5\nf 1 3 4\n`);
     expect(tris(a)).toEqual([0, 1, 2, 0, 2, 3, 0, 3, 4, 0, 2, 3]);
     expect(Array.from(a.primitives[0]!.faces!)).toEqual([0, 0, 0, 1]);
+  });
+
+  it("solves a hexagon's fan triangles as independent triangles (no split inside the face from forced orientations)", async () => {
+    // Source: METHODS.md step 7: polygons beyond quads are fanned from corner 0 and their
+    // triangles are independent. Hexagon face with UVs along a zigzag, so the fan triangles
+    // alternate orientation (det of (0,1,2) > 0, (0,2,3) < 0, (0,3,4) > 0, (0,4,5) < 0, OBJ v up):
+    //   uv: 0 (0,0)  1 (1,0)  2 (1,1)  3 (2,1)  4 (4,3)  5 (5,3)
+    const a = await readText(`v 1 0 0\nv 0.5 0.866 0\nv -0.5 0.866 0\nv -1 0 0\nv -0.5 -0.866 0\nv 0.5 -0.866 0
+vt 0 0\nvt 1 0\nvt 1 1\nvt 2 1\nvt 4 3\nvt 5 3\nvn 0 0 1
+f 1/1/1 2/2/1 3/3/1 4/4/1 5/5/1 6/6/1\n`);
+    const p = a.primitives[0]!;
+    expect(Array.from(p.faces!)).toEqual([0, 0, 0, 0]);
+    const input = {
+      positions: p.attributes.POSITION!.array as Float32Array,
+      normals: p.attributes.NORMAL!.array as Float32Array,
+      uvs: p.attributes.TEXCOORD_0!.array as Float32Array,
+      indices: p.indices!,
+    };
+    const withFace = computeFrames({ ...input, faces: p.faces }, { method: 'mikktspace' });
+    const apart = computeFrames(input, { method: 'mikktspace' });
+    expect(Array.from(withFace.tangents)).toEqual(Array.from(apart.tangents));
+    expect(Array.from(withFace.indices)).toEqual(Array.from(apart.indices));
+    // Per triangle w (glTF origin): +1, -1, +1, -1, so the face really holds both sides.
+    const w = [0, 1, 2, 3].map((t) => withFace.tangents[withFace.indices[t * 3 + 1]! * 4 + 3]);
+    expect(w).toEqual([1, -1, 1, -1]);
   });
 });
 
