@@ -10,7 +10,8 @@ import { reportOptions, sortReports } from './bake.js';
 import { runBatch } from './batch.js';
 import { namedWrites, writeReportFiles } from './outputs.js';
 import { planRun } from '../lib/writePlan.js';
-import { addSharedOptions, checkOutputOptions, emitReport, exitStatus, shardOf, toProcessOptions, toolVersion, type CliIo } from './shared.js';
+import { namedExplicitly, perFile, resolveSettings } from './config.js';
+import { addSharedOptions, checkOutputOptions, emitReport, exitStatus, shardOf, toolVersion, type CliIo } from './shared.js';
 
 /** Registers `audit` on `program`; `done` receives the exit status. */
 export function registerAudit(program: Command, io: CliIo, done: (code: number) => void): void {
@@ -25,17 +26,20 @@ export function registerAudit(program: Command, io: CliIo, done: (code: number) 
 }
 
 /** The `audit` command's body, callable in-process. Returns the exit status. */
-export async function runAudit(inputs: string[], o: Record<string, any>, io: CliIo): Promise<number> {
+export async function runAudit(inputs: string[], given: Record<string, any>, io: CliIo): Promise<number> {
   const started = performance.now();
+  const settings = resolveSettings(given, io.cwd);
+  const { options, o } = settings;
   checkOutputOptions(o);
-  const options = toProcessOptions(o);
   const expanded = await expandInputs(inputs, io.cwd, { exclude: o.exclude });
+  expanded.files = expanded.files.filter((f) => !(settings.excluded(f.path) && !namedExplicitly(inputs, f.path, io.cwd)));
   const reports: FileReport[] = expanded.problems.map((p) => ({
     input: p.input, output: null, status: 'failed' as const, error: { code: 'read-failed', message: p.message },
     gates: [], primitives: [], warnings: [], notes: [], seconds: 0,
   }));
   const jobs: FileJob[] = shardOf(expanded.files, o.shard).map((f) => ({
     command: 'audit', input: f.path, output: null, format: null, dryRun: true, displayInput: f.display, displayOutput: null,
+    ...perFile(settings, f.path),
   }));
   // Audit writes no meshes: the plan holds the report files and --uv-maps, checked against every input and what it references.
   const run = await planRun({ cwd: io.cwd, inputs: expanded.files.map((f) => f.path), meshes: [], ...namedWrites(o, io) });

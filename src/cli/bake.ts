@@ -10,9 +10,11 @@ import type { FileJob } from '../lib/processFile.js';
 import { buildReport } from '../report/json.js';
 import type { FileReport } from '../report/types.js';
 import type { InputFile } from '../io/inputs.js';
+import type { ProcessOptions } from '../lib/options.js';
 import { containerOf, outputRelativeName, outputTarget } from '../lib/outputNames.js';
 import { planRun, type PlannedMesh } from '../lib/writePlan.js';
-import { addSharedOptions, checkOutputOptions, emitReport, exitStatus, shardOf, toProcessOptions, toolVersion, type CliIo } from './shared.js';
+import { namedExplicitly, perFile, resolveSettings } from './config.js';
+import { addSharedOptions, checkOutputOptions, emitReport, exitStatus, shardOf, toolVersion, type CliIo } from './shared.js';
 import { RunState, STATE_FILE_NAME } from '../lib/runState.js';
 import { runBatch } from './batch.js';
 import { namedWrites, writeReportFiles } from './outputs.js';
@@ -58,17 +60,22 @@ export function registerBake(program: Command, io: CliIo, done: (code: number) =
 }
 
 /** The `bake` command's body, callable in-process. Returns the exit status. */
-export async function runBake(inputs: string[], o: Record<string, any>, io: CliIo): Promise<number> {
+export async function runBake(inputs: string[], given: Record<string, any>, io: CliIo): Promise<number> {
   const started = performance.now();
-  if (o.out && o.inPlace) throw new TanframeError('usage', 'choose one of -o/--out and --in-place');
-  if (!o.out && !o.inPlace && !o.dryRun) throw new TanframeError('usage', 'say where to write: -o <out> or --in-place (or --dry-run)');
+  if (given.out && given.inPlace) throw new TanframeError('usage', 'choose one of -o/--out and --in-place');
+  if (!given.out && !given.inPlace && !given.dryRun) throw new TanframeError('usage', 'say where to write: -o <out> or --in-place (or --dry-run)');
+  const settings = resolveSettings(given, io.cwd);
+  const { options, o } = settings;
   checkOutputOptions(o);
-  const options = toProcessOptions(o);
-  options.keepExisting = !!o.keepExisting;
-  options.normals = o.normals;
-  options.smoothAngle = o.smoothAngle;
-  options.tangentType = o.tangentType;
+  const bakeOnly = (p: ProcessOptions) => {
+    p.keepExisting = !!o.keepExisting;
+    p.normals = o.normals;
+    p.smoothAngle = o.smoothAngle;
+    p.tangentType = o.tangentType;
+  };
+  bakeOnly(options);
   const expanded = await expandInputs(inputs, io.cwd, { exclude: o.exclude, skipFolders: o.out ? [o.out] : [] });
+  expanded.files = expanded.files.filter((f) => !(settings.excluded(f.path) && !namedExplicitly(inputs, f.path, io.cwd)));
   const files = shardOf(expanded.files, o.shard);
   // One input named as a file (one that does not exist fails as unreadable, not as a usage error).
   const first = inputs.length === 1 ? fs.statSync(path.resolve(io.cwd, inputs[0]), { throwIfNoEntry: false }) : undefined;
@@ -109,9 +116,12 @@ export async function runBake(inputs: string[], o: Record<string, any>, io: CliI
       reports.push(failed(f.display, 'usage', writes.refused));
       continue;
     }
+    const own = perFile(settings, f.path);
+    if (own.options) bakeOnly(own.options);
     jobs.push({
       command: 'bake', input: f.path, output: m.output || null, format: m.output ? m.format : null, dryRun: !!o.dryRun,
       displayInput: f.display, displayOutput: shownOutput(f, m, o), writes: writes ?? undefined,
+      ...own,
     });
   }
   const stateFolder = target && target.kind === 'folder' && !o.dryRun ? target.path : null;
@@ -136,7 +146,7 @@ export function sortReports(files: FileReport[]): FileReport[] {
 
 /** The options echoed in the report (stable keys, no paths that vary between machines). */
 export function reportOptions(o: Record<string, any>): Record<string, unknown> {
-  const keys = ['method', 'weight', 'uv', 'allPrimitives', 'failOn', 'maxDegenerateUv', 'tolerance', 'uvEpsilon',
+  const keys = ['method', 'weight', 'uv', 'allPrimitives', 'failOn', 'limits', 'maxDegenerateUv', 'tolerance', 'uvEpsilon',
     'format', 'inPlace', 'keepExisting', 'normals', 'smoothAngle', 'tangentType', 'dryRun', 'shard'];
   const out: Record<string, unknown> = {};
   for (const k of keys) if (o[k] !== undefined) out[k] = o[k];

@@ -9,6 +9,7 @@ import { Command, InvalidArgumentError, Option } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
 import { cleanText, jsonText } from '../mesh/text.js';
 import { GATE_NAMES, defaultProcessOptions, type GateName, type ProcessOptions } from '../lib/options.js';
+import { parseLimit } from '../lib/gates.js';
 import { writeFilesAtomic } from '../io/files.js';
 import { DEFAULT_MAX_TRIANGLES } from '../io/limits.js';
 import type { FileReport, Report } from '../report/types.js';
@@ -77,6 +78,15 @@ function gateList(value: string): GateName[] {
   return names as GateName[];
 }
 
+function limitArg(value: string, previous: string[] | undefined): string[] {
+  try {
+    parseLimit(value);
+  } catch (err) {
+    throw new InvalidArgumentError((err as Error).message.replace(/^--limit: /, ''));
+  }
+  return [...(previous ?? []), value];
+}
+
 function shardArg(value: string): { k: number; n: number } {
   const m = /^(\d+)\/(\d+)$/.exec(value);
   if (!m || Number(m[2]) < 1 || Number(m[1]) < 1 || Number(m[1]) > Number(m[2])) {
@@ -88,13 +98,18 @@ function shardArg(value: string): { k: number; n: number } {
 /** Adds the options `bake` and `audit` share (DESIGN.md). */
 export function addSharedOptions(cmd: Command): Command {
   return cmd
-    .addOption(new Option('--method <method>', 'tangent method').choices(['mikktspace', 'lengyel']).default('mikktspace'))
-    .addOption(new Option('--weight <weight>', 'how lengyel sums triangle tangents').choices(['derivative', 'angle', 'area', 'uniform']).default('derivative'))
+    // Settings a config file may give have no commander default: undefined means "not on the
+    // command line", and resolveSettings (config.ts) fills in the config's value or the default.
+    .addOption(new Option('--method <method>', 'tangent method (default mikktspace)').choices(['mikktspace', 'lengyel']))
+    .addOption(new Option('--weight <weight>', 'how lengyel sums triangle tangents (default derivative)').choices(['derivative', 'angle', 'area', 'uniform']))
     .option('--uv <n>', 'TEXCOORD set to derive frames from (default: the normal texture\'s set, else 0)', intArg(0))
-    .option('--all-primitives', 'also primitives whose material has no normal texture', false)
-    .option('--fail-on <gates>', `comma list of gates: ${GATE_NAMES.join(', ')}`, gateList, [])
-    .option('--max-degenerate-uv <n>', 'degenerate UV triangles tolerated per file before the gate trips', intArg(0), 0)
-    .option('--tolerance <deg>', 'angle beyond which a stored tangent counts as mismatched', numberArg(0, 180), 1)
+    .option('--all-primitives', 'also primitives whose material has no normal texture')
+    .option('--fail-on <gates>', `comma list of gates: ${GATE_NAMES.join(', ')}`, gateList)
+    .option('--limit <gate=n|gate=p%>', 'repeatable: the gate trips when its count exceeds n, or its share of what it counts exceeds p percent (defaults: tangent-mismatch=1%, the others 0)', limitArg)
+    .option('--max-degenerate-uv <n>', 'same as --limit degenerate-uv=<n>', intArg(0))
+    .option('--tolerance <deg>', 'angle beyond which a stored tangent counts as mismatched (default 1)', numberArg(0, 180))
+    .option('--config <file>', `read settings from this file instead of the nearest tanframe.config.json`)
+    .option('--no-config', 'read no config file')
     .option('--uv-epsilon <x>', 'relative UV area below which a triangle is degenerate', numberArg(0, 1))
     .option('--max-triangles <n>', `most triangles one file may hold, checked before decoding (default ${DEFAULT_MAX_TRIANGLES})`, intArg(1))
     .option('--file-timeout <s>', `seconds one file may take in a batch before it fails with 'timeout' (0: no limit; default ${DEFAULT_FILE_TIMEOUT_S})`, numberArg(0, 1e9))
@@ -125,15 +140,22 @@ export function checkOutputOptions(o: Record<string, any>): void {
   if (o.annotate && o.json) throw new TanframeError('usage', '--annotate prints on stdout, where --json puts the report: use --report <file> with --annotate');
 }
 
-/** Translates parsed shared options into ProcessOptions. */
+/**
+ * Translates parsed shared options into ProcessOptions, ignoring any config file (the
+ * commands use resolveSettings in config.ts, which layers the config under these).
+ */
 export function toProcessOptions(o: Record<string, any>): ProcessOptions {
   const p = defaultProcessOptions();
-  p.method = o.method;
-  p.weight = o.weight;
+  p.method = o.method ?? p.method;
+  p.weight = o.weight ?? p.weight;
   p.uv = o.uv ?? null;
   p.allPrimitives = !!o.allPrimitives;
   p.failOn = o.failOn ?? [];
-  p.maxDegenerateUv = o.maxDegenerateUv ?? 0;
+  if (o.maxDegenerateUv !== undefined) p.limits['degenerate-uv'] = { count: o.maxDegenerateUv };
+  for (const spec of (o.limit as string[] | undefined) ?? []) {
+    const { gate, limit } = parseLimit(spec);
+    p.limits[gate] = limit;
+  }
   p.tolerance = o.tolerance ?? p.tolerance;
   if (o.uvEpsilon !== undefined) p.uvEpsilon = o.uvEpsilon;
   if (o.maxTriangles !== undefined) p.maxTriangles = o.maxTriangles;

@@ -29,6 +29,10 @@ export interface BadNormals {
  *   geometry) have no face direction and take no part in that vote; a vertex no triangle uses
  *   (or only degenerate ones) is never flipped. A dot of exactly 0 is not "away".
  * A non-unit normal can also be flipped (it is counted in both), `count` counts each vertex once.
+ * `unitTolerance` is the unit-length tolerance for the normals' encoding (unitLengthTolerance
+ * in src/mesh/tolerances.ts; default: float's UNIT_LENGTH_TOLERANCE). `positionHalfStep` is
+ * the rounding of the positions' encoding (componentHalfStep; 0 for float): a triangle whose
+ * face normal is within what that rounding can make of it takes no part in the flipped vote.
  * Returns the counts, in vertices.
  * Preconditions: indices hold 3 * triangleCount entries, each < vertexCount; positions and
  * normals hold 3 floats per vertex.
@@ -39,6 +43,8 @@ export function findBadNormals(
   normals: Float32Array,
   triangleCount: number,
   vertexCount: number,
+  unitTolerance: number = UNIT_LENGTH_TOLERANCE,
+  positionHalfStep = 0,
 ): BadNormals {
   assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
   assert(positions.length >= vertexCount * 3, 'positions must hold 3 floats per vertex');
@@ -55,6 +61,13 @@ export function findBadNormals(
     const f2 = fx * fx + fy * fy + fz * fz;
     // Zero, NaN or infinite face normal: no direction to vote with.
     if (!(f2 > 0) || f2 === Infinity) continue;
+    // Quantized positions: rounding each corner by up to sqrt(3) half steps moves the cross
+    // product by up to 2 * sqrt(3) * h * (|e1| + |e2|) (first order); a face normal shorter than
+    // that has no reliable direction and does not vote.
+    if (positionHalfStep > 0) {
+      const bound = 2 * Math.sqrt(3) * positionHalfStep * (Math.sqrt(e1x * e1x + e1y * e1y + e1z * e1z) + Math.sqrt(e2x * e2x + e2y * e2y + e2z * e2z));
+      if (f2 <= bound * bound) continue;
+    }
     for (let k = 0; k < 3; k++) {
       const v = indices[t * 3 + k];
       votes[v]++;
@@ -72,7 +85,7 @@ export function findBadNormals(
       continue;
     }
     let bad = false;
-    if (!(Math.abs(len - 1) <= UNIT_LENGTH_TOLERANCE)) {
+    if (!(Math.abs(len - 1) <= unitTolerance)) {
       nonUnit++;
       bad = true;
     }

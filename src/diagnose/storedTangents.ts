@@ -7,9 +7,9 @@
 import { assert } from '../mesh/errors.js';
 import {
   DEFAULT_TANGENT_MISMATCH_DEG,
-  ORTHOGONAL_COSINE_TOLERANCE,
-  UNIT_LENGTH_TOLERANCE,
+  FLOAT_TANGENT_VALIDITY,
   ZERO_LENGTH,
+  type TangentValidityTolerances,
 } from '../mesh/tolerances.js';
 
 const DEG_PER_RAD = 180 / Math.PI;
@@ -39,23 +39,29 @@ export interface StoredTangentComparison {
 
 /**
  * Whether the stored tangent of vertex v (stored[4v .. 4v+3]) is valid: all four values
- * finite, | |xyz| - 1 | <= UNIT_LENGTH_TOLERANCE, w exactly +1 or -1, and, when the vertex
+ * finite, | |xyz| - 1 | <= tol.unitLength, w exactly +1 or -1, and, when the vertex
  * has a usable normal (finite, length > ZERO_LENGTH), |cos| of the angle between xyz and the
- * normal <= ORTHOGONAL_COSINE_TOLERANCE. With `normals` null, or a zero or non-finite normal,
+ * normal <= tol.orthogonalCosine. `tol` comes from the attributes' encodings
+ * (tangentValidityTolerances in src/mesh/tolerances.ts; default: float). With `normals` null, or a zero or non-finite normal,
  * orthogonality is not judged (the normal is what is wrong; findBadNormals reports it).
  * Preconditions: stored holds 4 floats and normals (if given) 3 floats for vertex v.
  */
-export function isStoredTangentValid(stored: Float32Array, normals: Float32Array | null, v: number): boolean {
+export function isStoredTangentValid(
+  stored: Float32Array,
+  normals: Float32Array | null,
+  v: number,
+  tol: TangentValidityTolerances = FLOAT_TANGENT_VALIDITY,
+): boolean {
   const tx = stored[v * 4], ty = stored[v * 4 + 1], tz = stored[v * 4 + 2], tw = stored[v * 4 + 3];
   if (!(tw === 1 || tw === -1)) return false;
   const tl = Math.sqrt(tx * tx + ty * ty + tz * tz);
-  if (!(Math.abs(tl - 1) <= UNIT_LENGTH_TOLERANCE)) return false; // NaN and Infinity fail here
+  if (!(Math.abs(tl - 1) <= tol.unitLength)) return false; // NaN and Infinity fail here
   if (!normals) return true;
   const nx = normals[v * 3], ny = normals[v * 3 + 1], nz = normals[v * 3 + 2];
   const nl = Math.sqrt(nx * nx + ny * ny + nz * nz);
   if (!(nl > ZERO_LENGTH) || nl === Infinity) return true;
   const cos = (nx * tx + ny * ty + nz * tz) / (nl * tl);
-  return Math.abs(cos) <= ORTHOGONAL_COSINE_TOLERANCE;
+  return Math.abs(cos) <= tol.orthogonalCosine;
 }
 
 /**
@@ -63,11 +69,16 @@ export function isStoredTangentValid(stored: Float32Array, normals: Float32Array
  * (isStoredTangentValid), used or not by a triangle.
  * Preconditions: stored holds 4 floats and normals (if given) 3 floats per vertex.
  */
-export function countInvalidStoredTangents(stored: Float32Array, normals: Float32Array | null, vertexCount: number): number {
+export function countInvalidStoredTangents(
+  stored: Float32Array,
+  normals: Float32Array | null,
+  vertexCount: number,
+  tol: TangentValidityTolerances = FLOAT_TANGENT_VALIDITY,
+): number {
   assert(stored.length >= vertexCount * 4, 'stored tangents must hold 4 floats per vertex');
   assert(!normals || normals.length >= vertexCount * 3, 'normals must hold 3 floats per vertex');
   let invalid = 0;
-  for (let v = 0; v < vertexCount; v++) if (!isStoredTangentValid(stored, normals, v)) invalid++;
+  for (let v = 0; v < vertexCount; v++) if (!isStoredTangentValid(stored, normals, v, tol)) invalid++;
   return invalid;
 }
 
@@ -76,10 +87,15 @@ export function countInvalidStoredTangents(stored: Float32Array, normals: Float3
  * `bake --keep-existing` applies before keeping a primitive's stored tangents.
  * Preconditions: as countInvalidStoredTangents.
  */
-export function isStoredTangentSetValid(stored: Float32Array, normals: Float32Array | null, vertexCount: number): boolean {
+export function isStoredTangentSetValid(
+  stored: Float32Array,
+  normals: Float32Array | null,
+  vertexCount: number,
+  tol: TangentValidityTolerances = FLOAT_TANGENT_VALIDITY,
+): boolean {
   assert(stored.length >= vertexCount * 4, 'stored tangents must hold 4 floats per vertex');
   assert(!normals || normals.length >= vertexCount * 3, 'normals must hold 3 floats per vertex');
-  for (let v = 0; v < vertexCount; v++) if (!isStoredTangentValid(stored, normals, v)) return false;
+  for (let v = 0; v < vertexCount; v++) if (!isStoredTangentValid(stored, normals, v, tol)) return false;
   return true;
 }
 
@@ -102,7 +118,8 @@ export function isStoredTangentSetValid(stored: Float32Array, normals: Float32Ar
  *   about the method (glTF 2.0 requires TANGENT xyz unit and w = +-1; the Khronos validator
  *   reports xyz with | |xyz| - 1 | > 0.00674 as non-unit and any other w as an invalid sign,
  *   read from the code of gltf-validator 2.0.0-dev.3.10, not from memory; the unit test here
- *   is isStoredTangentValid's, with the tolerance of src/mesh/tolerances.ts). Counted as
+ *   is isStoredTangentValid's, with `tol`: the tolerances of the encodings, from
+ *   src/mesh/tolerances.ts, default float). Counted as
  *   `invalid`, which counts input VERTICES in [0, vertexCount), used by a triangle or not.
  * p95 is the nearest-rank 95th percentile of the sorted corner angles (float64). `mismatched`
  * counts the compared corners with angle > toleranceDeg or a sign mismatch. With nothing
@@ -120,6 +137,7 @@ export function compareStoredTangents(
   normals: Float32Array | null,
   vertexCount: number,
   toleranceDeg: number = DEFAULT_TANGENT_MISMATCH_DEG,
+  tol: TangentValidityTolerances = FLOAT_TANGENT_VALIDITY,
 ): StoredTangentComparison {
   assert(computed.length >= sourceVertex.length * 4, 'computed tangents must hold 4 floats per output vertex');
   assert(stored.length >= vertexCount * 4, 'stored tangents must hold 4 floats per vertex');
@@ -129,7 +147,7 @@ export function compareStoredTangents(
   const valid = new Uint8Array(vertexCount);
   let invalid = 0;
   for (let v = 0; v < vertexCount; v++) {
-    if (isStoredTangentValid(stored, normals, v)) valid[v] = 1;
+    if (isStoredTangentValid(stored, normals, v, tol)) valid[v] = 1;
     else invalid++;
   }
   const angles = new Float64Array(cornerCount);

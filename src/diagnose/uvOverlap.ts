@@ -7,7 +7,7 @@
  * partitioning (cited from memory).
  */
 import { assert } from '../mesh/errors.js';
-import { UV_DEGENERATE_RELATIVE, UV_OVERLAP_ABSOLUTE, UV_OVERLAP_RELATIVE } from '../mesh/tolerances.js';
+import { UV_DEGENERATE_RELATIVE, UV_OVERLAP_ABSOLUTE, UV_OVERLAP_RELATIVE, UV_SHELL_AREA_RELATIVE } from '../mesh/tolerances.js';
 import { findingFromMarks, type Finding } from './finding.js';
 
 /** Most grid cells the broad phase uses, whatever the mesh (16 MiB of cell offsets). */
@@ -40,13 +40,13 @@ export interface UvOverlapStats {
  * Finds the triangles of one UV set that overlap another triangle of the same set in UV space
  * with positive area (a baked map cannot hold two values at one texel).
  * - Touching is not overlap: triangles sharing an edge or a vertex, or penetrating each other
- *   by no more than UV_OVERLAP_ABSOLUTE UV units or UV_OVERLAP_RELATIVE of the smaller
- *   triangle's extent along the separating edge normal, are not reported.
+ *   by no more than `layout.touching` UV units (default UV_OVERLAP_ABSOLUTE; uvOverlapAbsolute
+ *   gives the value for a quantized TEXCOORD) or UV_OVERLAP_RELATIVE of the smaller triangle's extent
+ *   along the separating edge normal, are not reported.
  * - Mirroring onto themselves is not overlap: a pair whose two UV triangles coincide exactly
  *   (the same three UV points, bit for bit, in any order) is intentional stacking, as when
- *   the left and right halves of a symmetric model share one set of UVs, and is skipped.
- *   Partial overlaps are reported, including stacked shells triangulated differently.
- *   Exact copies are grouped first (a hash of the sorted UV points), so only one triangle of
+ *   the left and right halves of a symmetric model share one set of UVs, and is skipped
+ *   (and marked stacked). Exact copies are grouped first (a hash of the sorted UV points), so only one triangle of
  *   each group enters the grid and thousands of stacked copies cost linear time; every copy
  *   takes its group's verdict.
  * - Degenerate-UV triangles (UV_DEGENERATE_RELATIVE) and triangles with a NaN or infinite UV
@@ -62,10 +62,17 @@ export interface UvOverlapStats {
  * the float32 UVs, each projection taken relative to the edge's start so shared vertices
  * project to exactly zero. Cost: linear for ordinary atlases; many triangles each spanning
  * much of the atlas make the cells they share quadratic in their number.
- * Returns count = triangles involved in at least one overlap, and the first MAX_LISTED of their
- * indices, ascending. When `marks` is given (length >= triangleCount), marks[t] is set to 1 for
- * each overlapping triangle and 0 otherwise; when `stats` is given it receives the broad-phase
- * figures. Memory: about 18 bytes per triangle plus the cell lists (4 bytes per cell and per
+ * - Stacked shells are not overlap either: when two overlapping triangles belong to different
+ *   shells (sets of usable triangles connected through shared vertex indices) that have the
+ *   same UV points and the same UV area (a copy of one shell laid exactly on the other,
+ *   mirrored or triangulated differently), the pair is stacking. A pair within one shell is
+ *   a fold and stays an overlap.
+ * Returns count = triangles involved in at least one partial overlap, and the first MAX_LISTED
+ * of their indices, ascending. When `marks` is given (length >= triangleCount), marks[t] is set
+ * to 1 for each overlapping triangle and 0 otherwise; when `layout.stacked` is given (same length) it
+ * is set to 1 for each triangle lying exactly on another (an exact copy, or a stacked shell's
+ * triangle overlapping its twin) and 0 otherwise; when `stats` is given it receives the
+ * broad-phase figures. Memory: about 18 bytes per triangle plus the cell lists (4 bytes per cell and per
  * cell entry).
  * Preconditions: indices hold 3 * triangleCount entries, each < uvs.length / 2.
  */
@@ -75,11 +82,16 @@ export function findUvOverlaps(
   triangleCount: number,
   marks: Uint8Array | null = null,
   stats: UvOverlapStats | null = null,
+  layout: UvLayoutOptions = {},
 ): Finding {
+  const stacked = layout.stacked ?? null;
+  const touching = layout.touching ?? UV_OVERLAP_ABSOLUTE;
   assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
   assert(!marks || marks.length >= triangleCount, 'marks must hold one entry per triangle');
+  assert(!stacked || stacked.length >= triangleCount, 'stacked must hold one entry per triangle');
   const flags = marks ?? new Uint8Array(triangleCount);
   if (marks) flags.fill(0, 0, triangleCount);
+  if (stacked) stacked.fill(0, 0, triangleCount);
   // Per-triangle UV bounding boxes (exact: min/max of float32 values) and usability.
   const box = new Float32Array(triangleCount * 4);
   const usable = new Uint8Array(triangleCount);
@@ -105,11 +117,17 @@ export function findUvOverlaps(
   // the grid; pairs within a class are intentional stacking, and every copy takes its class's
   // verdict at the end. This keeps thousands of stacked copies from filling one cell.
   const classOf = stackedClasses(indices, uvs, usable, triangleCount, usableCount);
-  let stacked = 0;
+  // Shells and their keys (UV point hash and area), before copies leave the grid.
+  const shell = shellKeys(indices, uvs, usable, triangleCount);
+  let copies = 0;
   for (let t = 0; t < triangleCount; t++) {
-    if (usable[t] && classOf[t] !== t) { usable[t] = 0; stacked++; }
+    if (usable[t] && classOf[t] !== t) {
+      usable[t] = 0;
+      copies++;
+      if (stacked) { stacked[t] = 1; stacked[classOf[t]] = 1; }
+    }
   }
-  usableCount -= stacked;
+  usableCount -= copies;
   if (stats) { stats.cellsU = 0; stats.cellsV = 0; stats.gridTriangles = usableCount; stats.cellPairs = 0; stats.exactTests = 0; }
   if (usableCount < 2) return findingFromMarks(flags, triangleCount);
 
@@ -207,7 +225,7 @@ export function findUvOverlaps(
       let after = i; // entries at positions <= after have been paired with a
       if (flags[a] === 0) {
         for (let j = i + 1; j < end; j++) {
-          testPair(a, entries[j], flags, box, indices, uvs, minU, minV, inv, nu, nv, cu, cv, counts);
+          testPair(a, entries[j], flags, box, indices, uvs, minU, minV, inv, nu, nv, cu, cv, counts, touching, shell, stacked);
           if (flags[a] !== 0) { after = j; break; }
         }
         if (flags[a] === 0) continue;
@@ -220,28 +238,119 @@ export function findUvOverlaps(
         const b = entries[pos];
         if (flags[b] !== 0) continue; // marked: dropped for good
         live[w++] = pos;
-        if (pos > after) testPair(a, b, flags, box, indices, uvs, minU, minV, inv, nu, nv, cu, cv, counts);
+        if (pos > after) testPair(a, b, flags, box, indices, uvs, minU, minV, inv, nu, nv, cu, cv, counts, touching, shell, stacked);
       }
       liveN = w;
     }
   }
   const exactTests = counts[0], cellPairs = counts[1];
   if (stats) { stats.cellsU = nu; stats.cellsV = nv; stats.cellPairs = cellPairs; stats.exactTests = exactTests; }
-  if (stacked > 0) {
-    for (let t = 0; t < triangleCount; t++) if (classOf[t] !== t) flags[t] = flags[classOf[t]];
+  if (copies > 0) {
+    for (let t = 0; t < triangleCount; t++) {
+      if (classOf[t] === t) continue;
+      flags[t] = flags[classOf[t]];
+      if (stacked) stacked[t] = stacked[classOf[t]];
+    }
   }
   return findingFromMarks(flags, triangleCount);
+}
+
+/** What findUvOverlaps may also do and know besides partial overlaps. */
+export interface UvLayoutOptions {
+  /** Receives 1 per triangle lying exactly on another (stacked), 0 otherwise (triangleCount entries). */
+  stacked?: Uint8Array | null;
+  /** Absolute touching tolerance in UV units (default UV_OVERLAP_ABSOLUTE). */
+  touching?: number;
+}
+
+/** Per triangle its shell, and per shell two hashes of its UV points and its UV area. */
+interface ShellKeys {
+  shellOf: Uint32Array;
+  hashA: Uint32Array;
+  hashB: Uint32Array;
+  points: Uint32Array;
+  area: Float64Array;
+}
+
+/**
+ * Shells of the usable triangles: connected through shared vertex indices (union-find with
+ * path halving). Each shell's key: the number of distinct vertices, two order-independent
+ * hashes (sums of per-vertex hashes of the UV bits) and the sum of |det| of its triangles, so
+ * that two shells with the same UV points and area compare equal whatever their triangulation.
+ */
+function shellKeys(indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, triangleCount: number): ShellKeys {
+  const vertexCount = uvs.length >> 1;
+  const parent = new Uint32Array(vertexCount);
+  for (let v = 0; v < vertexCount; v++) parent[v] = v;
+  for (let t = 0; t < triangleCount; t++) {
+    if (!usable[t]) continue;
+    const r0 = findRoot(parent, indices[t * 3]);
+    for (let k = 1; k < 3; k++) {
+      const r = findRoot(parent, indices[t * 3 + k]);
+      if (r !== r0) parent[r] = r0;
+    }
+  }
+  const shellOf = new Uint32Array(triangleCount).fill(0xffffffff);
+  const hashA = new Uint32Array(vertexCount), hashB = new Uint32Array(vertexCount), points = new Uint32Array(vertexCount);
+  const area = new Float64Array(vertexCount);
+  const seen = new Uint8Array(vertexCount);
+  const bits = new Float32Array(2), words = new Uint32Array(bits.buffer);
+  for (let t = 0; t < triangleCount; t++) {
+    if (!usable[t]) continue;
+    const root = findRoot(parent, indices[t * 3]);
+    shellOf[t] = root;
+    const i0 = indices[t * 3] * 2, i1 = indices[t * 3 + 1] * 2, i2 = indices[t * 3 + 2] * 2;
+    const du1 = uvs[i1] - uvs[i0], dv1 = uvs[i1 + 1] - uvs[i0 + 1], du2 = uvs[i2] - uvs[i0], dv2 = uvs[i2 + 1] - uvs[i0 + 1];
+    area[root] += Math.abs(du1 * dv2 - du2 * dv1);
+    for (let k = 0; k < 3; k++) {
+      const v = indices[t * 3 + k];
+      if (seen[v]) continue;
+      seen[v] = 1;
+      bits[0] = uvs[v * 2] === 0 ? 0 : uvs[v * 2]; // -0 hashes as 0
+      bits[1] = uvs[v * 2 + 1] === 0 ? 0 : uvs[v * 2 + 1];
+      let a = Math.imul(words[0] ^ 0x811c9dc5, 0x9e3779b1);
+      a = Math.imul(a ^ (a >>> 15) ^ words[1], 0x85ebca6b);
+      a ^= a >>> 13;
+      let b = Math.imul(words[1] ^ 0x27d4eb2f, 0xc2b2ae35);
+      b = Math.imul(b ^ (b >>> 16) ^ words[0], 0x165667b1);
+      b ^= b >>> 15;
+      hashA[root] = (hashA[root] + a) >>> 0;
+      hashB[root] = (hashB[root] + b) >>> 0;
+      points[root]++;
+    }
+  }
+  return { shellOf, hashA, hashB, points, area };
+}
+
+/** The root of x in the union-find forest `parent`, halving the path on the way. */
+function findRoot(parent: Uint32Array, x: number): number {
+  while (parent[x] !== x) { parent[x] = parent[parent[x]]; x = parent[x]; }
+  return x;
+}
+
+/**
+ * Whether usable triangles a and b lie in different shells with the same key (points, both
+ * hashes, and UV areas equal within UV_SHELL_AREA_RELATIVE).
+ */
+function sameShellKey(k: ShellKeys, a: number, b: number): boolean {
+  const sa = k.shellOf[a], sb = k.shellOf[b];
+  if (sa === sb) return false;
+  if (k.points[sa] !== k.points[sb] || k.hashA[sa] !== k.hashA[sb] || k.hashB[sa] !== k.hashB[sb]) return false;
+  const x = k.area[sa], y = k.area[sb];
+  return Math.abs(x - y) <= UV_SHELL_AREA_RELATIVE * Math.max(x, y);
 }
 
 /**
  * Tests one pair of grid triangles met in cell (cu, cv): skipped unless their boxes overlap,
  * this cell holds the lower-left corner of the boxes' intersection, and their UV points are
- * not the same three points; then the exact test, marking both when they overlap.
+ * not the same three points; then the exact test, marking both when they overlap (or, when
+ * they lie in two stacked shells, marking them stacked instead).
  * counts[0] += exact tests, counts[1] += pairs visited.
  */
 function testPair(
   a: number, b: number, flags: Uint8Array, box: Float32Array, indices: Uint32Array, uvs: Float32Array,
   minU: number, minV: number, inv: number, nu: number, nv: number, cu: number, cv: number, counts: Float64Array,
+  touching: number, shell: ShellKeys, stacked: Uint8Array | null,
 ): void {
   counts[1]++;
   const aMinU = box[a * 4], aMinV = box[a * 4 + 1], aMaxU = box[a * 4 + 2], aMaxV = box[a * 4 + 3];
@@ -260,7 +369,12 @@ function testPair(
     hasPoint(au2, av2, bu0, bv0, bu1, bv1, bu2, bv2)
   ) return; // coincident UV triangles: intentional stacking / mirroring
   counts[0]++;
-  if (trianglesOverlap(au0, av0, au1, av1, au2, av2, bu0, bv0, bu1, bv1, bu2, bv2)) {
+  if (trianglesOverlap(au0, av0, au1, av1, au2, av2, bu0, bv0, bu1, bv1, bu2, bv2, touching)) {
+    // Two shells with the same UV points and area laid on one another: stacking, not overlap.
+    if (sameShellKey(shell, a, b)) {
+      if (stacked) { stacked[a] = 1; stacked[b] = 1; }
+      return;
+    }
     flags[a] = 1;
     flags[b] = 1;
   }
@@ -316,20 +430,22 @@ function stackedClasses(indices: Uint32Array, uvs: Float32Array, usable: Uint8Ar
 
 /**
  * Whether two UV triangles overlap with positive area beyond the touching tolerances
- * (UV_OVERLAP_ABSOLUTE, UV_OVERLAP_RELATIVE): no edge normal of either separates them.
+ * (`touching`, default UV_OVERLAP_ABSOLUTE, and UV_OVERLAP_RELATIVE): no edge normal of
+ * either separates them.
  * Exported for tests. Preconditions: both triangles are non-degenerate; values finite.
  */
 export function trianglesOverlap(
   au0: number, av0: number, au1: number, av1: number, au2: number, av2: number,
   bu0: number, bv0: number, bu1: number, bv1: number, bu2: number, bv2: number,
+  touching: number = UV_OVERLAP_ABSOLUTE,
 ): boolean {
   return !(
-    separates(au0, av0, au1, av1, au2, av2, bu0, bv0, bu1, bv1, bu2, bv2) ||
-    separates(au1, av1, au2, av2, au0, av0, bu0, bv0, bu1, bv1, bu2, bv2) ||
-    separates(au2, av2, au0, av0, au1, av1, bu0, bv0, bu1, bv1, bu2, bv2) ||
-    separates(bu0, bv0, bu1, bv1, bu2, bv2, au0, av0, au1, av1, au2, av2) ||
-    separates(bu1, bv1, bu2, bv2, bu0, bv0, au0, av0, au1, av1, au2, av2) ||
-    separates(bu2, bv2, bu0, bv0, bu1, bv1, au0, av0, au1, av1, au2, av2)
+    separates(au0, av0, au1, av1, au2, av2, bu0, bv0, bu1, bv1, bu2, bv2, touching) ||
+    separates(au1, av1, au2, av2, au0, av0, bu0, bv0, bu1, bv1, bu2, bv2, touching) ||
+    separates(au2, av2, au0, av0, au1, av1, bu0, bv0, bu1, bv1, bu2, bv2, touching) ||
+    separates(bu0, bv0, bu1, bv1, bu2, bv2, au0, av0, au1, av1, au2, av2, touching) ||
+    separates(bu1, bv1, bu2, bv2, bu0, bv0, au0, av0, au1, av1, au2, av2, touching) ||
+    separates(bu2, bv2, bu0, bv0, bu1, bv1, au0, av0, au1, av1, au2, av2, touching)
   );
 }
 
@@ -341,6 +457,7 @@ export function trianglesOverlap(
 function separates(
   pu: number, pv: number, qu: number, qv: number, ru: number, rv: number,
   x0: number, y0: number, x1: number, y1: number, x2: number, y2: number,
+  touching: number,
 ): boolean {
   const eu = qu - pu, ev = qv - pv;
   const nu = -ev, nv = eu; // unnormalised edge normal
@@ -353,8 +470,8 @@ function separates(
   if (d2 < bLo) bLo = d2; else if (d2 > bHi) bHi = d2;
   const depth = (aHi < bHi ? aHi : bHi) - (aLo > bLo ? aLo : bLo);
   if (depth <= 0) return true;
-  // Absolute: depth / |n| <= UV_OVERLAP_ABSOLUTE, compared squared to avoid the root.
-  if (depth * depth <= UV_OVERLAP_ABSOLUTE * UV_OVERLAP_ABSOLUTE * (eu * eu + ev * ev)) return true;
+  // Absolute: depth / |n| <= touching, compared squared to avoid the root.
+  if (depth * depth <= touching * touching * (eu * eu + ev * ev)) return true;
   const aLen = aHi - aLo, bLen = bHi - bLo;
   return depth <= UV_OVERLAP_RELATIVE * (aLen < bLen ? aLen : bLen);
 }

@@ -24,6 +24,7 @@ import { morphTangentDelta, type MorphBase } from './morphTangents.js';
 import type { ProcessOptions } from './options.js';
 import { encodeTangents } from './tangentEncoding.js';
 import { applyUvTransform, changesFrames, type UvTransform } from '../mesh/uvTransform.js';
+import { componentHalfStep, tangentValidityTolerances, unitLengthTolerance, uvOverlapAbsolute } from '../mesh/tolerances.js';
 
 /** Result of solving every primitive of an asset. */
 export interface AssetSolve {
@@ -56,6 +57,7 @@ function emptyReport(p: PrimitiveData, options: ProcessOptions): PrimitiveReport
     badNormals: { count: 0 },
     mirroredTriangles: 0,
     uvOverlap: { count: 0, triangles: [] },
+    stackedShells: { count: 0, triangles: [] },
     storedTangents: null,
     normalsGenerated: null,
     fallbackTangents: 0,
@@ -191,6 +193,11 @@ export function solvePrimitive(
     sourceVertex: source,
     uvEpsilon: options.uvEpsilon,
     toleranceDeg: options.tolerance,
+    // Unit length and orthogonality are judged for the accessors' encodings (KHR_mesh_quantization).
+    normalUnitTolerance: normalAttr ? unitLengthTolerance(normalAttr.componentType, normalAttr.normalized) : undefined,
+    tangentValidity: p.attributes.TANGENT ? tangentValidityTolerances(p.attributes.TANGENT, normalAttr ?? null) : undefined,
+    positionHalfStep: componentHalfStep(pos.componentType, pos.normalized),
+    uvTouching: uvOverlapAbsolute(uvAttr.componentType, uvAttr.normalized),
     marks,
   });
   let picture: UvPicture | null = null;

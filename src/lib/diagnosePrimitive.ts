@@ -10,6 +10,8 @@ import {
   findUvOverlaps,
   isStoredTangentSetValid,
 } from '../diagnose/index.js';
+import { findingFromMarks } from '../diagnose/finding.js';
+import { FLOAT_TANGENT_VALIDITY, UNIT_LENGTH_TOLERANCE, type TangentValidityTolerances } from '../mesh/tolerances.js';
 import type { PrimitiveReport } from '../report/types.js';
 
 /** What the diagnostics read. Arrays are the primitive's decoded input, before any split. */
@@ -28,6 +30,14 @@ export interface DiagnoseInput {
   sourceVertex: Uint32Array;
   uvEpsilon: number;
   toleranceDeg: number;
+  /** Unit-length tolerance of the NORMAL accessor's encoding (unitLengthTolerance); default float. */
+  normalUnitTolerance?: number;
+  /** Validity tolerances of the TANGENT and NORMAL encodings (tangentValidityTolerances); default float. */
+  tangentValidity?: TangentValidityTolerances;
+  /** Half a step of the POSITION encoding (componentHalfStep); default 0 (float). */
+  positionHalfStep?: number;
+  /** Touching tolerance of the TEXCOORD encoding for UV overlaps (uvOverlapAbsolute); default float's. */
+  uvTouching?: number;
   /**
    * Per-triangle marks to fill for pictures (1 flagged, 0 not; triangleCount entries each),
    * or null/absent when no picture is wanted.
@@ -43,7 +53,8 @@ export interface DiagnoseVerdict {
 
 /**
  * Fills the finding fields of `report` (degenerate UV and geometry, invalid values, bad
- * normals, UV overlap, stored-vs-recomputed tangents) from `input`. Returns the verdicts.
+ * normals, partial UV overlap, stored-vs-recomputed tangents) and the stacked-shell note from
+ * `input`, judging unit length and orthogonality with the tolerances of the attributes' encodings. Returns the verdicts.
  * Precondition: computedTangents / computedIndices come from solving this same primitive and
  * sourceVertex maps each output vertex to an input vertex.
  */
@@ -53,13 +64,17 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
   report.degenerateUv = findDegenerateUvTriangles(indices, uvs, triangleCount, input.uvEpsilon, marks ? marks.degenerateUv : null);
   report.degenerateGeometry = findDegenerateGeometry(indices, positions, triangleCount);
   report.invalidValues = { count: countInvalidVertices(vertexCount, positions, normals, uvs, storedTangents) };
-  report.badNormals = { count: normals ? findBadNormals(indices, positions, normals, triangleCount, vertexCount).count : 0 };
-  report.uvOverlap = findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null);
+  const unitTolerance = input.normalUnitTolerance ?? UNIT_LENGTH_TOLERANCE;
+  const validity = input.tangentValidity ?? FLOAT_TANGENT_VALIDITY;
+  report.badNormals = { count: normals ? findBadNormals(indices, positions, normals, triangleCount, vertexCount, unitTolerance, input.positionHalfStep ?? 0).count : 0 };
+  const stacked = new Uint8Array(triangleCount);
+  report.uvOverlap = findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null, null, { stacked, touching: input.uvTouching });
+  report.stackedShells = findingFromMarks(stacked, triangleCount);
   let valid = false;
   if (storedTangents) {
     const c = compareStoredTangents(
       storedTangents, input.computedTangents, input.sourceVertex, input.computedIndices, input.computedUndefined, normals,
-      vertexCount, input.toleranceDeg,
+      vertexCount, input.toleranceDeg, validity,
     );
     report.storedTangents = {
       invalid: c.invalid,
@@ -71,7 +86,7 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
       compared: c.compared,
       mismatched: c.mismatched,
     };
-    valid = isStoredTangentSetValid(storedTangents, normals, vertexCount);
+    valid = isStoredTangentSetValid(storedTangents, normals, vertexCount, validity);
   }
   return { storedTangentsValid: valid };
 }

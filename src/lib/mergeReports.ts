@@ -7,8 +7,9 @@
 import { TanframeError } from '../mesh/errors.js';
 import { buildReport } from '../report/json.js';
 import type { FileReport, Report } from '../report/types.js';
-import { trippedGates } from './gates.js';
-import type { ProcessOptions } from './options.js';
+import { parseLimitValue } from './gates.js';
+import type { GateLimit, GateName, ProcessOptions } from './options.js';
+import { applyGates } from './processFile.js';
 
 /** One report to merge and the name it is known by (its file name, for messages). */
 export interface NamedReport {
@@ -82,14 +83,23 @@ export function sortFiles(files: FileReport[]): FileReport[] {
 }
 
 /**
- * The gates a merged file trips: for a file that was processed (status 'ok'), the gates of
- * `options` its primitives trip (gates.ts), less those a config waiver let through (listed
- * under `waived`); a failed, skipped or up-to-date file keeps what its report says.
+ * A merged file with its gates evaluated again (applyGates, as a run does): for a file that
+ * was processed (status 'ok' or 'unchecked'), each gate it was judged by (its `gateFigures`:
+ * the gates asked for that file and the limits in force for it, config overrides included;
+ * else `options`) against its primitives, less the gates a waiver let through (its `waived`,
+ * with their reasons). A failed, skipped or up-to-date file keeps what its report says.
  */
-export function gatesOfFile(f: FileReport, options: ProcessOptions): string[] {
-  if (f.status !== 'ok') return f.gates;
-  const waived = new Set(((f as { waived?: { gate: string }[] }).waived ?? []).map((w) => w.gate));
-  return trippedGates(f.primitives, options).filter((g) => !waived.has(g));
+export function regateFile(f: FileReport, options: ProcessOptions): FileReport {
+  if (f.status !== 'ok' && f.status !== 'unchecked') return f;
+  let own = options;
+  if (f.gateFigures) {
+    const limits: Partial<Record<GateName, GateLimit>> = {};
+    for (const g of f.gateFigures) if (g.gate !== 'unchecked') limits[g.gate as GateName] = parseLimitValue(g.limit, `${f.input}: gate ${g.gate}`);
+    own = { ...options, failOn: f.gateFigures.map((g) => g.gate as GateName), limits };
+  }
+  const out: FileReport = { ...f, status: 'ok' };
+  applyGates(out, own, f.waived ?? []);
+  return out;
 }
 
 /**
@@ -119,7 +129,7 @@ export function mergeReports(parts: NamedReport[], options: ProcessOptions): Rep
         throw new TanframeError('usage', `${f.input} is in both ${seen.from} and ${p.name}: merge the parts of one run only once each`);
       }
       byInput.set(f.input, { file: f, from: p.name });
-      files.push({ ...f, gates: gatesOfFile(f, options) });
+      files.push(regateFile(f, options));
     }
   }
   const a = first.report;

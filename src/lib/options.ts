@@ -14,8 +14,16 @@ export const GATE_NAMES = [
   'tangent-mismatch',
   'missing-tangents',
   'uv-overlap',
+  'unchecked',
 ] as const;
 export type GateName = (typeof GATE_NAMES)[number];
+
+/**
+ * How much of a gate's finding a file may have before the gate trips: more than `count`
+ * items, or more than `percent` percent of the population the gate counts over (triangles,
+ * corners or vertices; see GATE_INFO in gates.ts).
+ */
+export type GateLimit = { count: number } | { percent: number };
 
 /** How one file is processed. */
 export interface ProcessOptions {
@@ -29,7 +37,11 @@ export interface ProcessOptions {
   smoothAngle: number;
   tangentType: 'float' | 'snorm16' | 'snorm8';
   failOn: GateName[];
-  maxDegenerateUv: number;
+  /**
+   * Per gate, how much a file may have before the gate trips; a gate not named here takes
+   * its default (DEFAULT_LIMITS in gates.ts). `--max-degenerate-uv n` is `degenerate-uv: {count: n}`.
+   */
+  limits: Partial<Record<GateName, GateLimit>>;
   /** Degrees beyond which a stored tangent counts as mismatched. */
   tolerance: number;
   uvEpsilon: number;
@@ -49,7 +61,7 @@ export function defaultProcessOptions(): ProcessOptions {
     smoothAngle: DEFAULT_SMOOTH_ANGLE_DEG,
     tangentType: 'float',
     failOn: [],
-    maxDegenerateUv: 0,
+    limits: {},
     tolerance: DEFAULT_TANGENT_MISMATCH_DEG,
     uvEpsilon: UV_DEGENERATE_RELATIVE,
     maxTriangles: DEFAULT_MAX_TRIANGLES,

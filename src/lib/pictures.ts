@@ -14,8 +14,9 @@ import {
 
 /**
  * Whether a diagnosed primitive gets a picture: it has at least one finding —
- * degenerate UV or geometry triangles, invalid values, bad normals, UV overlaps, mirrored
- * triangles (where the handedness flips), or stored tangents that are invalid or disagree.
+ * degenerate UV or geometry triangles, invalid values, bad normals, partial UV overlaps, or
+ * stored tangents that are invalid or disagree. Notes alone (mirrored triangles, stacked
+ * shells) get none; a picture that is drawn still tints its mirrored triangles.
  * A normal-mapped primitive without stored tangents is not a finding for pictures (nothing
  * to see in its UVs).
  */
@@ -23,7 +24,7 @@ export function hasFindings(p: PrimitiveReport): boolean {
   const s = p.storedTangents;
   return (
     p.degenerateUv.count > 0 || p.degenerateGeometry.count > 0 || p.invalidValues.count > 0 || p.badNormals.count > 0 ||
-    p.uvOverlap.count > 0 || p.mirroredTriangles > 0 || (s !== null && (s.invalid > 0 || s.mismatched > 0 || s.signMismatch > 0))
+    p.uvOverlap.count > 0 || (s !== null && (s.invalid > 0 || s.mismatched > 0 || s.signMismatch > 0))
   );
 }
 

@@ -19,7 +19,7 @@ import { unchangedOutputs } from './assetFiles.js';
 import { recordParts, sha256File, type RecordParts } from './runState.js';
 import { solveAsset } from './bakeAsset.js';
 import { guardOutputs } from './outputGuard.js';
-import { trippedGates } from './gates.js';
+import { gateFigures, wasChecked } from './gates.js';
 import type { ProcessOptions } from './options.js';
 import type { JobWrites } from './writePlan.js';
 
@@ -38,6 +38,10 @@ export interface FileJob {
   displayOutput: string | null;
   /** Also return UV picture data for primitives with findings (--uv-maps, --html). */
   pictures?: boolean;
+  /** This file's own options (config overrides), replacing the batch's; absent: the batch's. */
+  options?: ProcessOptions;
+  /** Gates a config waiver lets through for this file, each with its reason. */
+  waivers?: { gate: string; reason: string }[];
   /** What the run's write plan settled for this job (bake): where it writes, image names, buffers to remove. */
   writes?: JobWrites;
   /** Also measure what the run's state records (RecordParts) for this bake. */
@@ -50,6 +54,27 @@ export interface FileOutcome {
   pictures: UvPicture[];
   /** What the state records, when the job asked for it and the bake wrote its outputs. */
   record?: RecordParts;
+}
+
+/**
+ * Sets a processed file's status, gates, gate figures and waived gates: the file is
+ * 'unchecked' when gates were asked for and none of its primitives could be checked (or it has
+ * none); each asked-for gate is judged against its limit (gateFigures); a tripped gate that a
+ * waiver names is let through and listed under `waived` with the waiver's reason.
+ */
+export function applyGates(report: FileReport, options: ProcessOptions, waivers: { gate: string; reason: string }[]): void {
+  const unchecked = options.failOn.length > 0 && !report.primitives.some(wasChecked);
+  if (unchecked) report.status = 'unchecked';
+  const figures = gateFigures(report.primitives, options, unchecked);
+  report.gates = [];
+  report.waived = [];
+  for (const f of figures) {
+    if (!f.tripped) continue;
+    const waiver = waivers.find((w) => w.gate === f.gate);
+    if (waiver) report.waived.push({ gate: f.gate, reason: waiver.reason });
+    else report.gates.push(f.gate);
+  }
+  report.gateFigures = figures;
 }
 
 /** Reads any supported mesh file by its extension, within `limits` (default limits when omitted). */
@@ -118,8 +143,9 @@ export async function processFile(job: FileJob, options: ProcessOptions): Promis
  * Processes one file and returns its report and, when `job.pictures` is set, the UV picture
  * data of its primitives with findings (none for a failed file). Never throws for bad input.
  */
-export async function processFileOutcome(job: FileJob, options: ProcessOptions): Promise<FileOutcome> {
+export async function processFileOutcome(job: FileJob, batchOptions: ProcessOptions): Promise<FileOutcome> {
   const started = performance.now();
+  const options = job.options ?? batchOptions;
   const report: FileReport = {
     input: job.displayInput,
     output: null,
@@ -144,7 +170,7 @@ export async function processFileOutcome(job: FileJob, options: ProcessOptions):
     report.primitives = solved.primitives;
     pictures = solved.pictures;
     for (const p of pictures) p.input = job.displayInput;
-    report.gates = trippedGates(solved.primitives, options);
+    applyGates(report, options, job.waivers ?? []);
     if (job.command === 'bake' && job.output) {
       const format = outputFormat(asset.container, job.format);
       const w = job.writes;
@@ -172,6 +198,8 @@ export async function processFileOutcome(job: FileJob, options: ProcessOptions):
     report.error = toReportError(err);
     report.primitives = [];
     report.gates = [];
+    report.gateFigures = [];
+    report.waived = [];
     report.notes = [];
     pictures = [];
     record = undefined;

@@ -8,6 +8,7 @@
 /** Stable error codes reported in the JSON report's `error.code`. */
 export type ErrorCode =
   | 'usage'
+  | 'bad-config'
   | 'unsupported-format'
   | 'read-failed'
   | 'empty-file'

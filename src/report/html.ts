@@ -4,7 +4,8 @@
  * section per file with findings (its primitives' table, first triangle indices, UV pictures).
  * No script, no external reference of any kind: it opens from a CI artifact store offline.
  */
-import { filesWorstFirst, primitivesWorstFirst, severity } from './summary.js';
+import { ADVICE, NOTES_ADVICE } from './advice.js';
+import { filesWorstFirst, gateLine, notesText, primitivesWorstFirst, severity, skippedLine } from './summary.js';
 import type { FileReport, PrimitiveReport, Report } from './types.js';
 import { escapeXml } from './uvMapSvg.js';
 
@@ -59,6 +60,14 @@ tr.skipped td { color: var(--muted); }
 .pill.failed, .pill.gated { background: var(--bad); color: #fff; }
 .pill.findings { background: #f5dfc0; color: #7a4306; }
 .pill.ok { background: #d4ebdc; color: var(--good); }
+.pill.unchecked { background: #f5dfc0; color: #7a4306; }
+.pill.up-to-date { background: #e6e4dc; color: var(--muted); }
+.gates div, .waived div { margin: 2px 0; }
+.gates { color: var(--bad); margin: 10px 0 0; }
+.waived, .notes { color: #41464e; margin: 8px 0 0; font-size: 13px; }
+.advice { margin: 10px 0 0; padding: 8px 12px; background: #f6f4ec; border-radius: 4px; font-size: 13px; }
+.advice dt { font-weight: 600; }
+.advice dd { margin: 0 0 6px; }
 .pill.gate { background: #f8e3e5; color: var(--bad); }
 section.file { margin: 28px 0 0; padding: 16px 18px; background: #fff; border: 1px solid var(--line); border-left: 5px solid var(--line); border-radius: 6px; }
 section.file.sev-3, section.file.sev-2 { border-left-color: var(--bad); }
@@ -75,9 +84,13 @@ figcaption { color: var(--muted); font-size: 12px; margin-top: 4px; }
 a { color: var(--accent); }
 `;
 
-function statusOf(f: FileReport): 'failed' | 'gated' | 'findings' | 'ok' {
+function statusOf(f: FileReport): 'failed' | 'gated' | 'unchecked' | 'findings' | 'ok' | 'up-to-date' {
   const s = severity(f);
-  return s === 3 ? 'failed' : s === 2 ? 'gated' : s === 1 ? 'findings' : 'ok';
+  if (s === 3) return 'failed';
+  if (s === 2) return 'gated';
+  if (f.status === 'unchecked') return 'unchecked';
+  if (s === 1) return 'findings';
+  return f.status === 'up-to-date' ? 'up-to-date' : 'ok';
 }
 
 function card(key: string, label: string, value: string, alert: boolean): string {
@@ -103,17 +116,18 @@ function cell(value: number, gate: string, f: FileReport): string {
 function primitiveRow(p: PrimitiveReport, f: FileReport): string {
   const name = `mesh ${p.mesh}${p.meshName ? ` \u201c${p.meshName}\u201d` : ''}, primitive ${p.primitive}`;
   if (p.action === 'skipped') {
-    return `<tr class="skipped"><td>${h(name)}</td><td colspan="11" class="text">skipped: ${h(p.skipReason ?? 'skipped')}</td></tr>`;
+    return `<tr class="skipped"><td>${h(name)}</td><td colspan="12" class="text">skipped: ${h(p.skipReason ?? 'skipped')}</td></tr>`;
   }
   const s = p.storedTangents;
   const storedBad = s !== null && (s.invalid > 0 || s.mismatched > 0 || s.signMismatch > 0);
   const storedCls = storedBad ? (f.gates.includes('tangent-mismatch') ? ' gate' : ' hit') : p.normalMapped && !s && f.gates.includes('missing-tangents') ? ' gate' : '';
   return (
     `<tr><td>${h(name)}</td><td>${n(p.triangles)}</td><td>${n(p.verticesIn)} \u2192 ${n(p.verticesOut)}</td>` +
-    `<td>${n(p.splitVertices)}</td><td>${n(p.mirrorSeamSplits)}</td><td>${n(p.mirroredTriangles)}</td>` +
+    `<td>${n(p.splitVertices)}</td><td>${n(p.mirrorSeamSplits)}</td>` +
     cell(p.degenerateUv.count, 'degenerate-uv', f) + cell(p.degenerateGeometry.count, 'degenerate-geometry', f) +
     cell(p.invalidValues.count, 'invalid-values', f) + cell(p.badNormals.count, 'bad-normals', f) +
-    cell(p.uvOverlap.count, 'uv-overlap', f) + `<td class="text${storedCls}">${h(stored(p))}</td></tr>`
+    cell(p.uvOverlap.count, 'uv-overlap', f) + `<td class="text${storedCls}">${h(stored(p))}</td>` +
+    `<td class="note-cell">${n(p.mirroredTriangles)}</td><td class="note-cell">${n(p.stackedShells?.count ?? 0)}</td></tr>`
   );
 }
 
@@ -135,8 +149,50 @@ function lists(f: FileReport): string {
 }
 
 const HEAD_ROW =
-  '<tr><th>primitive</th><th>triangles</th><th>vertices in \u2192 out</th><th>splits</th><th>mirror-seam splits</th><th>mirrored</th>' +
-  '<th>degenerate UV</th><th>degenerate geometry</th><th>invalid values</th><th>bad normals</th><th>UV overlap</th><th>stored tangents</th></tr>';
+  '<tr><th>primitive</th><th>triangles</th><th>vertices in \u2192 out</th><th>splits</th><th>mirror-seam splits</th>' +
+  '<th>degenerate UV</th><th>degenerate geometry</th><th>invalid values</th><th>bad normals</th><th>UV overlap (partial)</th><th>stored tangents</th>' +
+  '<th>note: mirrored</th><th>note: stacked shells</th></tr>';
+
+/** The finding kinds a file shows, as gate names (for the advice lines). */
+function kindsOf(f: FileReport): string[] {
+  const kinds = new Set<string>(f.gates);
+  for (const w of f.waived ?? []) kinds.add(w.gate);
+  for (const p of f.primitives) {
+    if (p.action === 'skipped') continue;
+    if (p.degenerateUv.count) kinds.add('degenerate-uv');
+    if (p.degenerateGeometry.count) kinds.add('degenerate-geometry');
+    if (p.invalidValues.count) kinds.add('invalid-values');
+    if (p.badNormals.count) kinds.add('bad-normals');
+    if (p.uvOverlap.count) kinds.add('uv-overlap');
+    const st = p.storedTangents;
+    if (st && (st.invalid || st.mismatched)) kinds.add('tangent-mismatch');
+  }
+  if (f.status === 'unchecked') kinds.add('unchecked');
+  return Object.keys(ADVICE).filter((k) => kinds.has(k));
+}
+
+/** Gate lines (count against limit), waived gates with reasons, notes, skip reasons and advice of one file. */
+function fileDetails(f: FileReport): string {
+  const out: string[] = [];
+  const tripped = (f.gateFigures ?? []).filter((g) => g.tripped && f.gates.includes(g.gate));
+  if (tripped.length) out.push(`<div class="gates" data-key="gate-lines">${tripped.map((g) => `<div>${h(gateLine(g))}</div>`).join('')}</div>`);
+  if (f.waived?.length) {
+    const lines = f.waived.map((w) => {
+      const g = (f.gateFigures ?? []).find((x) => x.gate === w.gate);
+      return `<div>waived: ${h(g ? gateLine(g) : w.gate)} \u2014 ${h(w.reason)}</div>`;
+    });
+    out.push(`<div class="waived" data-key="waived">${lines.join('')}</div>`);
+  }
+  const skipped = skippedLine(f);
+  if (skipped) out.push(`<div class="notes" data-key="skipped">${h(skipped)}</div>`);
+  const notes = notesText(f);
+  if (notes) out.push(`<div class="notes" data-key="notes">notes (not problems): ${h(notes)}</div>`);
+  const kinds = kindsOf(f);
+  if (kinds.length) {
+    out.push(`<dl class="advice" data-key="advice">${kinds.map((k) => `<dt>${h(k)}</dt><dd>${h(ADVICE[k])}</dd>`).join('')}</dl>`);
+  }
+  return out.join('\n');
+}
 
 function fileSection(f: FileReport, anchor: string, pictures: HtmlPicture[]): string {
   const status = statusOf(f);
@@ -149,6 +205,7 @@ function fileSection(f: FileReport, anchor: string, pictures: HtmlPicture[]): st
     const rows = primitivesWorstFirst(f.primitives.filter((p) => p.action !== 'skipped'))
       .concat(f.primitives.filter((p) => p.action === 'skipped'))
       .map((p) => primitiveRow(p, f));
+    parts.push(fileDetails(f));
     parts.push(`<div class="scroll"><table><thead>${HEAD_ROW}</thead><tbody>${rows.join('')}</tbody></table></div>`);
     parts.push(lists(f));
   }
@@ -176,7 +233,7 @@ function fileSection(f: FileReport, anchor: string, pictures: HtmlPicture[]): st
 export function renderHtml(report: Report, pictures: HtmlPicture[]): string {
   const s = report.summary;
   const files = filesWorstFirst(report.files);
-  const gated = report.files.filter((f) => f.gates.length > 0).length;
+  const gated = s.gated ?? report.files.filter((f) => f.gates.length > 0).length;
   const byInput = new Map<string, HtmlPicture[]>();
   for (const p of pictures) {
     const list = byInput.get(p.input) ?? [];
@@ -192,12 +249,18 @@ export function renderHtml(report: Report, pictures: HtmlPicture[]): string {
   const cards = [
     card('files', 'files', n(s.files), false),
     card('ok', 'processed', n(s.ok), false),
-    card('failed', 'could not be processed', n(s.failed), s.failed > 0),
+    card('clean', 'clean', n(s.clean ?? 0), false),
+    card('withFindings', 'with findings, no gate tripped', n(s.withFindings ?? 0), false),
     card('gated', 'files with a gate tripped', n(gated), gated > 0),
+    card('unchecked', 'nothing could be checked', n(s.unchecked ?? 0), (s.unchecked ?? 0) > 0),
+    card('upToDate', 'up to date', n(s.upToDate ?? 0), false),
+    card('failed', 'could not be processed', n(s.failed), s.failed > 0),
     card('triangles', 'triangles', n(s.triangles), false),
     card('degenerateUv', 'degenerate UV triangles', n(s.degenerateUv), s.degenerateUv > 0),
     card('degenerateGeometry', 'degenerate geometry triangles', n(s.degenerateGeometry), s.degenerateGeometry > 0),
     card('invalidValues', 'vertices with invalid values', n(s.invalidValues), s.invalidValues > 0),
+    card('mirroredTriangles', 'note: mirrored triangles', n(s.mirroredTriangles ?? 0), false),
+    card('stackedShells', 'note: triangles in stacked UV shells', n(s.stackedShells ?? 0), false),
   ];
   const anchors = new Map<FileReport, string>();
   files.forEach((f, i) => anchors.set(f, `file-${i + 1}`));
@@ -209,7 +272,8 @@ export function renderHtml(report: Report, pictures: HtmlPicture[]): string {
     return (
       `<tr data-input="${h(f.input)}"><td>${name}</td><td class="text"><span class="pill ${status}">${status}</span></td>` +
       `<td>${n(sum((p) => p.triangles))}</td><td>${n(sum((p) => p.degenerateUv.count))}</td><td>${n(sum((p) => p.uvOverlap.count))}</td>` +
-      `<td>${n(sum((p) => p.mirroredTriangles))}</td><td class="text">${h(f.gates.join(', ') || (f.error ? f.error.code : ''))}</td></tr>`
+      `<td class="text">${h(f.gates.join(', ') || (f.error ? f.error.code : ''))}${f.waived?.length ? h(` (waived: ${f.waived.map((w) => w.gate).join(', ')})`) : ''}</td>` +
+      `<td>${n(sum((p) => p.mirroredTriangles))}</td><td>${n(sum((p) => p.stackedShells?.count ?? 0))}</td></tr>`
     );
   });
   const sections = files.filter((f) => severity(f) > 0).map((f) => fileSection(f, anchors.get(f)!, byInput.get(f.input) ?? []));
@@ -229,12 +293,13 @@ ${verdict}
 <div class="cards" id="summary">
 ${cards.join('\n')}
 </div>
-<div class="scroll"><table id="overview"><thead><tr><th>file</th><th>status</th><th>triangles</th><th>degenerate UV</th><th>UV overlap</th><th>mirrored</th><th>gates / error</th></tr></thead>
+<div class="scroll"><table id="overview"><thead><tr><th>file</th><th>status</th><th>triangles</th><th>degenerate UV</th><th>UV overlap (partial)</th><th>gates / error</th><th>note: mirrored</th><th>note: stacked shells</th></tr></thead>
 <tbody>
 ${overview.join('\n')}
 </tbody></table></div>
 ${sections.join('\n')}
-<p class="note" style="margin-top:28px">Triangle numbers are positions in each primitive's triangle list (strips and fans expanded). UV pictures show u to the right and v downward, as in the texture image.</p>
+<p class="note" style="margin-top:28px">${h(NOTES_ADVICE)}</p>
+<p class="note">Triangle numbers are positions in each primitive's triangle list (strips and fans expanded). UV pictures show u to the right and v downward, as in the texture image.</p>
 </main>
 </body>
 </html>

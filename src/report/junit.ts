@@ -4,9 +4,12 @@
  * shape Maven Surefire writes and the Jenkins JUnit schema describes. XML 1.0 (W3C) for the
  * escaping and the allowed characters.
  * One test case per input file: failed (<failure>) when a --fail-on gate tripped, in error
- * (<error>) when the file could not be read or processed, skipped when the file was skipped.
+ * (<error>) when the file could not be read or processed, skipped when the file was skipped,
+ * is up to date or could not be checked at all (unchecked, unless `--fail-on unchecked` made it
+ * fail). Waived gates with their reasons, notes and skip reasons go to <system-out>.
  */
 import { cleanText } from '../mesh/text.js';
+import { gateLine, notesText, skippedLine } from './summary.js';
 import type { FileReport, PrimitiveReport, Report } from './types.js';
 
 /** Triangle indices a failure text lists per primitive and finding. */
@@ -85,23 +88,44 @@ function shortReason(gate: string, f: FileReport): string {
   return `${gate} (${count} triangles; first: ${first.join(', ')}${count > first.length ? ', ...' : ''})`;
 }
 
+/** Waived gates with their reasons, notes and skip reasons, as <system-out> (empty string when none). */
+function systemOut(f: FileReport): string {
+  const lines: string[] = [];
+  for (const w of f.waived ?? []) {
+    const g = (f.gateFigures ?? []).find((x) => x.gate === w.gate);
+    lines.push(`waived: ${g ? gateLine(g) : w.gate} (${cleanText(w.reason)})`);
+  }
+  const notes = notesText(f);
+  if (notes) lines.push(`notes (not problems): ${notes}`);
+  const skipped = skippedLine(f);
+  if (skipped) lines.push(skipped);
+  return lines.length ? `\n      <system-out>${xmlText(lines.join('\n'))}</system-out>` : '';
+}
+
 /** The <testcase> of one file. */
 function testCase(f: FileReport, command: string): string {
   const open = `    <testcase classname="tanframe.${command}" name="${xmlText(cleanText(f.input))}" time="${seconds(f.seconds)}"`;
+  const out = systemOut(f);
+  if (f.status === 'unchecked' && f.gates.length === 0) {
+    const why = skippedLine(f) ?? 'the file holds no primitives';
+    return `${open}>\n      <skipped message="${xmlText(`unchecked: nothing could be checked (${why})`)}"/>${out}\n    </testcase>`;
+  }
+  if (f.status === 'up-to-date') return `${open}>\n      <skipped message="up to date"/>${out}\n    </testcase>`;
   if (f.status === 'failed') {
     const code = f.error?.code ?? 'internal';
     const message = cleanText(f.error?.message ?? 'failed');
     return `${open}>\n      <error type="${xmlText(code)}" message="${xmlText(`${code}: ${message}`)}">${xmlText(`the file could not be processed: ${message} [${code}]`)}</error>\n    </testcase>`;
   }
   if (f.status === 'skipped') return `${open}>\n      <skipped message="skipped"/>\n    </testcase>`;
-  if (f.gates.length === 0) return `${open}/>`;
+  if (f.gates.length === 0) return out ? `${open}>${out}\n    </testcase>` : `${open}/>`;
   const message = `gates tripped: ${f.gates.map((g) => shortReason(g, f)).join('; ')}`;
   const body: string[] = [];
   for (const g of f.gates) {
-    body.push(`${g}:`);
+    const figure = (f.gateFigures ?? []).find((x) => x.gate === g);
+    body.push(figure ? `${gateLine(figure)}:` : `${g}:`);
     for (const line of gateDetails(g, f)) body.push(`  ${line}`);
   }
-  return `${open}>\n      <failure type="${xmlText(f.gates.join(','))}" message="${xmlText(message)}">${xmlText(body.join('\n'))}</failure>\n    </testcase>`;
+  return `${open}>\n      <failure type="${xmlText(f.gates.join(','))}" message="${xmlText(message)}">${xmlText(body.join('\n'))}</failure>${out}\n    </testcase>`;
 }
 
 /**
@@ -113,7 +137,9 @@ export function renderJunit(report: Report): string {
   const files = report.files;
   const failures = files.filter((f) => f.status !== 'failed' && f.status !== 'skipped' && f.gates.length > 0).length;
   const errors = files.filter((f) => f.status === 'failed').length;
-  const skipped = files.filter((f) => f.status === 'skipped').length;
+  const skipped = files.filter(
+    (f) => f.status === 'skipped' || f.status === 'up-to-date' || (f.status === 'unchecked' && f.gates.length === 0),
+  ).length;
   const name = `tanframe ${report.command} (${report.method})`;
   const time = seconds(report.summary.seconds);
   const lines = [

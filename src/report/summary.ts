@@ -4,7 +4,7 @@
  * caller says the stream is a terminal and NO_COLOR is unset.
  */
 import { cleanText, warningTotal } from '../mesh/text.js';
-import type { FileReport, PrimitiveReport, Report } from './types.js';
+import type { FileReport, GateFigure, PrimitiveReport, Report } from './types.js';
 
 /** Styling switch for the summary. */
 export interface SummaryStyle {
@@ -27,6 +27,25 @@ function storedMismatch(p: PrimitiveReport): number {
   return s ? s.invalid + s.mismatched : 0;
 }
 
+/**
+ * The line a gate prints: `degenerate-uv 12 > 0`, or with a percent limit
+ * `tangent-mismatch 4.20% > 1% (120 of 2,860 corners)`; tangent-mismatch adds its invalid
+ * stored tangents when there are any (`, 3 invalid stored tangents of 400 vertices`).
+ */
+export function gateLine(f: GateFigure): string {
+  if (f.gate === 'unchecked') return 'unchecked: nothing could be checked';
+  const pct = f.limit.endsWith('%');
+  const limit = pct ? Number(f.limit.slice(0, -1)) : Number(f.limit);
+  const share = (count: number, of: number) => (of > 0 ? (count * 100) / of : 0);
+  const part = (count: number, of: number) => (pct ? share(count, of) > limit : count > limit) ? '>' : '<=';
+  const extra = f.invalid ? `${n(f.invalid)} invalid stored tangents of ${n(f.invalidOf ?? 0)} vertices` : '';
+  if (pct) {
+    const s = share(f.count, f.population);
+    return `${f.gate} ${s.toFixed(2)}% ${part(f.count, f.population)} ${f.limit} (${n(f.count)} of ${n(f.population)} ${f.of}${extra ? `; ${extra}, ${share(f.invalid!, f.invalidOf ?? 0).toFixed(2)}% ${part(f.invalid!, f.invalidOf ?? 0)} ${f.limit}` : ''})`;
+  }
+  return `${f.gate} ${n(f.count)} ${part(f.count, f.population)} ${f.limit}${extra ? ` (${extra}, ${part(f.invalid!, f.invalidOf ?? 0)} ${f.limit})` : ''}`;
+}
+
 /** Findings of one primitive, summed (the order of rows and files); 0 when skipped. */
 export function primitiveWeight(p: PrimitiveReport): number {
   if (p.action === 'skipped') return 0;
@@ -40,17 +59,38 @@ export function fileWeight(f: FileReport): number {
   return w;
 }
 
-/** 3 failed, 2 a gate tripped, 1 findings, 0 clean. */
+/** 3 failed, 2 a gate tripped, 1 findings or nothing checked (unchecked), 0 clean. */
 export function severity(f: FileReport): number {
   if (f.status === 'failed') return 3;
   if (f.gates.length) return 2;
-  if (fileWeight(f) > 0) return 1;
+  if (fileWeight(f) > 0 || f.status === 'unchecked') return 1;
   return 0;
 }
 
-const COLUMNS = ['primitive', 'triangles', 'vertices', 'splits', 'mirrored', 'UV degen', 'geo degen', 'invalid', 'normals', 'overlap', 'stored tangents'];
+/** Notes of a file (not problems): mirrored triangles and triangles in stacked UV shells, over its checked primitives. */
+export function fileNotes(f: FileReport): { mirrored: number; stacked: number } {
+  let mirrored = 0, stacked = 0;
+  for (const p of f.primitives) {
+    if (p.action === 'skipped') continue;
+    mirrored += p.mirroredTriangles;
+    stacked += p.stackedShells?.count ?? 0;
+  }
+  return { mirrored, stacked };
+}
+
+/** The notes of a file in words ("4 mirrored triangles, 8 triangles in stacked UV shells"), or '' without any. */
+export function notesText(f: FileReport): string {
+  const { mirrored, stacked } = fileNotes(f);
+  const parts: string[] = [];
+  if (mirrored) parts.push(`${n(mirrored)} mirrored triangle${mirrored === 1 ? '' : 's'}`);
+  if (stacked) parts.push(`${n(stacked)} triangle${stacked === 1 ? '' : 's'} in stacked UV shells`);
+  return parts.join(', ');
+}
+
+const COLUMNS = ['primitive', 'triangles', 'vertices', 'splits', 'UV degen', 'geo degen', 'invalid', 'normals', 'overlap', 'stored tangents'];
 /** Report gate that each finding column belongs to (for colouring), by column index. */
-const COLUMN_GATE: Record<number, string> = { 5: 'degenerate-uv', 6: 'degenerate-geometry', 7: 'invalid-values', 8: 'bad-normals', 9: 'uv-overlap', 10: 'tangent-mismatch' };
+const COLUMN_GATE: Record<number, string> = { 4: 'degenerate-uv', 5: 'degenerate-geometry', 6: 'invalid-values', 7: 'bad-normals', 8: 'uv-overlap', 9: 'tangent-mismatch' };
+const STORED_COLUMN = 9;
 
 function storedCell(p: PrimitiveReport): string {
   const s = p.storedTangents;
@@ -71,7 +111,6 @@ function primitiveCells(p: PrimitiveReport): string[] {
     n(p.triangles),
     `${n(p.verticesIn)}>${n(p.verticesOut)}`,
     p.mirrorSeamSplits ? `${n(p.splitVertices)} (${n(p.mirrorSeamSplits)} seam)` : n(p.splitVertices),
-    n(p.mirroredTriangles),
     n(p.degenerateUv.count),
     n(p.degenerateGeometry.count),
     n(p.invalidValues.count),
@@ -91,9 +130,9 @@ function table(rows: string[][], f: FileReport, style: SummaryStyle, indent: str
     const cells = r.map((cell, i) => {
       const text = pad(cell, i);
       const gate = COLUMN_GATE[i];
-      const nonZero = i === 10 ? cell !== '-' && /off|sign|invalid|missing/.test(cell) : gate !== undefined && cell !== '0';
+      const nonZero = i === STORED_COLUMN ? cell !== '-' && /off|sign|invalid|missing/.test(cell) : gate !== undefined && cell !== '0';
       if (!nonZero) return text;
-      const tripped = f.gates.includes(gate) || (i === 10 && cell === 'missing' && f.gates.includes('missing-tangents'));
+      const tripped = f.gates.includes(gate) || (i === STORED_COLUMN && cell === 'missing' && f.gates.includes('missing-tangents'));
       return paint(style.color, tripped ? '31;1' : '33', text);
     });
     out.push((indent + cells.join('  ')).trimEnd());
@@ -101,7 +140,8 @@ function table(rows: string[][], f: FileReport, style: SummaryStyle, indent: str
   return out;
 }
 
-function skippedLine(f: FileReport): string | null {
+/** Why primitives were not checked: "2 primitives skipped (no-texcoord 2)", or null when all were checked. */
+export function skippedLine(f: FileReport): string | null {
   const reasons = new Map<string, number>();
   for (const p of f.primitives) {
     if (p.action !== 'skipped') continue;
@@ -121,9 +161,21 @@ function fileBlock(f: FileReport, style: SummaryStyle): string[] {
     return [`${paint(style.color, '31;1', 'failed   ')}${input}: ${cleanText(f.error?.message ?? 'failed')} [${cleanText(f.error?.code ?? 'internal')}]`];
   }
   const done = f.primitives.filter((p) => p.action !== 'skipped');
-  const tag = f.gates.length ? paint(style.color, '31;1', 'gated    ') : fileWeight(f) > 0 ? paint(style.color, '33;1', 'findings ') : paint(style.color, '32', 'ok       ');
+  const tag = f.gates.length
+    ? paint(style.color, '31;1', 'gated    ')
+    : f.status === 'unchecked'
+      ? paint(style.color, '33;1', 'unchecked ')
+      : fileWeight(f) > 0 ? paint(style.color, '33;1', 'findings ') : paint(style.color, '32', 'ok       ');
   const head = `${tag}${input}${target}`;
   const lines = [f.gates.length ? `${head}  ${paint(style.color, '31', `[${f.gates.join(', ')}]`)}` : head];
+  if (f.status === 'unchecked') lines.push(`         nothing could be checked: ${done.length} of ${f.primitives.length} primitives checked`);
+  for (const g of f.gateFigures ?? []) {
+    if (g.tripped && f.gates.includes(g.gate)) lines.push(`         ${paint(style.color, '31', gateLine(g))}`);
+  }
+  for (const w of f.waived ?? []) {
+    const g = (f.gateFigures ?? []).find((x) => x.gate === w.gate);
+    lines.push(`         waived: ${g ? gateLine(g) : w.gate} (${cleanText(w.reason)})`);
+  }
   const rows = primitivesWorstFirst(done);
   if (rows.length) {
     lines.push(...table(rows.slice(0, SUMMARY_PRIMITIVE_ROWS).map(primitiveCells), f, style, '         '));
@@ -131,6 +183,8 @@ function fileBlock(f: FileReport, style: SummaryStyle): string[] {
   }
   const skipped = skippedLine(f);
   if (skipped) lines.push(`         ${skipped}`);
+  const notes = notesText(f);
+  if (notes) lines.push(`         notes: ${notes}`);
   for (const w of f.warnings) lines.push(`         warning: ${cleanText(w)}`);
   for (const note of f.notes ?? []) lines.push(`         note: ${cleanText(note)}`);
   return lines;
@@ -142,8 +196,12 @@ function cleanLine(f: FileReport, style: SummaryStyle): string {
   const tri = done.reduce((a, p) => a + p.triangles, 0);
   const target = f.output ? ` -> ${cleanText(f.output)}` : '';
   const notes = (f.notes ?? []).map((note) => `, ${cleanText(note)}`).join('');
+  const layout = notesText(f);
+  const skipped = skippedLine(f);
+  const waived = (f.waived ?? []).map((w) => `, waived ${w.gate} (${cleanText(w.reason)})`).join('');
   const warnings = warningTotal(f.warnings);
-  const extra = `${warnings ? `, ${n(warnings)} warning${warnings === 1 ? '' : 's'}` : ''}${notes}`;
+  const extra = `${layout ? `; notes: ${layout}` : ''}${skipped ? `; ${skipped}` : ''}${waived}` +
+    `${warnings ? `, ${n(warnings)} warning${warnings === 1 ? '' : 's'}` : ''}${notes}`;
   return `${paint(style.color, '32', 'ok       ')}${cleanText(f.input)}${target}  (${done.length} of ${f.primitives.length} primitives, ${n(tri)} triangles, no findings${extra})`;
 }
 
@@ -174,9 +232,18 @@ export function renderSummary(report: Report, style: SummaryStyle): string {
     lines.push(...fileBlock(f, style));
   }
   if (clean > SUMMARY_CLEAN_FILES) lines.push(`         ... ${n(clean - SUMMARY_CLEAN_FILES)} more files without findings`);
-  const gated = report.files.filter((f) => f.gates.length > 0).length;
+  const gated = s.gated ?? report.files.filter((f) => f.gates.length > 0).length;
+  const counts = [
+    `${n(s.clean ?? 0)} clean`,
+    `${n(s.withFindings ?? 0)} with findings`,
+    `${n(gated)} gated`,
+    `${n(s.unchecked ?? 0)} unchecked`,
+    `${n(s.upToDate ?? 0)} up to date`,
+    `${n(s.failed)} failed`,
+  ];
+  if (s.skipped) counts.push(`${n(s.skipped)} skipped`);
   const totals = [
-    `${n(s.files)} file${s.files === 1 ? '' : 's'}: ${n(s.ok)} ok, ${s.upToDate ? `${n(s.upToDate)} up-to-date, ` : ''}${n(s.failed)} failed, ${n(gated)} gated`,
+    `${n(s.files)} file${s.files === 1 ? '' : 's'}: ${counts.join(', ')}`,
     `${n(s.triangles)} triangles`,
     `${n(s.degenerateUv)} degenerate UV`,
     `${s.seconds.toFixed(2)} s`,

@@ -57,8 +57,16 @@ export interface PrimitiveReport {
   degenerateGeometry: TriangleFinding;
   invalidValues: { count: number };
   badNormals: { count: number };
+  /** A note, not a problem: triangles with mirrored UVs (a deliberate layout). */
   mirroredTriangles: number;
+  /** Triangles that partly overlap another in UV space (a problem: one texel, two surfaces). */
   uvOverlap: TriangleFinding;
+  /**
+   * A note, not a problem: triangles lying exactly on another UV shell (tiling, shared or
+   * mirrored halves): exact copies, or shells with the same UV points and area however
+   * triangulated. Not counted in `uvOverlap`.
+   */
+  stackedShells: TriangleFinding;
   storedTangents: StoredTangentReport | null;
   /** Normals this run generated ('flat' | 'smooth'), or null when the file's were used. */
   normalsGenerated: 'flat' | 'smooth' | null;
@@ -70,10 +78,18 @@ export interface PrimitiveReport {
 export interface FileReport {
   input: string;
   output: string | null;
-  /** 'up-to-date': bake skipped the file, its outputs match the state of an earlier run (no primitives listed). */
-  status: 'ok' | 'failed' | 'skipped' | 'up-to-date';
+  /**
+   * 'unchecked': gates were asked for and no primitive could be checked (each says why in
+   * skipReason); 'up-to-date': bake skipped the file, its outputs match the state of an
+   * earlier run (no primitives listed).
+   */
+  status: 'ok' | 'failed' | 'skipped' | 'up-to-date' | 'unchecked';
   error: { code: string; message: string } | null;
   gates: string[];
+  /** Each asked-for gate's count against its limit (tripped or not, waived ones included). */
+  gateFigures?: GateFigure[];
+  /** Gates a config waiver let through, with the waiver's reason. */
+  waived?: { gate: string; reason: string }[];
   primitives: PrimitiveReport[];
   warnings: string[];
   /**
@@ -85,18 +101,47 @@ export interface FileReport {
   seconds: number;
 }
 
+/** One gate's figure for one file: what it counted, over what, against which limit. */
+export interface GateFigure {
+  gate: string;
+  count: number;
+  /** The population a percent limit is a share of (triangles, corners, vertices; primitives for 'unchecked'). */
+  population: number;
+  of: 'triangles' | 'corners' | 'vertices' | 'primitives';
+  /** The limit in force, as written: "0" or "1%". */
+  limit: string;
+  tripped: boolean;
+  /**
+   * tangent-mismatch only: vertices with an invalid stored tangent, and the vertices of the
+   * primitives that store tangents; judged against the same limit as the corners.
+   */
+  invalid?: number;
+  invalidOf?: number;
+}
+
 /** Totals over all files. */
 export interface ReportSummary {
   files: number;
   ok: number;
   failed: number;
   skipped: number;
-  /** Files bake skipped as up-to-date. */
+  /** Files bake left alone because nothing changed since the last run. */
   upToDate: number;
+  /** Files with gates asked for where nothing could be checked. */
+  unchecked: number;
+  /** Of the files processed (ok): no finding at all. */
+  clean: number;
+  /** Of the files processed (ok): findings, no gate tripped. */
+  withFindings: number;
+  /** Files with a gate tripped (waived gates do not count). */
+  gated: number;
   triangles: number;
   degenerateUv: number;
   degenerateGeometry: number;
   invalidValues: number;
+  /** Notes, not problems: mirrored triangles and triangles in stacked UV shells. */
+  mirroredTriangles: number;
+  stackedShells: number;
   gatesTripped: string[];
   seconds: number;
 }

@@ -462,11 +462,17 @@ describe('equal bytes are not rewritten', () => {
 describe('exit status 3 and one line for file-system errors while writing', () => {
   it('--uv-maps that cannot be created: one line, exit 3, no stack trace, the other reports still written', async () => {
     const dir = path.join(tmp, 'uvmaps-blocked');
-    writeQuadGlb(path.join(dir, 'in', 'a.glb'), true); // mirrored: a finding, so a picture is due
+    // The quad with every UV on one point: two degenerate-UV triangles, a finding, so a picture
+    // is due (mirrored triangles alone are a note and draw none).
+    const collapsed = quad(false);
+    const uvView = collapsed.json.bufferViews[collapsed.json.accessors[collapsed.json.meshes[0].primitives[0].attributes.TEXCOORD_0].bufferView];
+    new Float32Array(collapsed.bin.buffer, collapsed.bin.byteOffset + (uvView.byteOffset ?? 0), 8).fill(0.5);
+    fs.mkdirSync(path.join(dir, 'in'), { recursive: true });
+    fs.writeFileSync(path.join(dir, 'in', 'a.glb'), glbBytes(collapsed.json, collapsed.bin));
     fs.writeFileSync(path.join(dir, 'blocker'), 'a file, not a folder');
     const r = await runCli(['audit', 'in', '--all-primitives', '--uv-maps', 'blocker/maps', '--report', 'r.json', '--junit', 'j.xml', '--html', 'h.html'], dir);
     const report = JSON.parse(fs.readFileSync(path.join(dir, 'r.json'), 'utf8'));
-    expect(report.files[0].primitives[0].mirroredTriangles).toBe(2);
+    expect(report.files[0].primitives[0].degenerateUv.count).toBe(2);
     expect(r.code).toBe(3);
     expect(oneLine(r.stderr)).toMatch(/^tanframe: --uv-maps blocker\/maps: cannot write .*a parent of the path is not a folder/);
     expect(fs.existsSync(path.join(dir, 'j.xml'))).toBe(true);

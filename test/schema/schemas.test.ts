@@ -118,6 +118,8 @@ describe('the report schema refuses what DESIGN.md rules out', () => {
     expect(variant((r) => { r.files[0].primitives[0].stackedShells = 'two'; })).not.toEqual([]);
     expect(variant((r) => { r.summary.upToDate = -1; })).not.toEqual([]);
     expect(variant((r) => { delete r.summary.upToDate; })).not.toEqual([]);
+    expect(variant((r) => { delete r.summary.unchecked; })).not.toEqual([]);
+    expect(variant((r) => { delete r.files[0].primitives[0].stackedShells; })).not.toEqual([]);
     // A failed file carries its error; any other status has none.
     expect(variant((r) => { r.files[0].status = 'failed'; })).not.toEqual([]);
     expect(variant((r) => { r.files[0].error = { code: 'x', message: 'y' }; })).not.toEqual([]);
