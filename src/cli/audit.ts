@@ -1,7 +1,6 @@
 /**
  * `tanframe audit`: inspect, report and gate; never writes meshes.
  */
-import * as path from 'node:path';
 import { Command } from 'commander';
 import { expandInputs } from '../io/inputs.js';
 import type { FileJob } from '../lib/processFile.js';
@@ -12,7 +11,7 @@ import { runBatch } from './batch.js';
 import { namedWrites, writeReportFiles } from './outputs.js';
 import { planRun } from '../lib/writePlan.js';
 import { namedExplicitly, perFile, resolveSettings } from './config.js';
-import { addSharedOptions, emitReport, exitStatus, shardOf, toolVersion, type CliIo } from './shared.js';
+import { addSharedOptions, checkOutputOptions, emitReport, exitStatus, shardOf, toolVersion, type CliIo } from './shared.js';
 
 /** Registers `audit` on `program`; `done` receives the exit status. */
 export function registerAudit(program: Command, io: CliIo, done: (code: number) => void): void {
@@ -31,15 +30,15 @@ export async function runAudit(inputs: string[], given: Record<string, any>, io:
   const started = performance.now();
   const settings = resolveSettings(given, io.cwd);
   const { options, o } = settings;
+  checkOutputOptions(o);
   const expanded = await expandInputs(inputs, io.cwd, { exclude: o.exclude });
   expanded.files = expanded.files.filter((f) => !(settings.excluded(f.path) && !namedExplicitly(inputs, f.path, io.cwd)));
-  const display = (abs: string) => path.relative(io.cwd, abs) || abs;
   const reports: FileReport[] = expanded.problems.map((p) => ({
     input: p.input, output: null, status: 'failed' as const, error: { code: 'read-failed', message: p.message },
     gates: [], primitives: [], warnings: [], notes: [], seconds: 0,
   }));
   const jobs: FileJob[] = shardOf(expanded.files, o.shard).map((f) => ({
-    command: 'audit', input: f.path, output: null, format: null, dryRun: true, displayInput: display(f.path), displayOutput: null,
+    command: 'audit', input: f.path, output: null, format: null, dryRun: true, displayInput: f.display, displayOutput: null,
     ...perFile(settings, f.path),
   }));
   // Audit writes no meshes: the plan holds the report files and --uv-maps, checked against every input and what it references.

@@ -5,7 +5,7 @@ import * as fs from 'node:fs';
 import * as path from 'node:path';
 import { Command, Option } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
-import { expandInputs } from '../io/inputs.js';
+import { displayPath, expandInputs } from '../io/inputs.js';
 import type { FileJob } from '../lib/processFile.js';
 import { buildReport } from '../report/json.js';
 import type { FileReport } from '../report/types.js';
@@ -14,10 +14,21 @@ import type { ProcessOptions } from '../lib/options.js';
 import { containerOf, outputRelativeName, outputTarget } from '../lib/outputNames.js';
 import { planRun, type PlannedMesh } from '../lib/writePlan.js';
 import { namedExplicitly, perFile, resolveSettings } from './config.js';
-import { addSharedOptions, emitReport, exitStatus, shardOf, toolVersion, type CliIo } from './shared.js';
+import { addSharedOptions, checkOutputOptions, emitReport, exitStatus, shardOf, toolVersion, type CliIo } from './shared.js';
 import { RunState, STATE_FILE_NAME } from '../lib/runState.js';
 import { runBatch } from './batch.js';
 import { namedWrites, writeReportFiles } from './outputs.js';
+
+/**
+ * The output as reports show it, named the way the user named things: the input's own name
+ * for --in-place, -o as given for one output file, else -o as given plus the mirrored path.
+ */
+function shownOutput(f: InputFile, m: PlannedMesh, o: Record<string, any>): string | null {
+  if (!m.output) return null;
+  if (m.inPlace) return f.display;
+  if (m.named) return o.out;
+  return displayPath(o.out, outputRelativeName(f.relative, o.format ?? null));
+}
 
 function failed(input: string, code: string, message: string): FileReport {
   return { input, output: null, status: 'failed', error: { code, message }, gates: [], primitives: [], warnings: [], notes: [], seconds: 0 };
@@ -55,6 +66,7 @@ export async function runBake(inputs: string[], given: Record<string, any>, io: 
   if (!given.out && !given.inPlace && !given.dryRun) throw new TanframeError('usage', 'say where to write: -o <out> or --in-place (or --dry-run)');
   const settings = resolveSettings(given, io.cwd);
   const { options, o } = settings;
+  checkOutputOptions(o);
   const bakeOnly = (p: ProcessOptions) => {
     p.keepExisting = !!o.keepExisting;
     p.normals = o.normals;
@@ -70,17 +82,16 @@ export async function runBake(inputs: string[], given: Record<string, any>, io: 
   const singleFile = inputs.length === 1 && (first ? first.isFile() : !/[*?[\]{}]/.test(inputs[0]));
   const target = o.out ? outputTarget(o.out, io.cwd, singleFile, o.format ?? null) : null;
   const reports: FileReport[] = expanded.problems.map((p) => failed(p.input, 'read-failed', p.message));
-  const display = (abs: string) => path.relative(io.cwd, abs) || abs;
   const meshes: PlannedMesh[] = [];
   const planned: InputFile[] = [];
   for (const f of files) {
     if (o.inPlace) {
       if (path.extname(f.path).toLowerCase() === '.obj') {
-        reports.push(failed(display(f.path), 'usage', '--in-place cannot store tangents in an OBJ file; bake it with -o to a .glb'));
+        reports.push(failed(f.display, 'usage', '--in-place cannot store tangents in an OBJ file; bake it with -o to a .glb'));
         continue;
       }
       if (o.format && `.${o.format}` !== path.extname(f.path).toLowerCase()) {
-        reports.push(failed(display(f.path), 'usage', `--in-place keeps the file type; write --format ${o.format} with -o`));
+        reports.push(failed(f.display, 'usage', `--in-place keeps the file type; write --format ${o.format} with -o`));
         continue;
       }
       meshes.push({ input: f.path, output: f.path, inPlace: true, format: containerOf(f.path), named: true, root: path.dirname(f.path) });
@@ -102,14 +113,14 @@ export async function runBake(inputs: string[], given: Record<string, any>, io: 
     const m = meshes[i];
     const writes = m.output !== '' ? run.jobs[w++] : null;
     if (writes && 'refused' in writes) {
-      reports.push(failed(display(f.path), 'usage', writes.refused));
+      reports.push(failed(f.display, 'usage', writes.refused));
       continue;
     }
     const own = perFile(settings, f.path);
     if (own.options) bakeOnly(own.options);
     jobs.push({
       command: 'bake', input: f.path, output: m.output || null, format: m.output ? m.format : null, dryRun: !!o.dryRun,
-      displayInput: display(f.path), displayOutput: m.output ? display(m.output) : null, writes: writes ?? undefined,
+      displayInput: f.display, displayOutput: shownOutput(f, m, o), writes: writes ?? undefined,
       ...own,
     });
   }

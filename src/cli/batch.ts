@@ -8,7 +8,7 @@ import type { ProcessOptions } from '../lib/options.js';
 import type { FileReport } from '../report/types.js';
 import type { WritePlan } from '../lib/writePlan.js';
 import { PictureOutputs } from './outputs.js';
-import { ProgressBar, progressWanted } from './progress.js';
+import { ProgressBar, ProgressRecords, progressRecordsWanted, progressWanted } from './progress.js';
 import { runFiles } from './runFiles.js';
 import { DEFAULT_FILE_TIMEOUT_S, type CliIo } from './shared.js';
 
@@ -42,7 +42,10 @@ export async function runBatch(
 ): Promise<{ reports: FileReport[]; pictures: PictureOutputs; writeFailures: number }> {
   const pictures = new PictureOutputs(o, io, undefined, plan);
   const withPictures = pictures.wanted ? jobs.map((j) => ({ ...j, pictures: true })) : jobs;
-  const bar = progressWanted(!!io.stderrIsTTY, io.env, o) && jobs.length > 0 ? new ProgressBar(io.stderr, jobs.length) : null;
+  const bar = progressWanted(!!io.stderrIsTTY, io.env, o) && jobs.length > 0
+    ? new ProgressBar(io.stderr, jobs.length, io.clock ? () => io.clock!.now() : undefined, io.stderrColumns)
+    : null;
+  const records = progressRecordsWanted(!!io.stderrIsTTY, io.env, o) && jobs.length > 0 ? new ProgressRecords(io.stderr, jobs.length, io.clock) : null;
   let reports: FileReport[];
   try {
     reports = await runFiles(withPictures, options, {
@@ -51,10 +54,16 @@ export async function runBatch(
       workerScript: io.workerScript,
       onOutcome,
       onPictures: pictures.wanted ? (_i, list) => pictures.take(list) : undefined,
-      onProgress: bar ? (done, _total, input) => bar.update(done, input) : undefined,
+      onProgress: bar || records
+        ? (done, _total, input, report) => {
+            bar?.update(done, input);
+            records?.update(report);
+          }
+        : undefined,
     });
   } finally {
     bar?.finish();
+    records?.finish();
   }
   const { failed } = await pictures.finish();
   return { reports, pictures, writeFailures: failed };

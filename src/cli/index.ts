@@ -5,3 +5,4 @@
  */
 export { main } from './main.js';
 export type { CliIo } from './shared.js';
+export type { ProgressClock } from './progress.js';

@@ -9,6 +9,7 @@ import { cleanText } from '../mesh/text.js';
 import { registerAudit } from './audit.js';
 import { registerBake } from './bake.js';
 import { registerConvertMap } from './convertMap.js';
+import { registerReport } from './report.js';
 import { toolVersion, type CliIo } from './shared.js';
 
 /** The real process streams and environment. */
@@ -20,6 +21,7 @@ export function processIo(): CliIo {
     isTTY: !!process.stdout.isTTY,
     env: process.env,
     stderrIsTTY: !!process.stderr.isTTY,
+    stderrColumns: () => process.stderr.columns,
   };
 }
 
@@ -36,6 +38,7 @@ export function buildProgram(io: CliIo, done: (code: number) => void): Command {
   registerBake(program, io, done);
   registerAudit(program, io, done);
   registerConvertMap(program, io, done);
+  registerReport(program, io, done);
   for (const c of program.commands) c.exitOverride().configureOutput({ writeOut: io.stdout, writeErr: io.stderr });
   return program;
 }

@@ -23,8 +23,8 @@ export interface RunSettings {
   onPictures?: (index: number, pictures: UvPicture[]) => void;
   /** Receives each job's whole outcome, in completion order. */
   onOutcome?: (index: number, outcome: FileOutcome) => void;
-  /** Called after each file, in completion order, with the count done so far. */
-  onProgress?: (done: number, total: number, input: string) => void;
+  /** Called after each file, in completion order, with the count done so far and the file's report. */
+  onProgress?: (done: number, total: number, input: string, report: FileReport) => void;
 }
 
 /**
@@ -44,7 +44,7 @@ export async function runFiles(jobs: FileJob[], options: ProcessOptions, setting
     reports[index] = outcome.report;
     s.onOutcome?.(index, outcome);
     done++;
-    s.onProgress?.(done, jobs.length, outcome.report.input);
+    s.onProgress?.(done, jobs.length, outcome.report.input, outcome.report);
     if (!s.onPictures) return;
     waiting[index] = outcome.pictures;
     while (released < jobs.length && waiting[released] !== undefined) {

@@ -14,6 +14,8 @@ import { writeFilesAtomic } from '../io/files.js';
 import { DEFAULT_MAX_TRIANGLES } from '../io/limits.js';
 import type { FileReport, Report } from '../report/types.js';
 import { renderSummary } from '../report/summary.js';
+import { renderGithubAnnotations } from '../report/annotations.js';
+import type { ProgressClock } from './progress.js';
 
 /** Where the CLI reads and writes; injectable so tests run it in-process. */
 export interface CliIo {
@@ -25,6 +27,10 @@ export interface CliIo {
   env: Record<string, string | undefined>;
   /** stderr is a terminal (progress bar); false when absent. */
   stderrIsTTY?: boolean;
+  /** The terminal's width in columns now (the progress bar fits it); undefined: unknown. */
+  stderrColumns?: () => number | undefined;
+  /** The clock progress reads (default: the system's); tests pass a fake one. */
+  clock?: ProgressClock;
   /** Script the batch's worker threads start from (default: the compiled worker beside the CLI). */
   workerScript?: URL;
 }
@@ -115,9 +121,23 @@ export function addSharedOptions(cmd: Command): Command {
     .option('--jobs <n>', 'worker threads (default: available cores; 1 runs in-process)', intArg(1))
     .option('--shard <k/n>', 'process only the k-th of n slices of the sorted input list', shardArg)
     .option('--json', 'print the JSON report on stdout instead of the summary', false)
+    .addOption(annotateOption())
     .option('--quiet', 'print nothing but errors (no summary, no progress)', false)
-    .option('--no-progress', 'never show the progress bar (shown only when stderr is a terminal outside CI)')
+    .option('--no-progress', 'no progress bar (drawn only on a terminal outside CI) and no progress lines in logs')
     .option('--debug', 'show stack traces of internal errors', false);
+}
+
+/** `--annotate github`, shared by bake, audit and report. */
+export function annotateOption(): Option {
+  return new Option('--annotate <kind>', 'also print GitHub Actions annotations on stdout after the summary: one per tripped gate and per failed file').choices(['github']);
+}
+
+/**
+ * Refuses option pairs that cannot both hold, before anything is processed: --annotate
+ * prints on stdout, where --json puts the report (use --report <file> with --annotate).
+ */
+export function checkOutputOptions(o: Record<string, any>): void {
+  if (o.annotate && o.json) throw new TanframeError('usage', '--annotate prints on stdout, where --json puts the report: use --report <file> with --annotate');
 }
 
 /**
@@ -180,5 +200,6 @@ export async function emitReport(report: Report, o: Record<string, any>, io: Cli
   }
   if (o.json) io.stdout(jsonText(report) + '\n');
   else if (!o.quiet) io.stdout(renderSummary(report, { color: io.isTTY && !io.env.NO_COLOR }));
+  if (o.annotate === 'github') io.stdout(renderGithubAnnotations(report));
   return failed;
 }

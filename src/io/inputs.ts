@@ -21,6 +21,12 @@ export interface InputFile {
   path: string;
   /** Path relative to the folder or glob base it was found under (its basename for a file). */
   relative: string;
+  /**
+   * The path as reports show it: a named file exactly as the user named it; a file found in a
+   * named folder (or under a glob's base) as that folder as named plus the relative path.
+   * Never depends on the working folder's depth (no `../..` chains for absolute inputs).
+   */
+  display: string;
 }
 
 /** Expansion result: files found and inputs that named nothing. */
@@ -159,6 +165,16 @@ function toPosix(p: string): string {
 }
 
 /**
+ * The display path of `relative` (posix) found under `base` as the user named it: `base`
+ * without trailing separators, '/', then `relative`; a base of '.' or '' adds nothing.
+ */
+export function displayPath(base: string, relative: string): string {
+  if (/^[\\/]+$/.test(base)) return '/' + relative;
+  const b = base.replace(/[\\/]+$/, '');
+  return b === '' || b === '.' ? relative : `${b}/${relative}`;
+}
+
+/**
  * Expands inputs relative to `cwd`. Files are taken whatever their extension (the reader
  * refuses unknown ones); folders and globs yield only mesh files. Folder walks (of a folder
  * input, or below a glob's literal base) never enter node_modules, a folder whose name starts
@@ -181,7 +197,7 @@ export async function expandInputs(inputs: string[], cwd: string, discovery: Dis
   const rules: WalkRules = { excluded: excluder(discovery.exclude ?? [], cwd), skip };
   // Files named one by one: their layout is kept relative to their common folder (below).
   const named: InputFile[] = [];
-  const add = async (abs: string, relative: string, isNamed = false) => {
+  const add = async (abs: string, relative: string, display: string, isNamed = false) => {
     let key = abs;
     try {
       key = await fs.realpath(abs);
@@ -190,7 +206,7 @@ export async function expandInputs(inputs: string[], cwd: string, discovery: Dis
     }
     if (seen.has(key)) return;
     seen.add(key);
-    const file = { path: abs, relative: toPosix(relative) };
+    const file = { path: abs, relative: toPosix(relative), display };
     files.push(file);
     if (isNamed) named.push(file);
   };
@@ -207,9 +223,9 @@ export async function expandInputs(inputs: string[], cwd: string, discovery: Dis
       await walk(abs, new Set(), found, rules, abs);
       const meshes = found.filter(isMeshFile);
       if (meshes.length === 0) problems.push({ input, message: 'no .glb, .gltf or .obj files in this folder' });
-      for (const f of meshes) await add(f, path.relative(abs, f));
+      for (const f of meshes) await add(f, path.relative(abs, f), displayPath(input, toPosix(path.relative(abs, f))));
     } else if (st) {
-      await add(abs, path.basename(abs), true);
+      await add(abs, path.basename(abs), input, true);
     } else if (hasGlob(input)) {
       const scan = picomatch.scan(toPosix(input));
       const base = path.resolve(cwd, scan.base === '' ? '.' : scan.base);
@@ -218,7 +234,8 @@ export async function expandInputs(inputs: string[], cwd: string, discovery: Dis
       await walk(base, new Set(), found, rules, base);
       const hits = found.filter((f) => isMeshFile(f) && matches(toPosix(path.relative(base, f))));
       if (hits.length === 0) problems.push({ input, message: 'the pattern matches no .glb, .gltf or .obj file' });
-      for (const f of hits) await add(f, path.relative(base, f));
+      const shownBase = scan.base === '' && toPosix(input).startsWith('/') ? '/' : scan.base;
+      for (const f of hits) await add(f, path.relative(base, f), displayPath(shownBase, toPosix(path.relative(base, f))));
     } else {
       problems.push({ input, message: 'no such file or folder' });
     }

@@ -166,11 +166,12 @@ export function renderUvMapSvg(p: UvPicture, options: UvMapSvgOptions = {}): str
 
 /**
  * The file name of a picture: the file's path as the report names it with every path
- * separator (and every character outside [A-Za-z0-9._-]) replaced, `..` written `up`, then
- * `__m<mesh>p<primitive>.svg`. Example: `props/crate.gltf`, mesh 0, primitive 1 ->
- * `props_crate.gltf__m0p1.svg`.
+ * separator (and every character outside [A-Za-z0-9._-]) replaced, `.` and `..` segments and
+ * a leading root left out, then `__m<mesh>p<primitive>.svg`. Example: `props/crate.gltf`,
+ * mesh 0, primitive 1 -> `props_crate.gltf__m0p1.svg`; `../assets/crate.gltf` ->
+ * `assets_crate.gltf__m0p1.svg` (the caller adds a `~2` suffix when two names meet).
  */
 export function pictureFileName(input: string, mesh: number, primitive: number): string {
-  const parts = input.split(/[\\/]+/).filter((s) => s !== '' && s !== '.').map((s) => (s === '..' ? 'up' : s.replace(/[^A-Za-z0-9._-]/g, '-')));
+  const parts = input.split(/[\\/]+/).filter((s) => s !== '' && s !== '.' && s !== '..').map((s) => s.replace(/[^A-Za-z0-9._-]/g, '-'));
   return `${parts.join('_') || 'input'}__m${mesh}p${primitive}.svg`;
 }

@@ -2,6 +2,8 @@
  * Runs the CLI in-process with captured streams.
  */
 import { main } from '../../src/cli/main.js';
+import type { ProgressClock } from '../../src/cli/progress.js';
+import { assertReportsOf, snapshotReports } from './schemas.js';
 
 /** Captured outcome of one CLI run. */
 export interface CliRun {
@@ -20,9 +22,23 @@ export const TS_WORKER = new URL('./tsWorker.mjs', import.meta.url);
 export interface CliRunOptions {
   stdoutIsTTY?: boolean;
   stderrIsTTY?: boolean;
+  /** The terminal's width for the progress bar (default: unknown). */
+  columns?: number;
+  /** The clock progress reads (default: FROZEN_CLOCK). */
+  clock?: ProgressClock;
 }
 
-/** Runs `tanframe <argv...>` in `cwd` without spawning a process. */
+/**
+ * A clock that never moves and never fires: with it no batch ever lasts 10 s, so a slow
+ * machine cannot add progress records to a test's stderr. Tests of the records pass their own.
+ */
+export const FROZEN_CLOCK: ProgressClock = { now: () => 0, every: () => () => {} };
+
+/**
+ * Runs `tanframe <argv...>` in `cwd` without spawning a process. Every JSON report the run
+ * writes (--report, --json) is checked against schema/tanframe-report-1.schema.json; a
+ * report that does not match fails the test.
+ */
 export async function runCli(
   argv: string[],
   cwd: string,
@@ -31,6 +47,7 @@ export async function runCli(
 ): Promise<CliRun> {
   let stdout = '';
   let stderr = '';
+  const before = snapshotReports(argv, cwd);
   const code = await main(argv, {
     stdout: (s) => { stdout += s; },
     stderr: (s) => { stderr += s; },
@@ -38,7 +55,10 @@ export async function runCli(
     isTTY: !!streams.stdoutIsTTY,
     env,
     stderrIsTTY: !!streams.stderrIsTTY,
+    stderrColumns: () => streams.columns,
+    clock: streams.clock ?? FROZEN_CLOCK,
     workerScript: TS_WORKER,
   });
+  assertReportsOf(argv, cwd, stdout, before);
   return { code, stdout, stderr };
 }

@@ -143,7 +143,9 @@ describe('renderUvMapSvg', () => {
 describe('pictureFileName', () => {
   it('flattensThePathDeterministically', () => {
     expect(pictureFileName('props/crate.gltf', 0, 1)).toBe('props_crate.gltf__m0p1.svg');
-    expect(pictureFileName('../a b/c.glb', 2, 3)).toBe('up_a-b_c.glb__m2p3.svg');
+    expect(pictureFileName('../a b/c.glb', 2, 3)).toBe('a-b_c.glb__m2p3.svg');
+    expect(pictureFileName('../../../x/./y.glb', 0, 0)).toBe('x_y.glb__m0p0.svg'); // no up_ chains
+    expect(pictureFileName('C:\\art\\y.glb', 0, 0)).toBe('C-_art_y.glb__m0p0.svg');
     expect(pictureFileName('dir\\sub\\x.obj', 0, 0)).toBe('dir_sub_x.obj__m0p0.svg');
     expect(pictureFileName('/abs/y.glb', 1, 0)).toBe('abs_y.glb__m1p0.svg');
   });
