@@ -131,7 +131,7 @@ describe('a rerun with nothing changed', () => {
     await bake(src, out);
     const r = await runCli(['bake', src, '-o', out, '--jobs', '1', '--file-timeout', '0'], tmp);
     expect(r.stdout).toMatch(/^up-to-date +.*a\.glb -> /m);
-    expect(r.stdout).toMatch(/4 up to date/); // the total line (summary.ts) says "up to date"
+    expect(r.stdout).toMatch(/4 up-to-date/); // the total line (summary.ts) says "up-to-date", as the file lines do
   });
 });
 
