@@ -85,6 +85,10 @@ export interface StateJob {
   displayOutput: string | null;
   /** Set by RunState.pending: the worker measures RecordParts for this job. */
   record?: boolean;
+  /** This file's own options (config overrides), when they replace the run's. */
+  options?: ProcessOptions;
+  /** Gates a config waiver lets through for this file. */
+  waivers?: { gate: string; reason: string }[];
 }
 
 /** Jobs whose records are checked at once (file reads overlap hashing). Our choice. */
@@ -236,7 +240,9 @@ export class RunState {
   }
 
   private optionsOf(job: StateJob): Record<string, unknown> {
-    return JSON.parse(canonical({ ...this.settings.options, format: job.format }));
+    // The file's own options (overrides) and waivers, so a config change that touches only
+    // this file runs it again.
+    return JSON.parse(canonical({ ...(job.options ?? this.settings.options), format: job.format, waivers: job.waivers ?? [] }));
   }
 
   /** True when `job`'s record matches what is on disk now (see the module doc). */

@@ -182,6 +182,21 @@ describe('what runs a file again', () => {
     expect((await bake(src, out, '--tangent-type', 'snorm16')).status).toEqual(only({}, []));
   });
 
+  it('a config override or waiver that changes for one file runs that file alone', async () => {
+    const src = await source('changed-override');
+    const out = path.join(tmp, 'changed-override-out');
+    const config = path.join(tmp, 'changed-override.config.json');
+    const write = (o: object) => fs.writeFileSync(config, JSON.stringify({ schema: 'tanframe-config/1', ...o }));
+    write({});
+    await bake(src, out, '--config', config);
+    expect((await bake(src, out, '--config', config)).status).toEqual(only({}, []));
+    // Globs are relative to the config file's folder (tmp).
+    write({ overrides: [{ files: ['changed-override/a.glb'], tolerance: 5 }] });
+    expect((await bake(src, out, '--config', config)).status).toEqual(only({}, ['a.glb']));
+    write({ overrides: [{ files: ['changed-override/a.glb'], tolerance: 5 }], waivers: [{ files: ['changed-override/sub/**'], gates: ['uv-overlap'], reason: 'atlas' }] });
+    expect((await bake(src, out, '--config', config)).status).toEqual(only({}, ['sub/b.glb']));
+  });
+
   it('another tool version runs every file again', async () => {
     const src = await source('changed-version');
     const out = path.join(tmp, 'changed-version-out');
