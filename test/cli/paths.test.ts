@@ -10,7 +10,7 @@ import * as os from 'node:os';
 import * as path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { runCli } from '../helpers/cli.js';
-import { buildGltf, glbBytes, writeGltf, type BuildPrimitive } from '../helpers/gltfBuilder.js';
+import { buildGltf, glbBytes, writeGltf, unitQuad } from '../helpers/gltfBuilder.js';
 
 const repo = path.resolve(__dirname, '../..');
 let tmp = '';
@@ -26,15 +26,7 @@ afterAll(() => {
 //   |    / |
 //   0 ---- 1
 function quad(): { json: any; bin: Uint8Array } {
-  const prim: BuildPrimitive = {
-    attributes: {
-      POSITION: { array: new Float32Array([0, 0, 0, 1, 0, 0, 1, 1, 0, 0, 1, 0]), type: 'VEC3' },
-      NORMAL: { array: new Float32Array([0, 0, 1, 0, 0, 1, 0, 0, 1, 0, 0, 1]), type: 'VEC3' },
-      TEXCOORD_0: { array: new Float32Array([0, 1, 1, 1, 1, 0, 0, 0]), type: 'VEC2' },
-    },
-    indices: new Uint16Array([0, 1, 2, 0, 2, 3]),
-    material: 0,
-  };
+  const prim = unitQuad();
   const a = buildGltf([prim]);
   a.json.materials[0].normalTexture = { index: 0 };
   a.json.textures = [{ source: 0 }];

@@ -12,6 +12,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { runCli } from '../helpers/cli.js';
 import { validateGltfFile } from '../helpers/validate.js';
 import { STATE_FILE_NAME } from '../../src/lib/runState.js';
+import { mtimes } from '../helpers/files.js';
 
 const repo = path.resolve(__dirname, '../..');
 const demo = path.join(repo, 'examples/harbor-props');
@@ -27,20 +28,6 @@ beforeAll(() => {
 afterAll(() => {
   fs.rmSync(tmp, { recursive: true, force: true });
 });
-
-/** Modification time (ns) of every file under `dir`, by relative path. */
-function mtimes(dir: string): Record<string, bigint> {
-  const out: Record<string, bigint> = {};
-  const walk = (d: string) => {
-    for (const e of fs.readdirSync(d, { withFileTypes: true })) {
-      const p = path.join(d, e.name);
-      if (e.isDirectory()) walk(p);
-      else out[path.relative(dir, p)] = fs.statSync(p, { bigint: true }).mtimeNs;
-    }
-  };
-  walk(dir);
-  return out;
-}
 
 async function bake(src: string, out: string): Promise<{ code: number; stderr: string; files: any[]; summary: any }> {
   const r = await runCli(['bake', src, '-o', out, '--jobs', '2', '--json'], tmp);

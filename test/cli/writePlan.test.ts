@@ -14,7 +14,7 @@ import * as path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { readAsset } from '../../src/lib/processFile.js';
 import { runCli } from '../helpers/cli.js';
-import { buildGltf, glbBytes, writeGltf, type BuildPrimitive } from '../helpers/gltfBuilder.js';
+import { buildGltf, glbBytes, writeGltf, unitQuad } from '../helpers/gltfBuilder.js';
 import { encodePngRgba8 } from '../helpers/png.js';
 import { validateGltfFile } from '../helpers/validate.js';
 
@@ -35,15 +35,7 @@ afterAll(() => {
 // that gets the primitive a UV picture.
 function quad(withImage = true, mirrored = false): { json: any; bin: Uint8Array } {
   const uv = mirrored ? [1, 1, 0, 1, 0, 0, 1, 0] : [0, 1, 1, 1, 1, 0, 0, 0];
-  const prim: BuildPrimitive = {
-    attributes: {
-      POSITION: { array: new Float32Array([0, 0, 0, 1, 0, 0, 1, 1, 0, 0, 1, 0]), type: 'VEC3' },
-      NORMAL: { array: new Float32Array([0, 0, 1, 0, 0, 1, 0, 0, 1, 0, 0, 1]), type: 'VEC3' },
-      TEXCOORD_0: { array: new Float32Array(uv), type: 'VEC2' },
-    },
-    indices: new Uint16Array([0, 1, 2, 0, 2, 3]),
-    material: 0,
-  };
+  const prim = unitQuad(uv);
   const a = buildGltf([prim]);
   if (withImage) {
     a.json.materials[0].normalTexture = { index: 0 };

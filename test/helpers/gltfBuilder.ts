@@ -262,3 +262,22 @@ export async function writeGltf(dir: string, name: string, json: any, bin: Uint8
   await writeFile(file, JSON.stringify(copy, null, 2));
   return file;
 }
+
+/**
+ * A unit quad in the z = 0 plane facing +Z, two triangles, material 0, uvs covering the
+ * texture (glTF convention: v down); `uv` replaces the four corners' texture coordinates.
+ *   3 ---- 2
+ *   |    / |
+ *   0 ---- 1
+ */
+export function unitQuad(uv: number[] = [0, 1, 1, 1, 1, 0, 0, 0]): BuildPrimitive {
+  return {
+    attributes: {
+      POSITION: { array: new Float32Array([0, 0, 0, 1, 0, 0, 1, 1, 0, 0, 1, 0]), type: 'VEC3' },
+      NORMAL: { array: new Float32Array([0, 0, 1, 0, 0, 1, 0, 0, 1, 0, 0, 1]), type: 'VEC3' },
+      TEXCOORD_0: { array: new Float32Array(uv), type: 'VEC2' },
+    },
+    indices: new Uint16Array([0, 1, 2, 0, 2, 3]),
+    material: 0,
+  };
+}

@@ -11,8 +11,9 @@ import * as path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { runCli } from '../helpers/cli.js';
 import { gridAsset, setCornerUv, writeGridGlb } from '../helpers/gridAsset.js';
-import { buildGltf, writeGltf, type BuildPrimitive } from '../helpers/gltfBuilder.js';
+import { buildGltf, writeGltf, unitQuad } from '../helpers/gltfBuilder.js';
 import { STATE_FILE_NAME, STATE_SCHEMA } from '../../src/lib/runState.js';
+import { mtimes } from '../helpers/files.js';
 
 let tmp = '';
 beforeAll(() => {
@@ -27,15 +28,7 @@ afterAll(() => {
 //   |    / |
 //   0 ---- 1
 async function writeQuadGltf(dir: string, name: string): Promise<string> {
-  const prim: BuildPrimitive = {
-    attributes: {
-      POSITION: { array: new Float32Array([0, 0, 0, 1, 0, 0, 1, 1, 0, 0, 1, 0]), type: 'VEC3' },
-      NORMAL: { array: new Float32Array([0, 0, 1, 0, 0, 1, 0, 0, 1, 0, 0, 1]), type: 'VEC3' },
-      TEXCOORD_0: { array: new Float32Array([0, 1, 1, 1, 1, 0, 0, 0]), type: 'VEC2' },
-    },
-    indices: new Uint16Array([0, 1, 2, 0, 2, 3]),
-    material: 0,
-  };
+  const prim = unitQuad();
   const a = buildGltf([prim]);
   a.json.materials[0].normalTexture = { index: 0 };
   a.json.textures = [{ source: 0 }];
@@ -61,20 +54,6 @@ async function source(name: string): Promise<string> {
   await writeQuadGltf(path.join(dir, 'quad'), 'quad');
   writeObj(path.join(dir, 'obj'));
   return dir;
-}
-
-/** Modification time (ns) of every file under `dir`, by relative path. */
-function mtimes(dir: string): Record<string, bigint> {
-  const out: Record<string, bigint> = {};
-  const walk = (d: string) => {
-    for (const e of fs.readdirSync(d, { withFileTypes: true })) {
-      const p = path.join(d, e.name);
-      if (e.isDirectory()) walk(p);
-      else out[path.relative(dir, p)] = fs.statSync(p, { bigint: true }).mtimeNs;
-    }
-  };
-  walk(dir);
-  return out;
 }
 
 interface Run {
