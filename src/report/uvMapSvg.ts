@@ -91,19 +91,45 @@ export function renderUvMapSvg(p: UvPicture, options: UvMapSvgOptions = {}): str
   const plain: string[] = [];
   const mirrored: string[] = [];
   const overlap: string[] = [];
-  const marks: string[] = [];
+  // Degenerate markers by the pixel they land on (rounded): one ring per pixel, with the
+  // number of triangles there when more than one (they would otherwise hide one another).
+  const stacks = new Map<string, { cx: number; cy: number; count: number }>();
   for (let t = 0; t < drawn; t++) {
     const f = p.flags[t];
     const o = t * 6;
-    const d = `M${c(x(p.uvs[o]))} ${c(y(p.uvs[o + 1]))}L${c(x(p.uvs[o + 2]))} ${c(y(p.uvs[o + 3]))}L${c(x(p.uvs[o + 4]))} ${c(y(p.uvs[o + 5]))}Z`;
+    const x0 = x(p.uvs[o]), y0 = y(p.uvs[o + 1]);
+    let x1 = x(p.uvs[o + 2]), y1 = y(p.uvs[o + 3]);
+    let x2 = x(p.uvs[o + 4]), y2 = y(p.uvs[o + 5]);
+    // Every sub-path is written with one winding (clockwise on screen): under SVG's default
+    // nonzero fill rule (SVG 1.1, section 11.3 'fill-rule') sub-paths of opposite winding
+    // cancel where they overlap, which hid the hatching exactly where a mirrored triangle lies
+    // on an unmirrored one.
+    if ((x1 - x0) * (y2 - y0) - (y1 - y0) * (x2 - x0) < 0) {
+      const sx = x1, sy = y1;
+      x1 = x2; y1 = y2; x2 = sx; y2 = sy;
+    }
+    const d = `M${c(x0)} ${c(y0)}L${c(x1)} ${c(y1)}L${c(x2)} ${c(y2)}Z`;
     if (f & PICTURE_MIRRORED) mirrored.push(d);
     else plain.push(d);
     if (f & PICTURE_OVERLAP) overlap.push(d);
     if (f & PICTURE_DEGENERATE_UV) {
       const cx = x((p.uvs[o] + p.uvs[o + 2] + p.uvs[o + 4]) / 3);
       const cy = y((p.uvs[o + 1] + p.uvs[o + 3] + p.uvs[o + 5]) / 3);
-      // A ring with a cross: visible whatever the triangle's (zero) size.
-      marks.push(`M${c(cx - 5)} ${c(cy)}a5 5 0 1 0 10 0a5 5 0 1 0 -10 0M${c(cx - 3.5)} ${c(cy - 3.5)}l7 7M${c(cx - 3.5)} ${c(cy + 3.5)}l7 -7`);
+      const key = `${Math.round(cx)} ${Math.round(cy)}`;
+      const s = stacks.get(key);
+      if (s) s.count++;
+      else stacks.set(key, { cx, cy, count: 1 });
+    }
+  }
+  const marks: string[] = [];
+  const counts: string[] = [];
+  let stackedMarks = 0;
+  for (const s of stacks.values()) {
+    // A ring with a cross: visible whatever the triangle's (zero) size.
+    marks.push(`M${c(s.cx - 5)} ${c(s.cy)}a5 5 0 1 0 10 0a5 5 0 1 0 -10 0M${c(s.cx - 3.5)} ${c(s.cy - 3.5)}l7 7M${c(s.cx - 3.5)} ${c(s.cy + 3.5)}l7 -7`);
+    if (s.count > 1) {
+      stackedMarks++;
+      counts.push(`<text x="${c(s.cx + 7)}" y="${c(s.cy - 6)}" data-count="${s.count}">${n(s.count)}</text>`);
     }
   }
 
@@ -114,7 +140,7 @@ export function renderUvMapSvg(p: UvPicture, options: UvMapSvgOptions = {}): str
   legend.push({ swatch: sw(`url(#${id}hatch)`, OVERLAP_INK), text: `overlaps another triangle in UV space (${n(p.overlap)})` });
   legend.push({
     swatch: `<path d="M2 7a5 5 0 1 0 10 0a5 5 0 1 0 -10 0M3.5 3.5l7 7M3.5 10.5l7 -7" fill="none" stroke="${DEGENERATE_INK}" stroke-width="1.8"/>`,
-    text: `degenerate UVs: no UV area, marked at the centroid (${n(p.degenerateUv)})`,
+    text: `degenerate UVs: no UV area, marked at the centroid (${n(p.degenerateUv)})${stackedMarks ? '; a number beside a mark: triangles on that point' : ''}`,
   });
   const notes: string[] = [];
   notes.push(`u to the right, v downward as in the texture image; dashed square: UV 0..1; ${n(drawn)} of ${n(p.triangles)} triangles drawn`);
@@ -151,6 +177,10 @@ export function renderUvMapSvg(p: UvPicture, options: UvMapSvgOptions = {}): str
   // The unit square over the triangles, so it shows even where they cover it.
   out.push(`<rect x="${c(x(0))}" y="${c(y(0))}" width="${c(scale)}" height="${c(scale)}" fill="none" stroke="${UNIT_SQUARE}" stroke-width="1.2" stroke-dasharray="6 4"/>`);
   if (marks.length) out.push(`<path class="degenerate" d="${marks.join('')}" fill="none" stroke="${DEGENERATE_INK}" stroke-width="1.8"/>`);
+  if (counts.length) {
+    // Paper-coloured halo under each number (paint-order: SVG 2), so it reads over any fill.
+    out.push(`<g class="stack-counts" fill="${DEGENERATE_INK}" font-size="11" font-weight="700" stroke="${PAPER}" stroke-width="3" paint-order="stroke" stroke-linejoin="round">${counts.join('')}</g>`);
+  }
   let ly = legendTop;
   for (const l of legend) {
     out.push(`<g transform="translate(${margin} ${ly})">${l.swatch}<text x="22" y="11" fill="${INK}">${escapeXml(l.text)}</text></g>`);

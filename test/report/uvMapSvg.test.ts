@@ -11,6 +11,9 @@ import { pictureFileName, renderUvMapSvg } from '../../src/report/uvMapSvg.js';
 import { PICTURE_DEGENERATE_UV, PICTURE_MIRRORED, PICTURE_OVERLAP } from '../../src/report/uvPicture.js';
 
 const hasXmllint = spawnSync('xmllint', ['--version']).status === 0;
+const CHROMIUM = '/usr/bin/chromium';
+const hasChromium = fs.existsSync(CHROMIUM);
+if (!hasChromium) console.warn(`SKIPPED (in part): ${CHROMIUM} is absent; the UV picture was not drawn in a browser`);
 if (!hasXmllint) console.warn('SKIPPED (in part): xmllint is not installed; the SVG well-formedness check did not run');
 
 const HEAD = { mesh: 2, meshName: 'hull', primitive: 1, uvSet: 0 };
@@ -39,6 +42,31 @@ function fiveTriangles() {
 function pathData(svg: string, cls: string): string {
   const m = new RegExp(`<path class="${cls}" d="([^"]*)"`).exec(svg);
   return m ? m[1] : '';
+}
+
+/** The triangles of a path made of `Mx yLx yLx yZ` sub-paths, as [x0, y0, x1, y1, x2, y2] each. */
+function subpaths(d: string): number[][] {
+  return [...d.matchAll(/M([-\d.]+) ([-\d.]+)L([-\d.]+) ([-\d.]+)L([-\d.]+) ([-\d.]+)Z/g)].map((m) => m.slice(1, 7).map(Number));
+}
+
+/**
+ * Whether (px, py) is painted by a fill of these triangle sub-paths under SVG's default
+ * nonzero rule (SVG 1.1, section 11.3 'fill-rule': a ray from the point, +1 for each crossing
+ * of a segment going one way, -1 the other way; painted when the sum is not 0).
+ */
+function paintedNonzero(tris: number[][], px: number, py: number): boolean {
+  let winding = 0;
+  for (const t of tris) {
+    for (let k = 0; k < 3; k++) {
+      const ax = t[k * 2], ay = t[k * 2 + 1], bx = t[((k + 1) % 3) * 2], by = t[((k + 1) % 3) * 2 + 1];
+      // Ray toward +x: count the segment when it straddles py and crosses to the right of px.
+      if ((ay <= py) !== (by <= py)) {
+        const xCross = ax + ((py - ay) * (bx - ax)) / (by - ay);
+        if (xCross > px) winding += by > ay ? 1 : -1;
+      }
+    }
+  }
+  return winding !== 0;
 }
 
 let tmp = '';
@@ -130,6 +158,78 @@ describe('renderUvMapSvg', () => {
     expect(svg).not.toContain('lie off the picture');
     const far = { ...p, uvs: new Float32Array([0, 0, 100, 0, 100, 0.5]) };
     expect(renderUvMapSvg(far)).toContain('UVs beyond -15..16 lie off the picture');
+  });
+
+  it('hatchesAMirroredTriangleOverAnUnmirroredOneWhereTheyOverlap', () => {
+    // Two overlapping triangles, both flagged as overlaps; t1 is mirrored (its UVs run the
+    // other way round), so before one winding was enforced the two sub-paths cancelled:
+    //   t0 (0.1,0.1) (0.7,0.1) (0.1,0.7)      t1 (0.3,0.3) (0.3,0.9) (0.9,0.3)
+    //   the square (0.3..0.4, 0.3..0.4) lies inside both.
+    const uvs = new Float32Array([0.1, 0.1, 0.7, 0.1, 0.1, 0.7, 0.3, 0.3, 0.3, 0.9, 0.9, 0.3]);
+    const one = Uint8Array.from([1, 1]);
+    const p = { ...buildUvPicture(HEAD, Uint32Array.from([0, 1, 2, 3, 4, 5]), uvs, 2, new Uint8Array(2), Uint8Array.from([0, 1]), one), input: 'x.glb' };
+    const svg = renderUvMapSvg(p, { size: 400 });
+    const tris = subpaths(pathData(svg, 'overlap'));
+    expect(tris.length).toBe(2);
+    // Picture pixels: x = 16 + u * 400, y = 38 + v * 400. Sample the shared square on a grid.
+    let hatched = 0, samples = 0;
+    for (let u = 0.305; u < 0.4; u += 0.01) {
+      for (let v = 0.305; v < 0.4; v += 0.01) {
+        samples++;
+        if (paintedNonzero(tris, 16 + u * 400, 38 + v * 400)) hatched++;
+      }
+    }
+    expect(samples).toBeGreaterThan(50);
+    expect(hatched).toBe(samples);
+    // And outside both triangles nothing is painted.
+    expect(paintedNonzero(tris, 16 + 0.9 * 400, 38 + 0.9 * 400)).toBe(false);
+  });
+
+  it.skipIf(!hasChromium)('hatchingOfAMirroredOverlapShowsInABrowser', async () => {
+    // The triangles of the test above, drawn by a real SVG renderer (Debian's chromium, headless
+    // through playwright-core): pixels of the hatching ink inside the shared square.
+    const uvs = new Float32Array([0.1, 0.1, 0.7, 0.1, 0.1, 0.7, 0.3, 0.3, 0.3, 0.9, 0.9, 0.3]);
+    const p = { ...buildUvPicture(HEAD, Uint32Array.from([0, 1, 2, 3, 4, 5]), uvs, 2, new Uint8Array(2), Uint8Array.from([0, 1]), Uint8Array.from([1, 1])), input: 'x.glb' };
+    const svg = renderUvMapSvg(p, { size: 400 });
+    const { chromium } = await import('playwright-core');
+    const { decode } = await import('fast-png');
+    const browser = await chromium.launch({ executablePath: CHROMIUM, args: ['--no-sandbox'] });
+    try {
+      const tab = await browser.newPage({ viewport: { width: 500, height: 600 } });
+      await tab.setContent(`<html><body style="margin:0">${svg}</body></html>`);
+      // The shared square: UV 0.3..0.4 -> pixels 136..176 across, 158..198 down.
+      const shot = decode(await tab.screenshot({ clip: { x: 138, y: 160, width: 36, height: 36 } }));
+      let ink = 0;
+      const ch = shot.channels;
+      for (let i = 0; i < shot.width * shot.height; i++) {
+        const r = shot.data[i * ch], g = shot.data[i * ch + 1], b = shot.data[i * ch + 2];
+        // The hatching ink #d9822b (217, 130, 43), allowing for anti-aliasing.
+        if (Math.abs(r - 217) < 30 && Math.abs(g - 130) < 30 && Math.abs(b - 43) < 40) ink++;
+      }
+      expect(ink).toBeGreaterThan(0.15 * shot.width * shot.height);
+    } finally {
+      await browser.close();
+    }
+  });
+
+  it('showsHowManyDegenerateMarksFallOnOnePoint', () => {
+    // Four zero-area triangles: three collapsed onto UV (0.5, 0.5), one onto (0.25, 0.75).
+    const uvs = new Float32Array([
+      0.5, 0.5, 0.5, 0.5, 0.5, 0.5,
+      0.5, 0.5, 0.5, 0.5, 0.5, 0.5,
+      0.25, 0.75, 0.25, 0.75, 0.25, 0.75,
+      0.5, 0.5, 0.5, 0.5, 0.5, 0.5,
+    ]);
+    const p = { ...buildUvPicture(HEAD, Uint32Array.from({ length: 12 }, (_, i) => i), uvs, 4, new Uint8Array(4).fill(1), new Uint8Array(4), new Uint8Array(4)), input: 'x.glb' };
+    const svg = renderUvMapSvg(p, { size: 400 });
+    // One ring per point, and the count beside the ring of the stacked point only.
+    expect(pathData(svg, 'degenerate').match(/a5 5 0 1 0 10 0/g)?.length).toBe(2);
+    const labels = [...svg.matchAll(/<text x="([-\d.]+)" y="([-\d.]+)" data-count="(\d+)">([^<]*)<\/text>/g)];
+    expect(labels.map((m) => [Number(m[3]), m[4]])).toEqual([[3, '3']]);
+    // Beside the mark at (16 + 0.5 * 400, 38 + 0.5 * 400): to its upper right.
+    expect(Number(labels[0][1])).toBe(216 + 7);
+    expect(Number(labels[0][2])).toBe(238 - 6);
+    expect(svg).toContain('marked at the centroid (4); a number beside a mark: triangles on that point');
   });
 
   it('distinctIdPrefixesKeepInlinedPicturesApart', () => {
