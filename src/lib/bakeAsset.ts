@@ -18,6 +18,7 @@ import { countMirrorSeamSplits, markMirroredTriangles } from '../diagnose/index.
 import type { PrimitiveReport } from '../report/types.js';
 import type { UvPicture } from '../report/uvPicture.js';
 import { diagnosePrimitive } from './diagnosePrimitive.js';
+import { normalMapBackground, type BackgroundCache } from './pictureBackground.js';
 import { buildUvPicture, hasFindings } from './pictures.js';
 import { tangentNeedOf } from './material.js';
 import { morphTangentDelta, type MorphBase } from './morphTangents.js';
@@ -284,6 +285,7 @@ export function solveAsset(asset: Asset, options: ProcessOptions, pictures = fal
   const shown: UvPicture[] = [];
   const solved = new Map<string, { report: PrimitiveReport; replacement: PrimitiveReplacement | null }>();
   const scratch = createCompactScratch();
+  const backgrounds: BackgroundCache = new Map();
   for (let i = 0; i < asset.primitives.length; i++) {
     const p = asset.primitives[i];
     const key = shareKey(asset, p, options);
@@ -297,7 +299,12 @@ export function solveAsset(asset: Asset, options: ProcessOptions, pictures = fal
     primitives.push(r.report);
     const replacement = earlier ? earlier.replacement : r.replacement;
     if (replacement) replacements.set(i, replacement);
-    if (r.picture) shown.push(r.picture);
+    if (r.picture) {
+      const b = normalMapBackground(asset, p.material, r.picture.uvSet, backgrounds);
+      r.picture.background = b.background;
+      r.picture.backgroundNote = b.note;
+      shown.push(r.picture);
+    }
     if (key !== null && !earlier) solved.set(key, { report: r.report, replacement: r.replacement });
   }
   return { primitives, replacements, pictures: shown };

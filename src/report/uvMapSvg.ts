@@ -3,10 +3,11 @@
  * the glTF 2.0 specification, section 3.8.4 (texture coordinates: origin at the image's
  * top-left, v downward) for the layout, so the picture matches the texture image.
  * Renders one primitive's UV layout: triangles outlined, mirrored ones tinted, overlapping
- * ones hatched, degenerate ones marked at their centroid, and a legend in words.
+ * ones hatched, degenerate ones marked at their centroid (with a count where several fall on
+ * one point), the material's normal map faintly behind, and a legend in words.
  */
 import { markupText } from '../mesh/text.js';
-import { MAX_PICTURE_TRIANGLES, PICTURE_DEGENERATE_UV, PICTURE_MIRRORED, PICTURE_OVERLAP, type UvPicture } from './uvPicture.js';
+import { MAX_PICTURE_TRIANGLES, PICTURE_DEGENERATE_UV, PICTURE_MIRRORED, PICTURE_OVERLAP, type PictureBackground, type UvPicture } from './uvPicture.js';
 
 /** UVs this far outside the unit square (in UV units) still fit in the picture; beyond, they are off it. */
 export const UV_VIEW_LIMIT = 15;
@@ -20,6 +21,50 @@ const MIRROR_FILL = '#86c2c6';
 const OVERLAP_INK = '#d9822b';
 const DEGENERATE_INK = '#c0283e';
 const UNIT_SQUARE = '#5d6b7a';
+
+/** Opacity of the normal map behind the layout, and of the triangle fills over it (ours). */
+const MAP_OPACITY = 0.55;
+const FILL_OVER_MAP = 0.45;
+
+/** Base64 of bytes (RFC 4648, section 4), through the global btoa of browsers and Node.js. */
+function base64(bytes: Uint8Array): string {
+  let s = '';
+  for (let i = 0; i < bytes.length; i += 0x8000) s += String.fromCharCode(...bytes.subarray(i, i + 0x8000));
+  return btoa(s);
+}
+
+/** A number for an SVG attribute: up to 6 decimals, no trailing zeros, "-0" written "0". */
+function num(x: number): string {
+  const s = (Math.round(x * 1e6) / 1e6).toString();
+  return s === '-0' ? '0' : s;
+}
+
+/**
+ * The pattern that paints the normal map over the UV plane: pattern space is texture space
+ * (one unit per image), mapped to the picture through the inverse of the map's
+ * KHR_texture_transform and the picture's own UV-to-pixel scale (patternTransform). A
+ * repeating axis tiles the image (SVG 1.1, 13.3 patterns), a mirrored one tiles it with every
+ * other copy flipped (glTF 2.0, sampler wrap modes), a clamped one is drawn once.
+ */
+function mapPattern(id: string, b: PictureBackground, scale: number, ox: number, oy: number): string {
+  // UV -> texture: s = m0 u + m3 v + m6, t = m1 u + m4 v + m7; its inverse, then to pixels.
+  const m = b.transform ?? [1, 0, 0, 0, 1, 0, 0, 0, 1];
+  const det = m[0] * m[4] - m[3] * m[1];
+  const i0 = m[4] / det, i2 = -m[3] / det, i4 = (m[3] * m[7] - m[4] * m[6]) / det;
+  const i1 = -m[1] / det, i3 = m[0] / det, i5 = (m[1] * m[6] - m[0] * m[7]) / det;
+  const matrix = [scale * i0, scale * i1, scale * i2, scale * i3, ox + scale * i4, oy + scale * i5].map(num).join(' ');
+  const href = `data:image/png;base64,${base64(b.png)}`;
+  // A clamped axis: one tile far wider than the picture, the image at its origin.
+  const far = 100000;
+  const w = b.wrapS === 'mirror' ? 2 : b.wrapS === 'clamp' ? 2 * far : 1;
+  const h = b.wrapT === 'mirror' ? 2 : b.wrapT === 'clamp' ? 2 * far : 1;
+  const px = b.wrapS === 'clamp' ? -far : 0, py = b.wrapT === 'clamp' ? -far : 0;
+  const copies: string[] = [`<image id="${id}map-image" href="${href}" width="1" height="1" preserveAspectRatio="none"/>`];
+  if (b.wrapS === 'mirror') copies.push(`<use href="#${id}map-image" transform="translate(2 0) scale(-1 1)"/>`);
+  if (b.wrapT === 'mirror') copies.push(`<use href="#${id}map-image" transform="translate(0 2) scale(1 -1)"/>`);
+  if (b.wrapS === 'mirror' && b.wrapT === 'mirror') copies.push(`<use href="#${id}map-image" transform="translate(2 2) scale(-1 -1)"/>`);
+  return `<pattern id="${id}map" patternUnits="userSpaceOnUse" x="${px}" y="${py}" width="${w}" height="${h}" patternTransform="matrix(${matrix})">${copies.join('')}</pattern>`;
+}
 
 /** Drawing options. */
 export interface UvMapSvgOptions {
@@ -87,6 +132,7 @@ export function renderUvMapSvg(p: UvPicture, options: UvMapSvgOptions = {}): str
   const x = (u: number) => margin + (u - view.u0) * scale;
   const y = (v: number) => top + (v - view.v0) * scale;
 
+  const bg = p.background ?? null;
   const drawn = p.flags.length;
   const plain: string[] = [];
   const mirrored: string[] = [];
@@ -140,13 +186,16 @@ export function renderUvMapSvg(p: UvPicture, options: UvMapSvgOptions = {}): str
   legend.push({ swatch: sw(`url(#${id}hatch)`, OVERLAP_INK), text: `overlaps another triangle in UV space (${n(p.overlap)})` });
   legend.push({
     swatch: `<path d="M2 7a5 5 0 1 0 10 0a5 5 0 1 0 -10 0M3.5 3.5l7 7M3.5 10.5l7 -7" fill="none" stroke="${DEGENERATE_INK}" stroke-width="1.8"/>`,
-    text: `degenerate UVs: no UV area, marked at the centroid (${n(p.degenerateUv)})${stackedMarks ? '; a number beside a mark: triangles on that point' : ''}`,
+    text: `degenerate UVs: no UV area, marked at the centroid (${n(p.degenerateUv)})`,
   });
   const notes: string[] = [];
   notes.push(`u to the right, v downward as in the texture image; dashed square: UV 0..1; ${n(drawn)} of ${n(p.triangles)} triangles drawn`);
   if (drawn + p.nonFinite < p.triangles) {
     notes.push(`drawing capped at ${n(MAX_PICTURE_TRIANGLES)} triangles: flagged ones first, then an even sample of the rest`);
   }
+  if (bg) notes.push(`behind the layout, faintly: the normal map of the material (a ${bg.width} x ${bg.height} copy)${bg.transform ? ', placed through its KHR_texture_transform' : ''}`);
+  else if (p.backgroundNote) notes.push(p.backgroundNote);
+  if (stackedMarks > 0) notes.push('a number beside a degenerate mark counts the triangles on that point');
   if (p.nonFinite > 0) notes.push(`${n(p.nonFinite)} triangle${p.nonFinite === 1 ? '' : 's'} with NaN or infinite UVs cannot be drawn`);
   if (view.clipped) notes.push(`UVs beyond ${-UV_VIEW_LIMIT}..${1 + UV_VIEW_LIMIT} lie off the picture`);
 
@@ -160,7 +209,8 @@ export function renderUvMapSvg(p: UvPicture, options: UvMapSvgOptions = {}): str
   );
   out.push(
     `<defs><pattern id="${id}hatch" patternUnits="userSpaceOnUse" width="6" height="6" patternTransform="rotate(45)">` +
-      `<rect width="6" height="6" fill="${PAPER}" fill-opacity="0.35"/><line x1="1" y1="0" x2="1" y2="6" stroke="${OVERLAP_INK}" stroke-width="2.2"/></pattern></defs>`,
+      `<rect width="6" height="6" fill="${PAPER}" fill-opacity="0.35"/><line x1="1" y1="0" x2="1" y2="6" stroke="${OVERLAP_INK}" stroke-width="2.2"/></pattern>` +
+      (bg ? mapPattern(id, bg, scale, x(0), y(0)) : '') + '</defs>',
   );
   out.push(`<rect width="${width}" height="${height}" fill="${PAPER}"/>`);
   // About 7 px per character of the 12 px bold title; a long path keeps its end.
@@ -171,8 +221,12 @@ export function renderUvMapSvg(p: UvPicture, options: UvMapSvgOptions = {}): str
   // Tiles of the UV plane (one per whole UV unit), the unit square dashed on top.
   out.push(`<rect x="${c(x(view.u0))}" y="${c(y(view.v0))}" width="${c(spanU * scale)}" height="${c(spanV * scale)}" fill="#ffffff" stroke="#d4d0c4" stroke-width="1"/>`);
   const edge = `stroke="${EDGE}" stroke-width="0.6" stroke-linejoin="round"`;
-  if (plain.length) out.push(`<path class="plain" d="${plain.join('')}" fill="${PLAIN_FILL}" ${edge}/>`);
-  if (mirrored.length) out.push(`<path class="mirrored" d="${mirrored.join('')}" fill="${MIRROR_FILL}" ${edge}/>`);
+  if (bg) {
+    out.push(`<rect class="normal-map" x="${c(x(view.u0))}" y="${c(y(view.v0))}" width="${c(spanU * scale)}" height="${c(spanV * scale)}" fill="url(#${id}map)" opacity="${MAP_OPACITY}"/>`);
+  }
+  const over = bg ? ` fill-opacity="${FILL_OVER_MAP}"` : '';
+  if (plain.length) out.push(`<path class="plain" d="${plain.join('')}" fill="${PLAIN_FILL}"${over} ${edge}/>`);
+  if (mirrored.length) out.push(`<path class="mirrored" d="${mirrored.join('')}" fill="${MIRROR_FILL}"${over} ${edge}/>`);
   if (overlap.length) out.push(`<path class="overlap" d="${overlap.join('')}" fill="url(#${id}hatch)" stroke="${OVERLAP_INK}" stroke-width="0.8"/>`);
   // The unit square over the triangles, so it shows even where they cover it.
   out.push(`<rect x="${c(x(0))}" y="${c(y(0))}" width="${c(scale)}" height="${c(scale)}" fill="none" stroke="${UNIT_SQUARE}" stroke-width="1.2" stroke-dasharray="6 4"/>`);

@@ -18,6 +18,22 @@ export const PICTURE_OVERLAP = 4;
  */
 export const MAX_PICTURE_TRIANGLES = 200_000;
 
+/** The material's normal map, shrunk, drawn faintly behind a UV picture's layout. */
+export interface PictureBackground {
+  /** PNG bytes (8-bit RGB) of the shrunk map. */
+  png: Uint8Array;
+  width: number;
+  height: number;
+  /** How the map repeats beyond texture coordinates 0..1 (the sampler's wrapS, wrapT). */
+  wrapS: 'repeat' | 'mirror' | 'clamp';
+  wrapT: 'repeat' | 'mirror' | 'clamp';
+  /**
+   * The map's KHR_texture_transform as a column-major 3 x 3 matrix from UV to texture
+   * coordinates (uvTransformMatrix), or null when it has none.
+   */
+  transform: number[] | null;
+}
+
 /** One primitive's UV picture data. Counts are over all its triangles, drawn or not. */
 export interface UvPicture {
   /** The file as the report names it. */
@@ -39,11 +55,18 @@ export interface UvPicture {
   overlap: number;
   /** Triangles with a NaN or infinite UV (they cannot be drawn). */
   nonFinite: number;
+  /** The normal map drawn behind the layout; absent or null when there is none to draw. */
+  background?: PictureBackground | null;
+  /** Why the material's normal map is not drawn (one line), or absent / null. */
+  backgroundNote?: string | null;
 }
 
 /** The ArrayBuffers of `pictures`, for a transfer list between threads. */
 export function pictureBuffers(pictures: UvPicture[]): ArrayBuffer[] {
   const out: ArrayBuffer[] = [];
-  for (const p of pictures) out.push(p.uvs.buffer as ArrayBuffer, p.flags.buffer as ArrayBuffer, p.index.buffer as ArrayBuffer);
+  for (const p of pictures) {
+    out.push(p.uvs.buffer as ArrayBuffer, p.flags.buffer as ArrayBuffer, p.index.buffer as ArrayBuffer);
+    if (p.background) out.push(p.background.png.buffer as ArrayBuffer);
+  }
   return out;
 }

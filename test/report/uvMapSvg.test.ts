@@ -229,7 +229,39 @@ describe('renderUvMapSvg', () => {
     // Beside the mark at (16 + 0.5 * 400, 38 + 0.5 * 400): to its upper right.
     expect(Number(labels[0][1])).toBe(216 + 7);
     expect(Number(labels[0][2])).toBe(238 - 6);
-    expect(svg).toContain('marked at the centroid (4); a number beside a mark: triangles on that point');
+    expect(svg).toContain('marked at the centroid (4)');
+    expect(svg).toContain('a number beside a degenerate mark counts the triangles on that point');
+  });
+
+  it('drawsTheNormalMapFaintlyBehindTheLayoutWhereItsTransformPlacesIt', () => {
+    const png = Uint8Array.from([0x89, 0x50, 0x4e, 0x47, 1, 2, 3]); // bytes are carried, not read
+    const bg = { png, width: 4, height: 2, wrapS: 'repeat' as const, wrapT: 'mirror' as const, transform: null };
+    const svg = renderUvMapSvg({ ...picture, background: bg }, { size: 400 });
+    expect(svg).toContain(`href="data:image/png;base64,${Buffer.from(png).toString('base64')}"`);
+    // The map under the triangles: its rect comes before the fills, which turn translucent.
+    expect(svg.indexOf('class="normal-map"')).toBeGreaterThan(0);
+    expect(svg.indexOf('class="normal-map"')).toBeLessThan(svg.indexOf('class="plain"'));
+    expect(svg).toMatch(/<path class="plain" d="[^"]*" fill="#e7e1cf" fill-opacity="0.45"/);
+    // Without a transform one texture unit is one UV unit: 400 px, the origin at UV (0, 0).
+    // Mirrored repeat along t: a tile two units high with a flipped copy (glTF sampler wrap modes).
+    expect(svg).toContain('<pattern id="uv-map" patternUnits="userSpaceOnUse" x="0" y="0" width="1" height="2" patternTransform="matrix(400 0 0 400 16 38)">');
+    expect(svg).toContain('<use href="#uv-map-image" transform="translate(0 2) scale(1 -1)"/>');
+    expect(svg).toContain('behind the layout, faintly: the normal map of the material (a 4 x 2 copy)');
+    // KHR_texture_transform s = 2u + 0.5, t = 2v (rotation 0): texture point (s, t) lies at
+    // UV ((s - 0.5) / 2, t / 2), so the pattern's matrix maps (1, 1) to UV (0.25, 0.5).
+    const moved = renderUvMapSvg({ ...picture, background: { ...bg, wrapT: 'clamp', transform: [2, 0, 0, 0, 2, 0, 0.5, 0, 1] } }, { size: 400 });
+    const m = /patternTransform="matrix\(([^)]*)\)"/.exec(moved)![1].split(' ').map(Number);
+    const at = (sx: number, ty: number) => [m[0] * sx + m[2] * ty + m[4], m[1] * sx + m[3] * ty + m[5]];
+    expect(at(1, 1)).toEqual([16 + 0.25 * 400, 38 + 0.5 * 400]);
+    expect(at(0.5, 0)).toEqual([16, 38]);
+    // Clamped along t: one tile far taller than the picture, so the map is drawn once.
+    expect(moved).toMatch(/<pattern id="uv-map" patternUnits="userSpaceOnUse" x="0" y="-100000" width="1" height="200000"/);
+    expect(moved).toContain('placed through its KHR_texture_transform');
+    // No map: no pattern, opaque fills; a note says why when there is a reason.
+    expect(svg.replace(/fill-opacity="0.45" /g, '')).not.toBe(svg);
+    const none = renderUvMapSvg({ ...picture, backgroundNote: 'the normal map samples TEXCOORD_1, not this set; it is not drawn' });
+    expect(none).not.toContain('normal-map');
+    expect(none).toContain('the normal map samples TEXCOORD_1, not this set; it is not drawn');
   });
 
   it('distinctIdPrefixesKeepInlinedPicturesApart', () => {
@@ -267,5 +299,8 @@ describe('--uv-maps', () => {
     expect(fs.readFileSync(path.join(b, 'assets_bad.glb__m0p0.svg'), 'utf8')).toBe(svg);
     expect(pathData(svg, 'degenerate').match(/a5 5 0 1 0 10 0/g)?.length).toBe(1);
     expect(svg).toContain('32 of 32 triangles drawn');
+    // The grid's material has a 1 x 1 PNG normal map: drawn behind the layout.
+    expect(svg).toContain('<rect class="normal-map"');
+    expect(svg).toContain('the normal map of the material (a 1 x 1 copy)');
   });
 });
