@@ -41,6 +41,13 @@ export function writeFailure(io: CliIo, what: string, err: unknown): void {
 export const HTML_PICTURE_TRIANGLES = 1_000_000;
 
 /**
+ * PNG bytes of normal maps (drawn behind UV pictures) one HTML page embeds; later pictures
+ * on the page go without theirs (with a note). A choice of ours: 8 MiB, about 100 maxed-out
+ * backgrounds (PICTURE_BACKGROUND_SIDE), under 11 MiB of base64 text.
+ */
+export const HTML_MAP_BYTES = 8 * 2 ** 20;
+
+/**
  * Receives the pictures of each file as the batch goes (in job order): writes each one as an
  * SVG file under --uv-maps and keeps the SVG text for --html within HTML_PICTURE_TRIANGLES.
  * Pictures are not kept beyond that, so memory stays bounded by the page budget.
@@ -53,6 +60,7 @@ export class PictureOutputs {
   private readonly dir: string | null;
   private readonly forHtml: boolean;
   private htmlTriangles = 0;
+  private htmlMapBytes = 0;
   private readonly names = new Set<string>();
   private readonly writes: Promise<void>[] = [];
   private written = 0;
@@ -60,11 +68,15 @@ export class PictureOutputs {
   private readonly option: string;
 
   /**
-   * `htmlBudget`: the page's budget of drawn triangles (tests pass a small one). `plan`: the
+   * `htmlBudget`: the page's budget of drawn triangles, `mapBudget` of embedded normal-map
+   * bytes (tests pass small ones). `plan`: the
    * run's write plan; each picture passes its late guard (no symbolic link, no file the run
    * reads or writes otherwise) before it is written.
    */
-  constructor(o: Record<string, any>, private readonly io: CliIo, private readonly htmlBudget: number = HTML_PICTURE_TRIANGLES, private readonly plan: WritePlan | null = null) {
+  constructor(
+    o: Record<string, any>, private readonly io: CliIo, private readonly htmlBudget: number = HTML_PICTURE_TRIANGLES,
+    private readonly plan: WritePlan | null = null, private readonly mapBudget: number = HTML_MAP_BYTES,
+  ) {
     this.option = `--uv-maps ${o.uvMaps}`;
     this.dir = o.uvMaps ? path.resolve(io.cwd, o.uvMaps) : null;
     this.forHtml = !!o.html;
@@ -102,7 +114,15 @@ export class PictureOutputs {
       }
       this.htmlTriangles += drawn;
       const id = `p${this.html.length + 1}-`;
-      this.html.push({ input: p.input, mesh: p.mesh, primitive: p.primitive, svg: renderUvMapSvg(p, { idPrefix: id }) });
+      let shown = p;
+      if (p.background) {
+        if (this.htmlMapBytes + p.background.png.length > this.mapBudget) {
+          shown = { ...p, background: null, backgroundNote: `normal map left out of the page (it embeds at most ${this.mapBudget.toLocaleString('en-US')} bytes of them; see --uv-maps)` };
+        } else {
+          this.htmlMapBytes += p.background.png.length;
+        }
+      }
+      this.html.push({ input: p.input, mesh: p.mesh, primitive: p.primitive, svg: renderUvMapSvg(shown, { idPrefix: id }) });
     }
   }
 

@@ -58,4 +58,21 @@ describe('PictureOutputs', () => {
     expect((html.match(/<figure /g) ?? []).length).toBe(2);
     expect(html).toContain('mesh 0 primitive 0: picture left out (the page draws at most 5 triangles; see --uv-maps)');
   });
+
+  it('embedsNormalMapsInThePageWithinTheirByteBudget', async () => {
+    const io = { stdout: () => {}, stderr: () => {}, cwd: tmp, isTTY: false, env: {} };
+    const out = new PictureOutputs({ uvMaps: 'maps-bg', html: 'page.html' }, io, 1000, null, 250);
+    const withMap = (input: string) => ({
+      ...picture(input, 1),
+      background: { png: new Uint8Array(100).fill(7), width: 2, height: 2, wrapS: 'repeat' as const, wrapT: 'repeat' as const, transform: null },
+    });
+    // 100 + 100 bytes fit in 250; the third map would make 300.
+    out.take([withMap('a.glb'), withMap('b.glb'), withMap('c.glb')]);
+    await out.finish();
+    const onPage = out.html.map((p) => p.svg!.includes('class="normal-map"'));
+    expect(onPage).toEqual([true, true, false]);
+    expect(out.html[2].svg).toContain('normal map left out of the page (it embeds at most 250 bytes of them; see --uv-maps)');
+    // --uv-maps keeps every picture's map.
+    expect(fs.readFileSync(path.join(tmp, 'maps-bg', 'c.glb__m0p0.svg'), 'utf8')).toContain('class="normal-map"');
+  });
 });
