@@ -33,9 +33,10 @@ export interface BadNormals {
  * in src/mesh/tolerances.ts; default: float's UNIT_LENGTH_TOLERANCE). `positionHalfStep` is
  * the rounding of the positions' encoding (componentHalfStep; 0 for float): a triangle whose
  * face normal is within what that rounding can make of it takes no part in the flipped vote.
+ * With `marks` (one entry per vertex), sets marks[v] = 1 for each bad vertex (others untouched).
  * Returns the counts, in vertices.
  * Preconditions: indices hold 3 * triangleCount entries, each < vertexCount; positions and
- * normals hold 3 floats per vertex.
+ * normals hold 3 floats per vertex; marks (if given) holds vertexCount entries.
  */
 export function findBadNormals(
   indices: Uint32Array,
@@ -45,10 +46,12 @@ export function findBadNormals(
   vertexCount: number,
   unitTolerance: number = UNIT_LENGTH_TOLERANCE,
   positionHalfStep = 0,
+  marks: Uint8Array | null = null,
 ): BadNormals {
   assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
   assert(positions.length >= vertexCount * 3, 'positions must hold 3 floats per vertex');
   assert(normals.length >= vertexCount * 3, 'normals must hold 3 floats per vertex');
+  assert(!marks || marks.length >= vertexCount, 'marks must hold one entry per vertex');
   // Per vertex: corners with a usable face normal, and those among them facing away.
   const votes = new Uint32Array(vertexCount);
   const away = new Uint32Array(vertexCount);
@@ -82,6 +85,7 @@ export function findBadNormals(
     if (len <= ZERO_LENGTH) {
       zero++;
       count++;
+      if (marks) marks[v] = 1;
       continue;
     }
     let bad = false;
@@ -93,7 +97,10 @@ export function findBadNormals(
       flipped++;
       bad = true;
     }
-    if (bad) count++;
+    if (bad) {
+      count++;
+      if (marks) marks[v] = 1;
+    }
   }
   return { count, zero, nonUnit, flipped };
 }

@@ -51,12 +51,28 @@ export function countInvalidVertices(
   uvs: Float32Array | null,
   tangents: Float32Array | null,
 ): number {
-  const marks = new Uint8Array(vertexCount);
+  return markInvalidVertices(new Uint8Array(vertexCount), vertexCount, positions, normals, uvs, tangents);
+}
+
+/**
+ * As countInvalidVertices, and sets marks[v] = 1 for each such vertex (others untouched), so
+ * the caller can list them. Returns the count. Preconditions: marks.length >= vertexCount and
+ * as countInvalidVertices.
+ */
+export function markInvalidVertices(
+  marks: Uint8Array,
+  vertexCount: number,
+  positions: Float32Array,
+  normals: Float32Array | null,
+  uvs: Float32Array | null,
+  tangents: Float32Array | null,
+): number {
+  assert(marks.length >= vertexCount, 'marks must hold one entry per vertex');
   markNonFiniteVertices(marks, positions, 3, vertexCount);
   if (normals) markNonFiniteVertices(marks, normals, 3, vertexCount);
   if (uvs) markNonFiniteVertices(marks, uvs, 2, vertexCount);
   if (tangents) markNonFiniteVertices(marks, tangents, 4, vertexCount);
   let count = 0;
-  for (let v = 0; v < vertexCount; v++) count += marks[v];
+  for (let v = 0; v < vertexCount; v++) if (marks[v]) count++;
   return count;
 }

@@ -477,6 +477,9 @@ function buildPrimitive(
   // independent triangles (only two triangles with one id form a quad).
   const indices = new Uint32Array(triangles * 3);
   const faces = new Uint32Array(triangles);
+  // The line of each triangle's `f` statement (the first physical line of a continued one).
+  const faceLines = new Uint32Array(triangles);
+  const fl = o.faceLine.a;
   let ti = 0;
   cc = 0;
   for (let i = faceFrom; i < faceTo; i++) {
@@ -513,6 +516,7 @@ function buildPrimitive(
         faces[ti++] = faceId;
       }
     }
+    for (let t = ti - (k - 2); t < ti; t++) faceLines[t] = fl[f]!;
     cc += k;
   }
   return {
@@ -525,6 +529,7 @@ function buildPrimitive(
     indices,
     targets: [],
     faces,
+    faceLines,
   };
 }
 

@@ -200,6 +200,8 @@ export function solvePrimitive(
     positionHalfStep: componentHalfStep(pos.componentType, pos.normalized),
     uvTouching: uvOverlapAbsolute(uvAttr.componentType, uvAttr.normalized),
     marks,
+    faceLines: p.faceLines ?? null,
+    vertexNumbers: p.compactedFrom ?? null,
   });
   let picture: UvPicture | null = null;
   if (marks && hasFindings(report)) {

@@ -3,16 +3,19 @@
  */
 import {
   compareStoredTangents,
-  countInvalidVertices,
   findBadNormals,
   findDegenerateGeometry,
   findDegenerateUvTriangles,
   findUvOverlaps,
   isStoredTangentSetValid,
+  locateTriangles,
+  markInvalidVertices,
+  vertexFindingFromMarks,
+  vertexPositions,
 } from '../diagnose/index.js';
-import { findingFromMarks } from '../diagnose/finding.js';
+import { findingFromMarks, type Finding } from '../diagnose/finding.js';
 import { FLOAT_TANGENT_VALIDITY, UNIT_LENGTH_TOLERANCE, type TangentValidityTolerances } from '../mesh/tolerances.js';
-import type { PrimitiveReport } from '../report/types.js';
+import type { PrimitiveReport, TriangleFinding, VertexFindingReport } from '../report/types.js';
 
 /** What the diagnostics read. Arrays are the primitive's decoded input, before any split. */
 export interface DiagnoseInput {
@@ -43,6 +46,13 @@ export interface DiagnoseInput {
    * or null/absent when no picture is wanted.
    */
   marks?: { degenerateUv: Uint8Array; overlap: Uint8Array } | null;
+  /** OBJ: per triangle, the source line of its face (PrimitiveData.faceLines); null or absent for glTF. */
+  faceLines?: Uint32Array | null;
+  /**
+   * The vertex number the report gives each vertex (the accessor element it was read from,
+   * PrimitiveData.compactedFrom); null or absent: vertices are numbered as given.
+   */
+  vertexNumbers?: Uint32Array | null;
 }
 
 /** Verdicts the caller acts on. */
@@ -61,21 +71,40 @@ export interface DiagnoseVerdict {
 export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput): DiagnoseVerdict {
   const { indices, positions, normals, uvs, storedTangents, vertexCount, triangleCount } = input;
   const marks = input.marks ?? null;
-  report.degenerateUv = findDegenerateUvTriangles(indices, uvs, triangleCount, input.uvEpsilon, marks ? marks.degenerateUv : null);
-  report.degenerateGeometry = findDegenerateGeometry(indices, positions, triangleCount);
-  report.invalidValues = { count: countInvalidVertices(vertexCount, positions, normals, uvs, storedTangents) };
+  const lines = input.faceLines ?? null;
+  // Where each listed triangle and vertex lies (object-space centroids and positions, OBJ lines).
+  const located = (f: Finding): TriangleFinding => ({ ...f, ...locateTriangles(f.triangles, indices, positions, lines) });
+  const vertexFinding = (vertexMarks: Uint8Array): VertexFindingReport => {
+    const f = vertexFindingFromMarks(vertexMarks, vertexCount, indices, triangleCount);
+    const where = locateTriangles(f.triangles, indices, positions, lines);
+    const numbers = input.vertexNumbers ?? null;
+    const listed = numbers ? f.vertices.map((v) => numbers[v]) : f.vertices;
+    return { count: f.count, vertices: listed, positions: vertexPositions(f.vertices, positions), triangleCount: f.triangleCount, triangles: f.triangles, ...where };
+  };
+  report.degenerateUv = located(findDegenerateUvTriangles(indices, uvs, triangleCount, input.uvEpsilon, marks ? marks.degenerateUv : null));
+  report.degenerateGeometry = located(findDegenerateGeometry(indices, positions, triangleCount));
+  const invalid = new Uint8Array(vertexCount);
+  markInvalidVertices(invalid, vertexCount, positions, normals, uvs, storedTangents);
+  report.invalidValues = vertexFinding(invalid);
   const unitTolerance = input.normalUnitTolerance ?? UNIT_LENGTH_TOLERANCE;
   const validity = input.tangentValidity ?? FLOAT_TANGENT_VALIDITY;
-  report.badNormals = { count: normals ? findBadNormals(indices, positions, normals, triangleCount, vertexCount, unitTolerance, input.positionHalfStep ?? 0).count : 0 };
+  const badNormal = new Uint8Array(vertexCount);
+  if (normals) findBadNormals(indices, positions, normals, triangleCount, vertexCount, unitTolerance, input.positionHalfStep ?? 0, badNormal);
+  report.badNormals = vertexFinding(badNormal);
   const stacked = new Uint8Array(triangleCount);
-  report.uvOverlap = findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null, null, { stacked, touching: input.uvTouching });
+  report.uvOverlap = located(findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null, null, { stacked, touching: input.uvTouching }));
   report.stackedShells = findingFromMarks(stacked, triangleCount);
   let valid = false;
   if (storedTangents) {
+    const tangentMarks = { corners: new Uint8Array(input.computedIndices.length), invalid: new Uint8Array(vertexCount) };
     const c = compareStoredTangents(
       storedTangents, input.computedTangents, input.sourceVertex, input.computedIndices, input.computedUndefined, normals,
-      vertexCount, input.toleranceDeg, validity,
+      vertexCount, input.toleranceDeg, validity, tangentMarks,
     );
+    // Corner c of the solve's triangle list belongs to triangle floor(c / 3), the same triangle
+    // of the input list (the solve keeps the triangle order).
+    const mismatchedTriangles = new Uint8Array(triangleCount);
+    for (let k = 0; k < tangentMarks.corners.length; k++) if (tangentMarks.corners[k]) mismatchedTriangles[(k / 3) | 0] = 1;
     report.storedTangents = {
       invalid: c.invalid,
       undefinedFrames: c.undefinedFrames,
@@ -85,6 +114,8 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
       signMismatch: c.signMismatch,
       compared: c.compared,
       mismatched: c.mismatched,
+      mismatchedTriangles: located(findingFromMarks(mismatchedTriangles, triangleCount)),
+      invalidVertices: vertexFinding(tangentMarks.invalid),
     };
     valid = isStoredTangentSetValid(storedTangents, normals, vertexCount, validity);
   }

@@ -57,6 +57,13 @@ export interface PrimitiveData {
   targets: Record<string, AttributeData>[];
   /** Original face id per triangle (OBJ quads / polygons split in two or more); null for glTF. */
   faces: Uint32Array | null;
+  /** OBJ: per triangle, the 1-based line of the `f` statement it came from; absent or null for glTF. */
+  faceLines?: Uint32Array | null;
+  /**
+   * Set by compactPrimitive: for each vertex of the compacted primitive, the vertex (accessor
+   * element) of the primitive as read that it copies, ascending; absent when not compacted.
+   */
+  compactedFrom?: Uint32Array | null;
 }
 
 /** An external resource (image) a .gltf or .mtl names, resolved inside the input's folder. */

@@ -86,7 +86,8 @@ export function compactAttribute(memo: Map<AttributeData, AttributeData>, attr: 
 
 /**
  * `p` over only the vertices its indices reference (attributes and morph targets gathered,
- * indices renumbered), or `p` itself when it is not indexed or uses every vertex. Attributes
+ * indices renumbered, `compactedFrom` naming each new vertex's original), or `p` itself when
+ * it is not indexed or uses every vertex. Attributes
  * and targets that share one decoded accessor share one compacted copy.
  */
 export function compactPrimitive(scratch: CompactScratch, p: PrimitiveData): PrimitiveData {
@@ -100,5 +101,5 @@ export function compactPrimitive(scratch: CompactScratch, p: PrimitiveData): Pri
     for (const name of Object.keys(map)) out[name] = compactAttribute(memo, map[name], c.vertices);
     return out;
   };
-  return { ...p, attributes: gatherMap(p.attributes), indices: c.indices, targets: p.targets.map(gatherMap) };
+  return { ...p, attributes: gatherMap(p.attributes), indices: c.indices, targets: p.targets.map(gatherMap), compactedFrom: c.vertices };
 }

@@ -4,10 +4,34 @@
  */
 import type { FrameMethod } from '../mesh/types.js';
 
-/** A count with the first triangle indices (positions in the expanded triangle list). */
+/**
+ * A count with the first triangle indices (positions in the expanded triangle list) and where
+ * they are: `centroids` parallel to `triangles` (object space, as the file stores positions,
+ * before node transforms; null for a triangle with a non-finite corner) and, for OBJ input,
+ * `lines`: the source line of each listed triangle's face. Reports written before these
+ * fields existed lack them.
+ */
 export interface TriangleFinding {
   count: number;
   triangles: number[];
+  centroids?: (number[] | null)[];
+  lines?: number[];
+}
+
+/**
+ * A per-vertex count (vertices with invalid values, bad normals, invalid stored tangents) with
+ * the first vertices and their object-space `positions` (null where not finite), and the
+ * triangles that use them (`triangleCount` in all, the first listed with centroids and OBJ
+ * lines as in TriangleFinding). Only `count` is present in reports of earlier versions.
+ */
+export interface VertexFindingReport {
+  count: number;
+  vertices?: number[];
+  positions?: (number[] | null)[];
+  triangleCount?: number;
+  triangles?: number[];
+  centroids?: (number[] | null)[];
+  lines?: number[];
 }
 
 /** Stored-vs-recomputed tangent comparison. */
@@ -27,6 +51,10 @@ export interface StoredTangentReport {
   compared: number;
   /** Corners whose angle exceeds the `--tolerance` or whose sign differs. */
   mismatched: number;
+  /** Where: the triangles with at least one mismatched corner (count, first listed, locations). */
+  mismatchedTriangles?: TriangleFinding;
+  /** Where: the vertices whose stored tangent is invalid (count = `invalid`) and the triangles using them. */
+  invalidVertices?: VertexFindingReport;
 }
 
 /** One mesh primitive's findings. */
@@ -55,8 +83,8 @@ export interface PrimitiveReport {
   mirrorSeamSplits: number;
   degenerateUv: TriangleFinding;
   degenerateGeometry: TriangleFinding;
-  invalidValues: { count: number };
-  badNormals: { count: number };
+  invalidValues: VertexFindingReport;
+  badNormals: VertexFindingReport;
   /** A note, not a problem: triangles with mirrored UVs (a deliberate layout). */
   mirroredTriangles: number;
   /** Triangles that partly overlap another in UV space (a problem: one texel, two surfaces). */

@@ -118,6 +118,26 @@ async function audit(args: string[]): Promise<{ code: number; report: any; stder
 
 const grid = (name: string) => path.join(grids, `${name}.glb`);
 
+/**
+ * Object-space centroid of grid triangle t, from the sketch in test/helpers/gridAsset.ts:
+ * quad (i, j) = t >> 1; the even triangle (i, j) (i+1, j) (i+1, j+1) has its centroid at
+ * (i + 2/3, j + 1/3), the odd one (i, j) (i+1, j+1) (i, j+1) at (i + 1/3, j + 2/3); z = 0.
+ */
+function gridCentroid(t: number): number[] {
+  const q = t >> 1, i = q % N, j = (q - i) / N;
+  return t % 2 === 0 ? [i + 2 / 3, j + 1 / 3, 0] : [i + 1 / 3, j + 2 / 3, 0];
+}
+
+/** Centroids as the report writes them (7 significant digits) match the grid's within 1e-6. */
+function expectCentroids(got: (number[] | null)[], triangles: number[]): void {
+  expect(got.length).toBe(triangles.length);
+  got.forEach((c, k) => {
+    const want = gridCentroid(triangles[k]);
+    expect(c, `triangle ${triangles[k]}`).not.toBeNull();
+    for (let a = 0; a < 3; a++) expect(Math.abs(c![a] - want[a]), `triangle ${triangles[k]} axis ${a}`).toBeLessThan(1e-6);
+  });
+}
+
 function noOtherFindings(p: any, except: string[]): void {
   const all: Record<string, number> = {
     degenerateUv: p.degenerateUv.count, degenerateGeometry: p.degenerateGeometry.count, invalidValues: p.invalidValues.count,
@@ -125,6 +145,65 @@ function noOtherFindings(p: any, except: string[]): void {
   };
   for (const [k, v] of Object.entries(all)) if (!except.includes(k)) expect(v, k).toBe(0);
 }
+
+describe('audit says where each finding is', () => {
+  it('givesAnObjFindingItsCentroidAndTheLineOfItsFace', async () => {
+    // A quad (line 11, triangles 0 and 1) and, after a comment, a triangle whose three corners
+    // share one vt (line 13, triangle 2): degenerate UVs, centroid ((1 + 2 + 1) / 3, 1 / 3, 0).
+    //   4 (0,1) -- 3 (1,1)
+    //   |          |  \
+    //   1 (0,0) -- 2 (1,0) -- 5 (2,0)
+    const dir = path.join(tmp, 'obj-lines');
+    fs.mkdirSync(dir, { recursive: true });
+    fs.writeFileSync(path.join(dir, 'plate.obj'), [
+      'v 0 0 0', 'v 1 0 0', 'v 1 1 0', 'v 0 1 0', 'v 2 0 0', // 1-5
+      'vt 0 0', 'vt 1 0', 'vt 1 1', 'vt 0 1', // 6-9
+      'vn 0 0 1', // 10
+      'f 1/1/1 2/2/1 3/3/1 4/4/1', // 11
+      '# the sliver', // 12
+      'f 2/2/1 5/2/1 3/2/1', // 13
+    ].join('\n') + '\n');
+    const r = await audit([path.join(dir, 'plate.obj')]);
+    const p = r.report.files[0].primitives[0];
+    expect(p.degenerateUv.triangles).toEqual([2]);
+    expect(p.degenerateUv.lines).toEqual([13]);
+    expect(p.degenerateUv.centroids[0][0]).toBeCloseTo(4 / 3, 6);
+    expect(p.degenerateUv.centroids[0][1]).toBeCloseTo(1 / 3, 6);
+    expect(p.degenerateUv.centroids[0][2]).toBe(0);
+    // Every listed finding of an OBJ carries lines, empty ones included.
+    expect(p.uvOverlap.lines).toEqual([]);
+    expect(p.badNormals.lines).toEqual([]);
+  });
+
+  it('numbersVerticesAsTheAccessorsDoWhenAPrimitiveUsesPartOfABuffer', async () => {
+    // Eight vertices in the accessors; the primitive indexes only 4..7 (a quad at z = 0 facing
+    // +z), and vertex 6's normal points to -z: away from both its faces (bad normal).
+    //   7 (0,1) -- 6 (1,1)
+    //   |       /  |
+    //   4 (0,0) -- 5 (1,0)
+    const positions = new Float32Array(8 * 3), normals = new Float32Array(8 * 3), uvs = new Float32Array(8 * 2);
+    const corners = [[0, 0], [1, 0], [1, 1], [0, 1]];
+    for (let v = 0; v < 8; v++) {
+      const [x, y] = corners[v % 4];
+      positions.set([x + (v < 4 ? 5 : 0), y, 0], v * 3);
+      normals.set([0, 0, 1], v * 3);
+      uvs.set([x, 1 - y], v * 2);
+    }
+    normals.set([0, 0, -1], 6 * 3);
+    const b = new GltfBuilder();
+    b.addPrimitive({
+      attributes: { POSITION: { array: positions, type: 'VEC3' }, NORMAL: { array: normals, type: 'VEC3' }, TEXCOORD_0: { array: uvs, type: 'VEC2' } },
+      indices: Uint32Array.from([4, 5, 6, 4, 6, 7]),
+    });
+    const { json, bin } = b.build();
+    const file = await writeGlb(path.join(tmp, 'partial'), 'partial', json, bin);
+    const r = await audit([file, '--all-primitives']);
+    const p = r.report.files[0].primitives[0];
+    expect(p.badNormals).toMatchObject({ count: 1, vertices: [6], positions: [[1, 1, 0]], triangleCount: 2, triangles: [0, 1] });
+    // Centroids of (4, 5, 6) and (4, 6, 7).
+    expect(p.badNormals.centroids).toEqual([[0.6666667, 0.3333333, 0], [0.3333333, 0.6666667, 0]]);
+  });
+});
 
 describe('audit finds planted defects exactly', () => {
   it('degenerateUvTrianglesOfEachKindTripTheGateAndAreListed', async () => {
@@ -135,7 +214,10 @@ describe('audit finds planted defects exactly', () => {
     const p = f.primitives[0];
     expect(p.action).toBe('baked');
     expect(p.triangles).toBe(2 * N * N);
-    expect(p.degenerateUv).toEqual({ count: 3, triangles: [IDENTICAL, COLINEAR, COINCIDENT] });
+    expect(p.degenerateUv).toMatchObject({ count: 3, triangles: [IDENTICAL, COLINEAR, COINCIDENT] });
+    // Where they are: each listed triangle's centroid in object space; a GLB has no source lines.
+    expectCentroids(p.degenerateUv.centroids, [IDENTICAL, COLINEAR, COINCIDENT]);
+    expect(p.degenerateUv.lines).toBeUndefined();
     noOtherFindings(p, ['degenerateUv']);
     console.log(`planted degenerate UV triangles ${[IDENTICAL, COLINEAR, COINCIDENT].join(', ')}; audit lists ${p.degenerateUv.triangles.join(', ')}`);
   });
@@ -144,7 +226,7 @@ describe('audit finds planted defects exactly', () => {
     const r = await audit([grid('clean'), '--fail-on', 'degenerate-uv']);
     expect(r.code).toBe(0);
     expect(r.report.files[0].gates).toEqual([]);
-    expect(r.report.files[0].primitives[0].degenerateUv).toEqual({ count: 0, triangles: [] });
+    expect(r.report.files[0].primitives[0].degenerateUv).toEqual({ count: 0, triangles: [], centroids: [] });
     noOtherFindings(r.report.files[0].primitives[0], []);
   });
 
@@ -175,7 +257,8 @@ describe('audit finds planted defects exactly', () => {
     expect(r.code).toBe(1);
     expect(r.report.files[0].gates).toEqual(['uv-overlap']);
     const p = r.report.files[0].primitives[0];
-    expect(p.uvOverlap).toEqual({ count: 2, triangles: [20, 21] });
+    expect(p.uvOverlap).toMatchObject({ count: 2, triangles: [20, 21] });
+    expectCentroids(p.uvOverlap.centroids, [20, 21]);
     noOtherFindings(p, ['uvOverlap']);
     expect((await audit([grid('clean'), '--fail-on', 'uv-overlap'])).code).toBe(0);
   });
@@ -189,8 +272,17 @@ describe('audit finds planted defects exactly', () => {
     expect(p.invalidValues.count).toBe(2);
     // The triangle holding the NaN position has no usable area (documented in findDegenerateGeometry);
     // the NaN normal is not unit (documented in findBadNormals).
-    expect(p.degenerateGeometry).toEqual({ count: 1, triangles: [40] });
+    expect(p.degenerateGeometry).toMatchObject({ count: 1, triangles: [40] });
+    expect(p.degenerateGeometry.centroids).toEqual([null]); // a NaN corner: no centroid
     expect(p.badNormals.count).toBe(1);
+    // Where: vertex 121 (corner 1 of triangle 40, NaN x: no position) and vertex 210 (corner 0
+    // of triangle 70, NaN normal, at grid corner (i, j) of quad 35 = (3, 4)); each vertex is
+    // its own (no welding), so each lies in one triangle.
+    expect(p.invalidValues).toMatchObject({ vertices: [121, 210], triangleCount: 2, triangles: [40, 70] });
+    expect(p.invalidValues.positions).toEqual([null, [3, 4, 0]]);
+    expect(p.invalidValues.centroids[0]).toBeNull();
+    expectCentroids([p.invalidValues.centroids[1]], [70]);
+    expect(p.badNormals).toMatchObject({ count: 1, vertices: [210], positions: [[3, 4, 0]], triangleCount: 1, triangles: [70] });
     expect(p.degenerateUv.count).toBe(0);
     expect((await audit([grid('clean'), '--fail-on', 'invalid-values'])).code).toBe(0);
   });
@@ -201,6 +293,9 @@ describe('audit finds planted defects exactly', () => {
     expect(r.report.files[0].gates).toEqual(['bad-normals']);
     const p = r.report.files[0].primitives[0];
     expect(p.badNormals.count).toBe(3); // the three corners of triangle 44 (each its own vertex)
+    // Quad 22 = (6, 2), even triangle: corners (6, 2) (7, 2) (7, 3).
+    expect(p.badNormals).toMatchObject({ vertices: [132, 133, 134], positions: [[6, 2, 0], [7, 2, 0], [7, 3, 0]], triangleCount: 1, triangles: [44] });
+    expectCentroids(p.badNormals.centroids, [44]);
     noOtherFindings(p, ['badNormals']);
     expect((await audit([grid('clean'), '--fail-on', 'bad-normals'])).code).toBe(0);
   });
@@ -228,6 +323,10 @@ describe('audit finds planted defects exactly', () => {
     expect(s.signMismatch).toBe(1);
     expect(s.mismatched).toBe(2);
     expect(s.maxAngleDeg).toBeCloseTo(30, 3);
+    // Where: the triangles holding the two mismatched corners, with their centroids.
+    expect(s.mismatchedTriangles).toMatchObject({ count: 2, triangles: [10, 50] });
+    expectCentroids(s.mismatchedTriangles.centroids, [10, 50]);
+    expect(s.invalidVertices).toMatchObject({ count: 0, vertices: [], triangles: [] });
   });
 
   it('cornersWithoutADefinedFrameAreCountedApartAndNotCompared', async () => {
@@ -237,9 +336,10 @@ describe('audit finds planted defects exactly', () => {
     const r = await audit([file, '--fail-on', 'tangent-mismatch']);
     expect(r.code).toBe(0);
     const p = r.report.files[0].primitives[0];
-    expect(p.storedTangents).toEqual({
+    expect(p.storedTangents).toMatchObject({
       invalid: 0, undefinedFrames: 3, meanAngleDeg: 0, p95AngleDeg: 0, maxAngleDeg: 0, signMismatch: 0,
       compared: 3 * 2 * N * N - 3, mismatched: 0,
+      mismatchedTriangles: { count: 0, triangles: [], centroids: [] },
     });
     expect(p.fallbackTangents).toBeGreaterThan(0);
     const shown = await runCli(['audit', file, '--html', 'undefined.html'], tmp);

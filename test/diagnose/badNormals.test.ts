@@ -28,6 +28,17 @@ describe('findBadNormals', () => {
       .toEqual({ count: 4, zero: 1, nonUnit: 2, flipped: 1 });
   });
 
+  it('marksTheBadVerticesSoTheReportCanListThem', () => {
+    const g = weldedGrid(2);
+    setNormal(g.normals, 0, 0, 0, 0);
+    setNormal(g.normals, 2, 0, 0, 1.1);
+    setNormal(g.normals, 4, 0, 0, -1);
+    setNormal(g.normals, 8, NaN, 0, 1);
+    const marks = new Uint8Array(g.vertexCount);
+    findBadNormals(g.indices, g.positions, g.normals, g.triangleCount, g.vertexCount, UNIT_LENGTH_TOLERANCE, 0, marks);
+    expect([...marks.keys()].filter((v) => marks[v])).toEqual([0, 2, 4, 8]);
+  });
+
   it('finds nothing in a clean grid', () => {
     const g = weldedGrid(3);
     expect(findBadNormals(g.indices, g.positions, g.normals, g.triangleCount, g.vertexCount))

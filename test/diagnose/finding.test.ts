@@ -6,7 +6,7 @@
  *               0 1 0 1 1 0        -> count 3, triangles [1, 3, 4]
  */
 import { describe, expect, it } from 'vitest';
-import { MAX_LISTED, findingFromMarks } from '../../src/diagnose/finding.js';
+import { LOCATION_DIGITS, MAX_LISTED, findingFromMarks, locateTriangles, triangleCentroids, vertexFindingFromMarks, vertexPositions } from '../../src/diagnose/finding.js';
 import * as diagnose from '../../src/diagnose/index.js';
 
 describe('findingFromMarks', () => {
@@ -47,5 +47,51 @@ describe('diagnostics index', () => {
       expect(typeof (diagnose as Record<string, unknown>)[name], name).toBe('function');
     }
     expect(diagnose.MAX_LISTED).toBe(1000);
+  });
+});
+
+describe('where findings are', () => {
+  // Two triangles over four vertices (z = 1 plane), and one with a NaN corner:
+  //   3 (0,3) ---- 2 (3,3)        t0 = 0 1 2: centroid (2, 1, 1)
+  //   |         / |               t1 = 0 2 3: centroid (1, 2, 1)
+  //   0 (0,0) ---- 1 (3,0)        t2 = 0 1 4: vertex 4 has x = NaN -> null
+  const positions = new Float32Array([0, 0, 1, 3, 0, 1, 3, 3, 1, 0, 3, 1, NaN, 1, 1]);
+  const indices = new Uint32Array([0, 1, 2, 0, 2, 3, 0, 1, 4]);
+
+  it('givesEachListedTriangleItsObjectSpaceCentroid', () => {
+    expect(triangleCentroids([1, 0, 2], indices, positions)).toEqual([[1, 2, 1], [2, 1, 1], null]);
+  });
+
+  it('roundsCentroidsToSevenSignificantDigits', () => {
+    // (0 + 1 + 1) / 3 = 0.6666666666... -> 0.6666667; -0 comes out as 0.
+    const p = new Float32Array([0, 0, -0, 1, 0, -0, 1, 1, -0]);
+    expect(LOCATION_DIGITS).toBe(7);
+    expect(triangleCentroids([0], new Uint32Array([0, 1, 2]), p)).toEqual([[0.6666667, 0.3333333, 0]]);
+    expect(Object.is(triangleCentroids([0], new Uint32Array([0, 1, 2]), p)[0]![2], -0)).toBe(false);
+  });
+
+  it('addsSourceLinesWhenTheReaderKnowsThem', () => {
+    const faceLines = new Uint32Array([12, 12, 40]);
+    expect(locateTriangles([0, 2], indices, positions, faceLines)).toEqual({ centroids: [[2, 1, 1], null], lines: [12, 40] });
+    expect(locateTriangles([1], indices, positions, null)).toEqual({ centroids: [[1, 2, 1]] });
+  });
+
+  it('listsFlaggedVerticesWithTheirPositionsAndTheTrianglesUsingThem', () => {
+    // Vertex 3 is used by t1 only; vertex 4 by t2 only; vertex 0 by all three.
+    const marks = new Uint8Array([0, 0, 0, 1, 1]);
+    expect(vertexFindingFromMarks(marks, 5, indices, 3)).toEqual({ count: 2, vertices: [3, 4], triangleCount: 2, triangles: [1, 2] });
+    expect(vertexPositions([3, 4], positions)).toEqual([[0, 3, 1], null]);
+    expect(vertexFindingFromMarks(new Uint8Array([1, 0, 0, 0, 0]), 5, indices, 3).triangles).toEqual([0, 1, 2]);
+    expect(vertexFindingFromMarks(new Uint8Array(5), 5, indices, 3)).toEqual({ count: 0, vertices: [], triangleCount: 0, triangles: [] });
+  });
+
+  it('capsVertexAndTriangleListsAtMaxListed', () => {
+    // 1500 separate triangles, every vertex flagged: 4500 vertices, 1500 triangles, 1000 of each listed.
+    const n = 1500;
+    const idx = Uint32Array.from({ length: n * 3 }, (_, i) => i);
+    const f = vertexFindingFromMarks(new Uint8Array(n * 3).fill(1), n * 3, idx, n);
+    expect([f.count, f.vertices.length, f.triangleCount, f.triangles.length]).toEqual([4500, MAX_LISTED, 1500, MAX_LISTED]);
+    expect(f.vertices[999]).toBe(999);
+    expect(f.triangles[999]).toBe(999);
   });
 });

@@ -6,7 +6,7 @@
  *                                    and -Inf uv (still one vertex)
  */
 import { describe, expect, it } from 'vitest';
-import { countInvalidVertices, markNonFiniteVertices } from '../../src/diagnose/invalidValues.js';
+import { countInvalidVertices, markInvalidVertices, markNonFiniteVertices } from '../../src/diagnose/invalidValues.js';
 
 function clean(vertexCount: number) {
   const positions = new Float32Array(vertexCount * 3).map((_, i) => i * 0.5);
@@ -29,6 +29,17 @@ describe('countInvalidVertices', () => {
     m.uvs[3 * 2 + 1] = -Infinity;
     m.tangents[5 * 4 + 3] = NaN;
     expect(countInvalidVertices(6, m.positions, m.normals, m.uvs, m.tangents)).toBe(3);
+  });
+
+  it('marksTheInvalidVerticesSoTheReportCanListThem', () => {
+    const m = clean(6);
+    m.positions[1 * 3 + 2] = NaN;
+    m.normals[3 * 3 + 0] = Infinity;
+    m.uvs[3 * 2 + 1] = -Infinity;
+    m.tangents[5 * 4 + 3] = NaN;
+    const marks = new Uint8Array(6);
+    expect(markInvalidVertices(marks, 6, m.positions, m.normals, m.uvs, m.tangents)).toBe(3);
+    expect([...marks]).toEqual([0, 1, 0, 1, 0, 1]);
   });
 
   it('skips absent attributes', () => {

@@ -152,6 +152,37 @@ f 1/1/1 2/2/1 3/3/1 4/4/1 5/5/1 6/6/1\n`);
   });
 });
 
+describe('face source lines', () => {
+  it('records the line of each triangle\'s face statement, through groups, comments and continued lines', async () => {
+    const a = await readText([
+      '# five corners', // 1
+      'v 0 0 0', 'v 1 0 0', 'v 1 1 0', 'v 0 1 0', 'v 2 2 0', // 2-6
+      'usemtl a', // 7
+      'f 1 2 3 4', // 8: a quad, two triangles
+      '', // 9
+      'f 1 2 \\', // 10: a triangle continued onto line 11 (it starts on 10)
+      '  3',
+      'usemtl b', // 12
+      'f 1 2 3 5 4 # a pentagon, three triangles', // 13
+      'usemtl a', // 14
+      'f 2 3 4', // 15
+    ].join('\n'));
+    expect(Array.from(a.primitives[0]!.faceLines!)).toEqual([8, 8, 10, 15]);
+    expect(Array.from(a.primitives[1]!.faceLines!)).toEqual([13, 13, 13]);
+  });
+
+  it('costs one entry per triangle', async () => {
+    const lines = ['v 0 0 0', 'v 1 0 0', 'v 0 1 0'];
+    for (let i = 0; i < 500; i++) lines.push('f 1 2 3');
+    const a = await readText(lines.join('\n'));
+    const fl = a.primitives[0]!.faceLines!;
+    expect(fl).toBeInstanceOf(Uint32Array);
+    expect(fl.length).toBe(500);
+    expect(fl[0]).toBe(4);
+    expect(fl[499]).toBe(503);
+  });
+});
+
 describe('indices and vertices', () => {
   it('resolves negative indices relative to the vertices defined so far', async () => {
     // Two triangles written once with absolute and once with relative indices.

@@ -107,6 +107,19 @@ describe('the report schema refuses what DESIGN.md rules out', () => {
     expect(variant((r) => { r.files[0].status = 'up-to-date'; })).toEqual([]);
   });
 
+  it('typesTheLocationsOfFindings', () => {
+    // Reports of earlier versions (counts only) stay valid.
+    expect(variant((r) => { r.files[0].primitives[0].invalidValues = { count: 0 }; r.files[0].primitives[0].badNormals = { count: 0 }; })).toEqual([]);
+    expect(variant((r) => {
+      r.files[0].primitives[0].degenerateUv = { count: 2, triangles: [3, 4], centroids: [[0, 1.5, -2], null], lines: [12, 12] };
+      r.files[0].primitives[0].badNormals = { count: 1, vertices: [7], positions: [[1, 2, 3]], triangleCount: 1, triangles: [3], centroids: [[1, 1, 1]] };
+    })).toEqual([]);
+    expect(variant((r) => { r.files[0].primitives[0].degenerateUv.centroids = [[1, 2]]; })).not.toEqual([]);
+    expect(variant((r) => { r.files[0].primitives[0].degenerateUv.centroids = [['1', 2, 3]]; })).not.toEqual([]);
+    expect(variant((r) => { r.files[0].primitives[0].degenerateUv.lines = [0]; })).not.toEqual([]); // lines start at 1
+    expect(variant((r) => { r.files[0].primitives[0].badNormals = { count: 1, vertices: [-1] }; })).not.toEqual([]);
+  });
+
   it('refusesWrongNamesShapesAndValues', () => {
     expect(variant((r) => { r.schema = 'tanframe-report/2'; })).not.toEqual([]);
     expect(variant((r) => { delete r.summary; })).not.toEqual([]);
