@@ -22,6 +22,9 @@ export interface HtmlPicture {
 /** Triangle indices listed per finding on the page. */
 export const HTML_LISTED_TRIANGLES = 50;
 
+/** Of those, the first ones shown with where they are (centroid, OBJ line). */
+export const HTML_LOCATED_TRIANGLES = 8;
+
 const h = escapeXml;
 
 function n(x: number): string {
@@ -131,19 +134,35 @@ function primitiveRow(p: PrimitiveReport, f: FileReport): string {
   );
 }
 
+/** Where a listed triangle is, as the page shows it: "(at x, y, z; line n)", 4 significant digits. */
+function where(c: number[] | null | undefined, line: number | undefined): string {
+  const parts: string[] = [];
+  if (c) parts.push(`at ${c.map((x) => Number(x.toPrecision(4)).toString()).join(', ')}`);
+  if (line !== undefined) parts.push(`line ${line}`);
+  return parts.length ? ` (${parts.join('; ')})` : '';
+}
+
 function lists(f: FileReport): string {
   const out: string[] = [];
   for (const p of f.primitives) {
     if (p.action === 'skipped') continue;
-    const add = (label: string, x: { count: number; triangles: number[] }) => {
-      if (x.count === 0) return;
-      const shown = x.triangles.slice(0, HTML_LISTED_TRIANGLES).join(', ');
-      const more = x.count > HTML_LISTED_TRIANGLES ? `, \u2026 (${n(x.count)} in all)` : '';
-      out.push(`<div>mesh ${p.mesh} primitive ${p.primitive}, ${h(label)}: triangles ${shown}${more}</div>`);
+    const add = (label: string, x: { count?: number; triangleCount?: number; triangles?: number[]; centroids?: (number[] | null)[]; lines?: number[] } | undefined, count: number) => {
+      if (!x || !x.triangles || count === 0) return;
+      // The first few with where they are (object-space centroid, OBJ line), then numbers only.
+      const shown = x.triangles.slice(0, HTML_LISTED_TRIANGLES).map((t, k) => {
+        return k >= HTML_LOCATED_TRIANGLES ? String(t) : `${t}${where(x.centroids?.[k], x.lines?.[k])}`;
+      }).join(', ');
+      const more = count > HTML_LISTED_TRIANGLES ? `, \u2026 (${n(count)} in all)` : '';
+      out.push(`<div>mesh ${p.mesh} primitive ${p.primitive}, ${h(label)}: triangles ${h(shown)}${more}</div>`);
     };
-    add('degenerate UV', p.degenerateUv);
-    add('degenerate geometry', p.degenerateGeometry);
-    add('UV overlap', p.uvOverlap);
+    add('degenerate UV', p.degenerateUv, p.degenerateUv.count);
+    add('degenerate geometry', p.degenerateGeometry, p.degenerateGeometry.count);
+    add('UV overlap', p.uvOverlap, p.uvOverlap.count);
+    add('invalid values (triangles using those vertices)', p.invalidValues, p.invalidValues.triangleCount ?? 0);
+    add('bad normals (triangles using those vertices)', p.badNormals, p.badNormals.triangleCount ?? 0);
+    const st = p.storedTangents;
+    if (st?.mismatchedTriangles) add('stored tangents off', st.mismatchedTriangles, st.mismatchedTriangles.count);
+    if (st?.invalidVertices) add('invalid stored tangents (triangles using those vertices)', st.invalidVertices, st.invalidVertices.triangleCount ?? 0);
   }
   return out.length ? `<div class="lists">${out.join('')}</div>` : '';
 }
@@ -299,7 +318,7 @@ ${overview.join('\n')}
 </tbody></table></div>
 ${sections.join('\n')}
 <p class="note" style="margin-top:28px">${h(NOTES_ADVICE)}</p>
-<p class="note">Triangle numbers are positions in each primitive's triangle list (strips and fans expanded). UV pictures show u to the right and v downward, as in the texture image.</p>
+<p class="note">Triangle numbers are positions in each primitive's triangle list (strips and fans expanded); "at x, y, z" is a triangle's centroid in object space (before node transforms). UV pictures show u to the right and v downward, as in the texture image.</p>
 </main>
 </body>
 </html>

@@ -61,6 +61,17 @@ describe('html report (text)', () => {
     expect(new Set(ids).size).toBe(ids.length);
     expect(html).toContain('Could not be processed: ');
   });
+
+  it('saysWhereTheListedTrianglesAre', () => {
+    const html = fs.readFileSync(page, 'utf8');
+    // The collapsed 6 x 6 grid (test/helpers/gridAsset.ts sketch): triangle 4 is the even
+    // triangle of quad (2, 0), centroid (2 + 2/3, 1/3, 0); triangle 30 of quad (3, 2), (3 + 2/3, 2 + 1/3, 0).
+    expect(html).toContain('degenerate UV: triangles 4 (at 2.667, 0.3333, 0), 30 (at 3.667, 2.333, 0)</div>');
+    // The demo's dock plank is OBJ: its first face statement is on line 76 of dock_plank.obj.
+    const obj = fs.readFileSync(path.join(demo, 'dock', 'dock_plank.obj'), 'utf8').split('\n');
+    const firstFace = obj.findIndex((l) => l.startsWith('f ')) + 1;
+    expect(html).toContain(`UV overlap: triangles 0 (at -0.8333, 0.03, 0.05; line ${firstFace}), 1 (at -0.9167, 0.03, -0.05; line ${firstFace})`);
+  });
 });
 
 describe.skipIf(!hasChromium)('html report in a browser', () => {
