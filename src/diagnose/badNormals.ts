@@ -33,10 +33,10 @@ export interface BadNormals {
  * in src/mesh/tolerances.ts; default: float's UNIT_LENGTH_TOLERANCE). `positionHalfStep` is
  * the rounding of the positions' encoding (componentHalfStep; 0 for float): a triangle whose
  * face normal is within what that rounding can make of it takes no part in the flipped vote.
- * With `marks` (one entry per vertex), sets marks[v] = 1 for each bad vertex (others untouched).
- * Returns the counts, in vertices.
+ * Returns the counts, in vertices. When `marks` is given (length >= vertexCount), marks[v] is
+ * set to 1 for each bad vertex and 0 otherwise (pictures colour the triangles that use them).
  * Preconditions: indices hold 3 * triangleCount entries, each < vertexCount; positions and
- * normals hold 3 floats per vertex; marks (if given) holds vertexCount entries.
+ * normals hold 3 floats per vertex.
  */
 export function findBadNormals(
   indices: Uint32Array,
@@ -48,10 +48,10 @@ export function findBadNormals(
   positionHalfStep = 0,
   marks: Uint8Array | null = null,
 ): BadNormals {
+  assert(!marks || marks.length >= vertexCount, 'marks must hold one entry per vertex');
   assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
   assert(positions.length >= vertexCount * 3, 'positions must hold 3 floats per vertex');
   assert(normals.length >= vertexCount * 3, 'normals must hold 3 floats per vertex');
-  assert(!marks || marks.length >= vertexCount, 'marks must hold one entry per vertex');
   // Per vertex: corners with a usable face normal, and those among them facing away.
   const votes = new Uint32Array(vertexCount);
   const away = new Uint32Array(vertexCount);
@@ -82,6 +82,7 @@ export function findBadNormals(
   for (let v = 0; v < vertexCount; v++) {
     const nx = normals[v * 3], ny = normals[v * 3 + 1], nz = normals[v * 3 + 2];
     const len = Math.sqrt(nx * nx + ny * ny + nz * nz);
+    if (marks) marks[v] = 0;
     if (len <= ZERO_LENGTH) {
       zero++;
       count++;

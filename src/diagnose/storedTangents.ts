@@ -124,13 +124,11 @@ export function isStoredTangentSetValid(
  * p95 is the nearest-rank 95th percentile of the sorted corner angles (float64). `mismatched`
  * counts the compared corners with angle > toleranceDeg or a sign mismatch. With nothing
  * compared the three angles are 0.
- * With `marks`, sets marks.corners[c] = 1 for each mismatched corner and marks.invalid[v] = 1
- * for each input vertex with an invalid stored tangent (others untouched), so the caller can
- * list where they are.
+ * When `cornerMarks` is given (length >= computedIndices.length), cornerMarks[c] is set to 1 for
+ * each mismatched corner and 0 otherwise.
  * Preconditions: stored holds 4 floats and normals (if given) 3 floats per input vertex;
  * computed holds 4 floats per output vertex; computedIndices < sourceVertex.length;
- * sourceVertex entries < vertexCount; undefinedCorners (if given) holds one entry per corner;
- * marks (if given) hold one entry per corner and per input vertex.
+ * sourceVertex entries < vertexCount; undefinedCorners (if given) holds one entry per corner.
  */
 export function compareStoredTangents(
   stored: Float32Array,
@@ -142,22 +140,20 @@ export function compareStoredTangents(
   vertexCount: number,
   toleranceDeg: number = DEFAULT_TANGENT_MISMATCH_DEG,
   tol: TangentValidityTolerances = FLOAT_TANGENT_VALIDITY,
-  marks: { corners: Uint8Array; invalid: Uint8Array } | null = null,
+  cornerMarks: Uint8Array | null = null,
 ): StoredTangentComparison {
+  assert(!cornerMarks || cornerMarks.length >= computedIndices.length, 'cornerMarks must hold one entry per corner');
+  if (cornerMarks) cornerMarks.fill(0, 0, computedIndices.length);
   assert(computed.length >= sourceVertex.length * 4, 'computed tangents must hold 4 floats per output vertex');
   assert(stored.length >= vertexCount * 4, 'stored tangents must hold 4 floats per vertex');
   assert(!normals || normals.length >= vertexCount * 3, 'normals must hold 3 floats per vertex');
   const cornerCount = computedIndices.length;
   assert(!undefinedCorners || undefinedCorners.length >= cornerCount, 'undefinedCorners must hold one entry per corner');
-  assert(!marks || (marks.corners.length >= cornerCount && marks.invalid.length >= vertexCount), 'marks must hold one entry per corner and per vertex');
   const valid = new Uint8Array(vertexCount);
   let invalid = 0;
   for (let v = 0; v < vertexCount; v++) {
     if (isStoredTangentValid(stored, normals, v, tol)) valid[v] = 1;
-    else {
-      invalid++;
-      if (marks) marks.invalid[v] = 1;
-    }
+    else invalid++;
   }
   const angles = new Float64Array(cornerCount);
   let compared = 0, undefinedFrames = 0, signMismatch = 0, mismatched = 0, sum = 0, max = 0;
@@ -180,7 +176,7 @@ export function compareStoredTangents(
     if (signDiffers) signMismatch++;
     if (signDiffers || angle > toleranceDeg) {
       mismatched++;
-      if (marks) marks.corners[c] = 1;
+      if (cornerMarks) cornerMarks[c] = 1;
     }
   }
   let p95 = 0;

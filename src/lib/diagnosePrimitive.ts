@@ -8,6 +8,7 @@ import {
   findDegenerateUvTriangles,
   findUvOverlaps,
   isStoredTangentSetValid,
+  isStoredTangentValid,
   locateTriangles,
   markInvalidVertices,
   vertexFindingFromMarks,
@@ -96,15 +97,17 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
   report.stackedShells = findingFromMarks(stacked, triangleCount);
   let valid = false;
   if (storedTangents) {
-    const tangentMarks = { corners: new Uint8Array(input.computedIndices.length), invalid: new Uint8Array(vertexCount) };
+    const corners = new Uint8Array(input.computedIndices.length);
     const c = compareStoredTangents(
       storedTangents, input.computedTangents, input.sourceVertex, input.computedIndices, input.computedUndefined, normals,
-      vertexCount, input.toleranceDeg, validity, tangentMarks,
+      vertexCount, input.toleranceDeg, validity, corners,
     );
     // Corner c of the solve's triangle list belongs to triangle floor(c / 3), the same triangle
     // of the input list (the solve keeps the triangle order).
     const mismatchedTriangles = new Uint8Array(triangleCount);
-    for (let k = 0; k < tangentMarks.corners.length; k++) if (tangentMarks.corners[k]) mismatchedTriangles[(k / 3) | 0] = 1;
+    for (let k = 0; k < corners.length; k++) if (corners[k]) mismatchedTriangles[(k / 3) | 0] = 1;
+    const invalidTangent = new Uint8Array(vertexCount);
+    for (let v = 0; v < vertexCount; v++) if (!isStoredTangentValid(storedTangents, normals, v, validity)) invalidTangent[v] = 1;
     report.storedTangents = {
       invalid: c.invalid,
       undefinedFrames: c.undefinedFrames,
@@ -115,7 +118,7 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
       compared: c.compared,
       mismatched: c.mismatched,
       mismatchedTriangles: located(findingFromMarks(mismatchedTriangles, triangleCount)),
-      invalidVertices: vertexFinding(tangentMarks.invalid),
+      invalidVertices: vertexFinding(invalidTangent),
     };
     valid = isStoredTangentSetValid(storedTangents, normals, vertexCount, validity);
   }

@@ -175,6 +175,18 @@ describe('audit says where each finding is', () => {
     expect(p.badNormals.lines).toEqual([]);
   });
 
+  it('listsTheVerticesWhoseStoredTangentIsInvalid', async () => {
+    // The exact grid frames, but corner 2 of triangle 9 (vertex 29) stores w = 0.5 (glTF 2.0,
+    // 3.7.2.1: w must be +1 or -1). Quad 4 = (4, 0), odd triangle: corner 2 at (4, 1).
+    const g = gridAsset(N, true);
+    g.tangents![29 * 4 + 3] = 0.5;
+    const file = await writeGridGlb(path.join(tmp, 'invalid-tangent'), 'invalid-tangent', g);
+    const s = (await audit([file])).report.files[0].primitives[0].storedTangents;
+    expect(s.invalid).toBe(1);
+    expect(s.invalidVertices).toMatchObject({ count: 1, vertices: [29], positions: [[4, 1, 0]], triangleCount: 1, triangles: [9] });
+    expectCentroids(s.invalidVertices.centroids, [9]);
+  });
+
   it('numbersVerticesAsTheAccessorsDoWhenAPrimitiveUsesPartOfABuffer', async () => {
     // Eight vertices in the accessors; the primitive indexes only 4..7 (a quad at z = 0 facing
     // +z), and vertex 6's normal points to -z: away from both its faces (bad normal).
