@@ -36,9 +36,26 @@ function gateMessage(gate: string, f: FileReport): string {
 }
 
 /**
+ * The source line of the first listed triangle behind `gate` in `f` (the `lines` of OBJ
+ * findings), or null: glTF input, no line known, or a gate with no triangles to point at.
+ */
+function gateLine(gate: string, f: FileReport): number | null {
+  for (const p of f.primitives) {
+    const st = p.storedTangents;
+    const found = gate === 'degenerate-uv' ? p.degenerateUv : gate === 'degenerate-geometry' ? p.degenerateGeometry
+      : gate === 'uv-overlap' ? p.uvOverlap : gate === 'invalid-values' ? p.invalidValues : gate === 'bad-normals' ? p.badNormals
+        : gate === 'tangent-mismatch' ? (st?.mismatchedTriangles?.lines?.length ? st.mismatchedTriangles : st?.invalidVertices) : undefined;
+    const line = found?.lines?.[0];
+    if (line !== undefined) return line;
+  }
+  return null;
+}
+
+/**
  * The GitHub Actions annotations of `report`, one line each (ending with a newline), in report
  * order: for each file that failed, `tanframe: cannot process` with the error's code and
- * message; for each gate a file tripped, `tanframe: <gate>` with the primitives that trip it.
+ * message; for each gate a file tripped, `tanframe: <gate>` with the primitives that trip it,
+ * and for OBJ input `line=` the source line of the first listed triangle's face.
  * Empty when nothing failed and no gate tripped.
  */
 export function renderGithubAnnotations(report: Report): string {
@@ -50,7 +67,11 @@ export function renderGithubAnnotations(report: Report): string {
       continue;
     }
     for (const g of f.gates) {
-      out.push(errorCommand([['file', cleanText(f.input)], ['title', `tanframe: ${cleanText(g)}`]], `gate ${cleanText(g)} tripped\n${gateMessage(g, f)}`));
+      const line = gateLine(g, f);
+      const props: [string, string][] = [['file', cleanText(f.input)]];
+      if (line !== null) props.push(['line', String(line)]);
+      props.push(['title', `tanframe: ${cleanText(g)}`]);
+      out.push(errorCommand(props, `gate ${cleanText(g)} tripped\n${gateMessage(g, f)}`));
     }
   }
   return out.length ? out.join('\n') + '\n' : '';

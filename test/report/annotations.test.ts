@@ -13,6 +13,22 @@ import { errorCommand, escapeCommandData, escapeCommandProperty, renderGithubAnn
 import { buildReport } from '../../src/report/json.js';
 import type { FileReport, PrimitiveReport } from '../../src/report/types.js';
 
+describe('source lines', () => {
+  it('pointsAnObjGateAtTheLineOfItsFirstListedFace', async () => {
+    // Source: GitHub's workflow-command documentation (from memory): `line` is a property of
+    // ::error beside `file`. A good triangle on line 7, one with three equal vt on line 8.
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'tanframe-annotate-obj-'));
+    try {
+      fs.writeFileSync(path.join(dir, 'sliver.obj'), 'v 0 0 0\nv 1 0 0\nv 1 1 0\nvt 0 0\nvt 1 0\nvt 1 1\nf 1/1 2/2 3/3\nf 1/1 2/1 3/1\n');
+      const r = await runCli(['audit', 'sliver.obj', '--fail-on', 'degenerate-uv', '--annotate', 'github', '--quiet'], dir);
+      expect(r.code).toBe(1);
+      expect(r.stdout).toMatch(/^::error file=sliver\.obj,line=8,title=tanframe%3A degenerate-uv::/m);
+    } finally {
+      fs.rmSync(dir, { recursive: true, force: true });
+    }
+  });
+});
+
 describe('escaping', () => {
   it('escapesPercentAndLineBreaksInMessagesAndAlsoColonAndCommaInProperties', () => {
     // Source: GitHub's workflow-command documentation and the Actions toolkit's escaping
