@@ -15,6 +15,7 @@ import { containerOf, outputRelativeName, outputTarget } from '../lib/outputName
 import { planRun, type PlannedMesh } from '../lib/writePlan.js';
 import { namedExplicitly, perFile, resolveSettings } from './config.js';
 import { addSharedOptions, checkOutputOptions, emitReport, exitStatus, shardOf, toolVersion, type CliIo } from './shared.js';
+import { cacheFolder } from '../lib/stampCache.js';
 import { RunState, STATE_FILE_NAME } from '../lib/runState.js';
 import { runBatch } from './batch.js';
 import { namedWrites, writeReportFiles } from './outputs.js';
@@ -128,6 +129,7 @@ export async function runBake(inputs: string[], given: Record<string, any>, io: 
   if (stateFolder) run.plan.write(path.join(stateFolder, STATE_FILE_NAME), `the state file ${run.plan.shown(path.join(stateFolder, STATE_FILE_NAME))}`);
   const state = stateFolder ? await RunState.open(stateFolder, {
     version: toolVersion(), options, force: !!o.force, inputs: files.map((f) => f.path), warn: (m) => io.stderr(`tanframe: warning: ${m}\n`),
+    cacheFolder: cacheFolder(io.env), mayWriteCache: (f) => run.plan.readers(run.plan.key(f)).size === 0,
   }) : null;
   const pending = state ? await state.pending(jobs, reports) : jobs;
   const batch = await runBatch(pending, options, o, io, run.plan, state ? (i, outcome) => state.take(pending[i], outcome.report, outcome.record) : undefined);
