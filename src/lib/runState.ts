@@ -194,8 +194,8 @@ export interface StateSettings {
   inputs: string[];
   /** Prints one warning line. */
   warn: (message: string) => void;
-  /** The machine-local stamp cache folder (stampCache.ts), or null for none. */
-  cacheFolder?: string | null;
+  /** The machine-local stamps of this state file (stampCache.ts), shared with the write plan; none by default. */
+  stamps?: StampCache;
   /** False for a stamp file the run must not write (it reads it). */
   mayWriteCache?: (file: string) => boolean;
 }
@@ -238,7 +238,7 @@ export class RunState {
     } else if (loaded) {
       records = loaded.records;
     }
-    const stamps = await StampCache.open(settings.cacheFolder ?? null, real, !settings.force, settings.mayWriteCache);
+    const stamps = settings.stamps ?? (await StampCache.open(null, real));
     const state = new RunState(file, records, settings, stamps);
     state.changed = loaded !== null && 'problem' in loaded;
     return state;
@@ -337,7 +337,7 @@ export class RunState {
    * state that cannot be written, or must not be (see `take`), is a warning.
    */
   async save(): Promise<void> {
-    await this.stamps.save();
+    await this.stamps.save(this.settings.mayWriteCache);
     if (!this.changed) return;
     if (this.blocked) {
       this.settings.warn(`not writing ${this.file}: ${this.blocked}`);
@@ -354,7 +354,8 @@ export class RunState {
   }
 }
 
-async function realOrSelf(p: string): Promise<string> {
+/** The real path of `p`, through its folder when it does not exist yet, else `p` resolved. */
+export async function realOrSelf(p: string): Promise<string> {
   const abs = path.resolve(p);
   try {
     return await fsp.realpath(abs);

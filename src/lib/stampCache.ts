@@ -124,17 +124,15 @@ export class StampCache {
 
   /**
    * Opens the stamps of the state file `stateFile` (absolute) in `folder`; an empty cache when
-   * `folder` is null, `mayWrite` refuses its file (the run reads it), `read` is false (--force:
-   * stamps are made, none is used) or the file is unusable.
+   * `folder` is null, `read` is false (--force: stamps are made, none is used) or the file is
+   * unusable. Nothing is written when `folder` is null.
    */
-  static async open(folder: string | null, stateFile: string, read = true, mayWrite: (file: string) => boolean = () => true): Promise<StampCache> {
+  static async open(folder: string | null, stateFile: string, read = true): Promise<StampCache> {
     const tag = createHash('sha256').update(stateFile).digest('hex').slice(0, 16);
     const file = folder ? path.join(folder, `stamps-${tag}.json`) : null;
-    // A stamp file the run reads (an input, or a file an input references) is never used.
-    if (!file || !mayWrite(file)) return new StampCache(null, stateFile, new Map());
     const known = new Map<string, Stamp>();
     try {
-      if (!read) throw new Error('not read');
+      if (!file || !read) throw new Error('not read');
       const json = JSON.parse(await fsp.readFile(file, 'utf8'));
       if (json?.schema === STAMP_SCHEMA && json.stateFile === stateFile && json.stamps && typeof json.stamps === 'object') {
         for (const [p, s] of Object.entries(json.stamps)) if (path.isAbsolute(p) && isStamp(s)) known.set(p, s);
@@ -143,6 +141,11 @@ export class StampCache {
       // absent or unreadable: no stamps
     }
     return new StampCache(file, stateFile, known);
+  }
+
+  /** The stamp file's path (null when there is none). */
+  get path(): string | null {
+    return this.file;
   }
 
   /** SHA-256 of the file now: from its stamp when trusted and matching, else by hashing (and stamping) its bytes. */
@@ -173,9 +176,13 @@ export class StampCache {
     if (!this.used.has(abs)) this.used.set(abs, s);
   }
 
-  /** Writes the stamps this run used or made (sorted, atomically); never throws, writes nothing when nothing changed. */
-  async save(): Promise<void> {
-    if (!this.file) return;
+  /**
+   * Writes the stamps this run used or made (sorted, atomically); never throws, writes nothing
+   * when nothing changed or when `mayWrite` refuses the file (the run reads it: an input, or a
+   * file an input references).
+   */
+  async save(mayWrite: (file: string) => boolean = () => true): Promise<void> {
+    if (!this.file || !mayWrite(this.file)) return;
     if (!this.changed && this.used.size === this.known.size) return;
     const stamps: Record<string, Stamp> = {};
     for (const k of [...this.used.keys()].sort()) stamps[k] = this.used.get(k)!;

@@ -255,6 +255,8 @@ export interface RunRequest {
   files: { option: string; path: string }[];
   /** Folders the user named: --uv-maps (later --views), with the names the run may write in them. */
   folders: { option: string; path: string; mayWrite: (name: string) => boolean }[];
+  /** SHA-256 (hex) of a file, null when it cannot be read; default: hash its bytes (a rerun passes its stamp cache). */
+  hash?: (file: string) => Promise<string | null>;
 }
 
 /** The settled plan: the plan itself (for late checks), each mesh's writes (or why it is refused), where each named file goes. */
@@ -267,11 +269,6 @@ export interface RunPlan {
 
 /** Hex digits of a content hash in file names: 64 bits, deterministic, short (the same as buffer names). Our choice. */
 export const NAME_HASH_DIGITS = BUFFER_HASH_DIGITS;
-
-/** First NAME_HASH_DIGITS hex digits of the SHA-256 of `bytes`. */
-export function contentTag(bytes: Uint8Array): string {
-  return createHash('sha256').update(bytes).digest('hex').slice(0, NAME_HASH_DIGITS);
-}
 
 /** `uri` with `.<tag>` before its extension, in its last segment. */
 function taggedUri(uri: string, tag: string): string {
@@ -298,9 +295,9 @@ function head(file: string): Uint8Array | null {
   }
 }
 
-async function hashOf(file: string): Promise<string | null> {
+async function hashBytes(file: string): Promise<string | null> {
   try {
-    return contentTag(await readRegularFile(file));
+    return createHash('sha256').update(await readRegularFile(file)).digest('hex');
   } catch {
     return null;
   }
@@ -344,6 +341,8 @@ async function assetsIn(dir: string, plan: WritePlan, cache: Map<string, Map<str
  */
 export async function planRun(req: RunRequest): Promise<RunPlan> {
   const plan = new WritePlan(req.cwd);
+  const hash = req.hash ?? hashBytes;
+  const hashOf = async (file: string) => (await hash(file))?.slice(0, NAME_HASH_DIGITS) ?? null;
   const refs = new Map<string, AssetReferences | null>();
   for (const input of req.inputs) plan.read(input, input);
   for (const input of req.inputs) {
@@ -474,7 +473,8 @@ export async function planRun(req: RunRequest): Promise<RunPlan> {
   // place, unless an input reads them or another asset in the folder names them.
   for (let i = 0; i < req.meshes.length; i++) {
     const job = jobs[i];
-    if ('refused' in job || req.meshes[i].inPlace) continue;
+    // A GLB output names images by URI only when its input does (then it has images here).
+    if ('refused' in job || req.meshes[i].inPlace || (req.meshes[i].format === 'glb' && !finalTargets.has(i))) continue;
     const outDir = path.dirname(job.output);
     const assets = await assetsIn(outDir, plan, folderCache);
     const outKey = plan.key(job.output);
