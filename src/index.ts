@@ -31,8 +31,8 @@ export { renderSummary, type SummaryStyle } from './report/summary.js';
 export { renderJunit } from './report/junit.js';
 export { renderHtml, type HtmlPicture } from './report/html.js';
 export { renderUvMapSvg, pictureFileName, type UvMapSvgOptions } from './report/uvMapSvg.js';
-export type { UvPicture } from './report/uvPicture.js';
-export type { Report, FileReport, GateFigure, PrimitiveReport, ReportSummary, StoredTangentReport, TriangleFinding } from './report/types.js';
+export type { PictureBackground, UvPicture } from './report/uvPicture.js';
+export type { Report, FileReport, GateFigure, PrimitiveReport, ReportSummary, StoredTangentReport, TriangleFinding, VertexFindingReport } from './report/types.js';
 export { decodePng, encodePng, detectImageKind, type PngImage, type ImageKind } from './imaging/png.js';
 export { rasterizeTriangle, createSpanBuffer, countCoverage, type SpanBuffer, type CoverageStats } from './imaging/rasterize.js';
 export {
