@@ -23,7 +23,7 @@ const DEGENERATE_INK = '#c0283e';
 const UNIT_SQUARE = '#5d6b7a';
 
 /** Opacity of the normal map behind the layout, and of the triangle fills over it (ours). */
-const MAP_OPACITY = 0.55;
+const MAP_OPACITY = 0.4;
 const FILL_OVER_MAP = 0.45;
 
 /** Base64 of bytes (RFC 4648, section 4), through the global btoa of browsers and Node.js. */
