@@ -533,6 +533,28 @@ describe('--compression draco, meshopt and none on any input', () => {
   });
 });
 
+describe('the report and the summary', () => {
+  it('the summary shows a file\'s size change when it exceeds 10%, and only then; the report gives bytesIn and bytesOut', async () => {
+    const d = dir();
+    const input = path.join(repoRoot, 'examples/harbor-props/barrel/barrel.glb');
+    const r = await runCli(['bake', input, '-o', path.join(d, 'draco.glb'), '--no-config', '--compression', 'draco', '--report', path.join(d, 'r.json')], d);
+    expect(r.code).toBe(0);
+    const file = JSON.parse(readFileSync(path.join(d, 'r.json'), 'utf8')).files[0];
+    expect(file.bytesIn).toBe(readFileSync(input).byteLength);
+    expect(file.bytesOut).toBe(readFileSync(path.join(d, 'draco.glb')).byteLength);
+    const percent = Math.round((file.bytesOut / file.bytesIn - 1) * 100);
+    expect(percent).toBeLessThan(-10);
+    expect(r.stdout).toContain(`size ${(file.bytesIn / 1024).toFixed(0)} KB -> ${(file.bytesOut / 1024).toFixed(1)} KB (${percent}%)`);
+    // Within 10%: not shown (an octahedral meshopt barrel, its tangents in one byte per component).
+    const { json, bin } = await meshoptCompressGlb(new Uint8Array(readFileSync(input)), { octahedralNormals: true });
+    const small = await writeGlb(d, 'oct', json, bin);
+    const s = await runCli(['bake', small, '-o', path.join(d, 'oct.out.glb'), '--no-config', '--report', path.join(d, 's.json')], d);
+    const sf = JSON.parse(readFileSync(path.join(d, 's.json'), 'utf8')).files[0];
+    expect(Math.abs(sf.bytesOut / sf.bytesIn - 1)).toBeLessThanOrEqual(0.1);
+    expect(s.stdout).not.toContain('size ');
+  });
+});
+
 describe('determinism', () => {
   it('compressed outputs are byte-identical across runs and --jobs 1 / 2', async () => {
     const d = dir();
