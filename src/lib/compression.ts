@@ -181,15 +181,14 @@ export async function planCompression(asset: Asset, replacements: Map<number, Pr
     const input = compressionIn(asset, i);
     const r = replacements.get(i);
     let out: CompressionKind;
-    if (asset.container === 'obj') out = r && quantizedAttributes(r.attributes) ? 'quantized' : 'none';
-    else if (r) {
+    if (r) {
       const target = mode === 'keep' ? (input === 'draco' || input === 'meshopt' ? input : null) : mode === 'none' ? null : mode;
       out = target ?? (quantizedAttributes(r.attributes) ? 'quantized' : 'none');
     } else if (mode === 'none' && (input === 'draco' || input === 'meshopt')) {
       out = quantizedAttributes(asset.primitives[i].attributes) ? 'quantized' : 'none';
     } else out = input;
     primitives.push({ in: input, out });
-    if (!r || asset.container === 'obj') continue;
+    if (!r) continue;
     if (out === 'draco') wantDraco.push(i);
     if (out === 'meshopt') write.meshopt.set(i, meshoptSettings(asset, i));
   }

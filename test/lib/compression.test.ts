@@ -522,6 +522,48 @@ describe('--compression draco, meshopt and none on any input', () => {
     figures.push(`barrel --compression draco: ${draco.bytesIn} -> ${draco.bytesOut}; --compression meshopt: ${meshopt.bytesIn} -> ${meshopt.bytesOut}`);
   });
 
+  it('an OBJ demo prop comes out Draco-compressed with --compression draco; validator clean', async () => {
+    const d = dir();
+    const file = await bake(path.join(repoRoot, 'examples/harbor-props/dock/dock_plank.obj'), path.join(d, 'plank.glb'), ['--compression', 'draco']);
+    expect(file.primitives.filter((p: any) => p.action === 'baked').map((p: any) => p.compression)).toEqual(file.primitives.filter((p: any) => p.action === 'baked').map(() => ({ in: 'none', out: 'draco' })));
+    await expectValid(path.join(d, 'plank.glb'));
+    const out = await readGltf(path.join(d, 'plank.glb'));
+    expect(out.json.extensionsRequired).toEqual([DRACO]);
+    for (const p of out.primitives) expect(p.attributes.TANGENT).toBeDefined();
+  });
+
+  // A unit quad with one morph target lifting vertex 2 (the top right corner) by 0.5 in z,
+  // its NORMAL deltas tilting the normals there:
+  //   3 ---- 2 (+0.5 z)
+  //   |    / |
+  //   0 ---- 1
+  it('a morph-target primitive goes into Draco with the sequential method, so its target accessors follow the stream\'s vertex order', async () => {
+    const d = dir();
+    const q = unitQuad();
+    q.targets = [{
+      POSITION: { array: new Float32Array([0, 0, 0, 0, 0, 0, 0, 0, 0.5, 0, 0, 0]), type: 'VEC3' },
+      NORMAL: { array: new Float32Array([0, 0, 0, 0, 0, 0, -0.3, -0.3, -0.1, 0, 0, 0]), type: 'VEC3' },
+    }];
+    const { json, bin } = buildGltf([q]);
+    json.meshes[0].weights = [0];
+    const input = await writeGlb(d, 'morph', json, bin);
+    await bake(input, path.join(d, 'none.glb'), ['--compression', 'none']);
+    const file = await bake(input, path.join(d, 'draco.glb'), ['--compression', 'draco']);
+    expect(file.primitives[0].compression).toEqual({ in: 'none', out: 'draco' });
+    await expectValid(path.join(d, 'draco.glb'));
+    const out = await readGltf(path.join(d, 'draco.glb'));
+    const plain = await readGltf(path.join(d, 'none.glb'));
+    const jp = out.json.meshes[0].primitives[0];
+    expect((await readDracoSettings(dracoStreamOf(out, jp), jp.extensions[DRACO].attributes, 'out')).method).toBe(0);
+    const o = out.primitives[0], p = plain.primitives[0];
+    expect(o.indices).toEqual(p.indices);
+    const op = floats(o, 'POSITION'), pp = floats(p, 'POSITION');
+    const step = uniformHalfStep(extent(pp, 3), DRACO_DEFAULT_BITS.POSITION) + F32;
+    for (let k = 0; k < pp.length; k++) expect(Math.abs(op[k] - pp[k])).toBeLessThanOrEqual(step);
+    // The target's deltas are plain accessors, value for value the plain bake's, on the same vertices.
+    for (const sem of Object.keys(p.targets[0])) expect(o.targets[0][sem].array, sem).toEqual(p.targets[0][sem].array);
+  });
+
   it.skipIf(!present)('--compression none writes a Draco sample decoded and plain, and says so', async () => {
     const d = dir();
     const file = await bake(path.join(samples, 'Duck/glTF-Draco/Duck.gltf'), path.join(d, 'none.gltf'), ['--compression', 'none']);
