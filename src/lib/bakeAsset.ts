@@ -227,7 +227,7 @@ export function solvePrimitive(
   }
   if (report.normalsGenerated) attributes.NORMAL = floatAttribute(gatherFloats(normals, 3, frames.sourceVertex), 3);
   const normalOut = report.normalsGenerated ? undefined : normalAttr;
-  const tangent = encodeTangents(frames.tangents, tangentTypeFor(normalOut, options.tangentType, options.tangentTypeFromInput, options.compression ?? 'keep'));
+  const tangent = encodeTangents(frames.tangents, tangentTypeFor(normalOut, options.tangentType, options.tangentTypeFromInput !== false, options.compression ?? 'keep'));
   attributes.TANGENT = tangent;
   // Morph targets: split like the base; TANGENT deltas from the morphed shapes where the target
   // moves normals; a target without NORMAL deltas gets none (a TANGENT delta it had described

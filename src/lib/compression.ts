@@ -89,7 +89,7 @@ export function compressionIn(asset: Asset, i: number): CompressionKind {
 }
 
 /** The meshopt settings for a baked primitive: the input's extension name and OCTAHEDRAL filters (by semantic). */
-function meshoptSettings(asset: Asset, i: number): MeshoptPrimitive {
+function meshoptSettings(asset: Asset, i: number, tangentFollowsInput: boolean): MeshoptPrimitive {
   const prim = jsonPrimitive(asset, i);
   const views = meshoptViewsByIndex(asset);
   let name = 'EXT_meshopt_compression';
@@ -102,8 +102,9 @@ function meshoptSettings(asset: Asset, i: number): MeshoptPrimitive {
     const v = views.get(asset.json.accessors?.[prim?.attributes?.[sem]]?.bufferView);
     if (v && v.filter === 'OCTAHEDRAL' && (v.byteStride === 4 || v.byteStride === 8)) octahedral[sem] = v.byteStride;
   }
-  // A new TANGENT takes the encoding of the input's NORMAL.
-  if (octahedral.NORMAL && !octahedral.TANGENT) octahedral.TANGENT = octahedral.NORMAL;
+  // A new TANGENT takes the encoding of the input's NORMAL, unless --tangent-type named one.
+  if (!tangentFollowsInput) delete octahedral.TANGENT;
+  else if (octahedral.NORMAL && !octahedral.TANGENT) octahedral.TANGENT = octahedral.NORMAL;
   return { name, octahedral };
 }
 
@@ -171,9 +172,11 @@ export interface CompressionPlan {
  * Plans the output's compression for `mode`: a baked primitive (one with a replacement) goes
  * out as it came in with 'keep' (Draco as Draco, meshopt as meshopt), Draco or meshopt with
  * 'draco' / 'meshopt', decoded with 'none'; a primitive that is not baked keeps its stored
- * bytes except with 'none'. Loads the encoders only when needed; deterministic.
+ * bytes except with 'none'. With `tangentFollowsInput` (no `--tangent-type`) and 'keep', a new
+ * TANGENT goes through the OCTAHEDRAL filter where the input's NORMAL did. Loads the encoders
+ * only when needed; deterministic.
  */
-export async function planCompression(asset: Asset, replacements: Map<number, PrimitiveReplacement>, mode: CompressionMode): Promise<CompressionPlan> {
+export async function planCompression(asset: Asset, replacements: Map<number, PrimitiveReplacement>, mode: CompressionMode, tangentFollowsInput = true): Promise<CompressionPlan> {
   const write: WriteCompression = { keepCompressed: mode !== 'none', draco: new Map(), meshopt: new Map() };
   const primitives: PrimitiveCompression[] = [];
   const wantDraco: number[] = [];
@@ -190,7 +193,7 @@ export async function planCompression(asset: Asset, replacements: Map<number, Pr
     primitives.push({ in: input, out });
     if (!r) continue;
     if (out === 'draco') wantDraco.push(i);
-    if (out === 'meshopt') write.meshopt.set(i, meshoptSettings(asset, i));
+    if (out === 'meshopt') write.meshopt.set(i, meshoptSettings(asset, i, tangentFollowsInput && mode === 'keep'));
   }
   if (write.meshopt.size > 0) write.meshoptEncoders = await loadMeshoptEncoder();
   if (wantDraco.length > 0) {

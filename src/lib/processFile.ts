@@ -219,7 +219,7 @@ export async function processFileOutcome(job: FileJob, batchOptions: ProcessOpti
       const renamed = Object.keys(w?.imageUris ?? {}).length > 0;
       const unchanged = await unchangedOutputs(asset, job.input, out, format, solved.replacements.size > 0 || renamed, w?.files);
       const mode = options.compression ?? 'keep';
-      const plan = await planCompression(asset, unchanged ? new Map() : solved.replacements, unchanged ? 'keep' : mode);
+      const plan = await planCompression(asset, unchanged ? new Map() : solved.replacements, unchanged ? 'keep' : mode, options.tangentTypeFromInput !== false);
       plan.primitives.forEach((c, i) => { if (report.primitives[i]) report.primitives[i].compression = c; });
       if (unchanged) report.notes = [unchanged.length === 0 ? 'nothing to bake: left as it was' : 'nothing to bake: written as the input\'s bytes'];
       else report.notes.push(...compressionNotes(asset, plan.primitives, mode));

@@ -312,6 +312,34 @@ describe.skipIf(!present)('shared samples, glTF-Quantized variants, --compressio
   }
 });
 
+describe('--tangent-type says otherwise', () => {
+  it.skipIf(!present)('a quantized sample keeps --tangent-type float and snorm16 when they are given', async () => {
+    const d = dir();
+    const input = path.join(samples, 'Avocado/glTF-Quantized/Avocado.gltf');
+    for (const [type, componentType] of [['float', 5126], ['snorm16', 5122]] as const) {
+      await bake(input, path.join(d, `${type}.gltf`), ['--tangent-type', type]);
+      const out = await readGltf(path.join(d, `${type}.gltf`));
+      expect(out.primitives[0].attributes.TANGENT.componentType).toBe(componentType);
+      expect(out.primitives[0].attributes.NORMAL.componentType).toBe(5120);
+    }
+  });
+
+  it('an octahedral meshopt input keeps --tangent-type float: TANGENT without the filter, as floats', async () => {
+    const d = dir();
+    const { json, bin } = await meshoptCompressGlb(new Uint8Array(readFileSync(path.join(repoRoot, 'examples/harbor-props/barrel/barrel.glb'))), { octahedralNormals: true });
+    const input = await writeGlb(d, 'oct', json, bin);
+    await bake(input, path.join(d, 'out.glb'), ['--tangent-type', 'float']);
+    await expectValid(path.join(d, 'out.glb'));
+    const out = parseGlbChunks(new Uint8Array(readFileSync(path.join(d, 'out.glb'))));
+    const jp = out.json.meshes[0].primitives[0];
+    const acc = out.json.accessors[jp.attributes.TANGENT];
+    expect(acc.componentType).toBe(5126);
+    const ext = out.json.bufferViews[acc.bufferView].extensions[MESHOPT];
+    expect(ext.filter ?? 'NONE').toBe('NONE');
+    expect(out.json.bufferViews[out.json.accessors[jp.attributes.NORMAL].bufferView].extensions[MESHOPT].filter).toBe('OCTAHEDRAL');
+  });
+});
+
 /** Meshopt inputs the tests make with the meshoptimizer encoder: demo props and one shared sample. */
 function meshoptSources(): { name: string; file: string; octahedral: boolean }[] {
   const out = [
