@@ -48,7 +48,7 @@ import { diskResources, type ResourceSource } from './resources.js';
 
 /**
  * Required extensions we can process: ones that do not change how geometry is stored, plus the
- * geometry compressions we decode (the output is written uncompressed).
+ * geometry compressions we decode (and the writer can write again).
  */
 const SAFE_REQUIRED_EXTENSIONS = new Set([
   'KHR_mesh_quantization',

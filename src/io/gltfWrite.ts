@@ -2,7 +2,8 @@
  * Encodes an Asset, with some primitives replaced by baked geometry, as .glb or .gltf.
  * Based on: glTF 2.0 specification, sections 3.6 (buffers, buffer views, accessors, data
  * alignment, accessor bounds), 3.7.2 (mesh primitives: POSITION min/max required, index
- * component types, morph targets), 3.8.3 (images) and 4.4 (GLB); KHR_mesh_quantization.
+ * component types, morph targets), 3.8.3 (images) and 4.4 (GLB); KHR_mesh_quantization;
+ * KHR_draco_mesh_compression and EXT_meshopt_compression (compressed output).
  *
  * The JSON members the encoder edits are deep-copied and edited in place, the others shared
  * with the input, so every key keeps the input's order and everything we do not touch
@@ -10,10 +11,13 @@
  * references renumbered. All binary data goes into one new buffer: kept buffer views are
  * copied, new accessors get their own tightly packed views; every view starts 4-byte
  * aligned. Replacement arrays shared between primitives (the same AttributeData or index
- * array object) are written once and their accessor shared. Compressed geometry is written
- * uncompressed: Draco primitives from their decoded data, meshopt views from the bytes the
- * reader decoded into them. Every written POSITION accessor (kept or new) has a correct
- * min/max. The output is a pure function of the inputs.
+ * array object) are written once and their accessor shared. Without `compression`,
+ * compressed geometry is written uncompressed: Draco primitives from their decoded data,
+ * meshopt views from the bytes the reader decoded into them. With it (WriteCompression),
+ * unbaked Draco primitives and meshopt views keep their compressed bytes, and replacements
+ * are written as the Draco streams or meshopt views it names (the uncompressed homes of
+ * meshopt views in a fallback buffer 1 without data). Every written POSITION accessor (kept
+ * or new) has a correct min/max. The output is a pure function of the inputs.
  */
 import { createHash } from 'node:crypto';
 import * as path from 'node:path';
@@ -649,9 +653,10 @@ function isDracoPrimitive(asset: Asset, p: { mesh: number; primitive: number }):
 
 /**
  * Primitives whose geometry exists only as decoded data are written from it when they have no
- * replacement: every OBJ primitive (the synthesized JSON has empty attribute maps) and every
- * Draco-compressed glTF primitive (its accessors have no uncompressed data, or data the
- * extension overrides). Their decoded data is a triangle list.
+ * replacement: every OBJ primitive (the synthesized JSON has empty attribute maps) and, unless
+ * `keepCompressed` keeps their streams, every Draco-compressed glTF primitive (its accessors
+ * have no uncompressed data, or data the extension overrides). Their decoded data is a
+ * triangle list.
  */
 function withDecodedDefaults(asset: Asset, replacements: Map<number, PrimitiveReplacement>, keepCompressed: boolean): Map<number, PrimitiveReplacement> {
   const all = new Map(replacements);
@@ -704,8 +709,9 @@ function editableCopy(json: any): any {
  * `<basename>.<hash>.bin` when there is binary data (bufferFileName; none with `embedBuffers`,
  * which stores it as a data: URI), then each external image with known bytes at its relative
  * URI beside the output (or the URI `imageUris` gives it, which the JSON then names). asset.generator and everything not edited stay as read.
- * OBJ primitives and Draco-compressed primitives without a replacement are written from
- * their decoded data; meshopt-compressed views are written with the bytes the reader decoded.
+ * OBJ primitives, and without `compression.keepCompressed` Draco-compressed primitives without
+ * a replacement, are written from their decoded data, meshopt-compressed views with the bytes
+ * the reader decoded; `compression` says what is written compressed.
  * Preconditions: replacement attribute arrays match their componentType/type, equal counts,
  * indices in range, as many morph targets as the original. Deterministic.
  * Throws 'bad-gltf' for dangling references or empty replacements, 'too-large' past 4 GiB GLB.

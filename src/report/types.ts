@@ -96,7 +96,7 @@ export interface FileReport {
   warnings: string[];
   /**
    * What the run did to the file beyond baking, one line each: e.g. "decompressed
-   * KHR_draco_mesh_compression" (the output is written uncompressed).
+   * KHR_draco_mesh_compression" (audit), "... (written uncompressed: --compression none)" (bake).
    */
   notes: string[];
   /**
