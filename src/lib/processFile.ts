@@ -135,7 +135,7 @@ function oneLine(s: string): string {
 }
 
 /** Extension names of the kinds of compression. */
-const EXTENSION_OF: Record<string, string> = { draco: 'KHR_draco_mesh_compression', meshopt: 'meshopt compression' };
+const EXTENSION_OF: Record<string, string> = { draco: 'KHR_draco_mesh_compression', meshopt: 'EXT_meshopt_compression' };
 
 /**
  * The notes a bake adds about compression: what was decoded and written plain (with
@@ -147,7 +147,7 @@ function compressionNotes(asset: Asset, primitives: PrimitiveCompression[], mode
   for (const ext of asset.decompressed ?? []) {
     const kind = ext === 'KHR_draco_mesh_compression' ? 'draco' : 'meshopt';
     if (mode === 'none') notes.push(`decompressed ${ext} (written uncompressed: --compression none)`);
-    else if (!outKinds.has(kind)) notes.push(`decompressed ${ext} (written uncompressed)`);
+    else if (!outKinds.has(kind)) notes.push(mode === 'keep' ? `decompressed ${ext} (written uncompressed)` : `decompressed ${ext}`);
   }
   const inKinds = new Set(primitives.map((c) => c.in));
   for (const kind of ['draco', 'meshopt']) {
