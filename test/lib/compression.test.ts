@@ -247,6 +247,8 @@ describe.skipIf(!present)('shared samples, glTF-Draco variants, --compression ke
           normal: octahedralAngle(normalBits) + 1e-6,
           tangent: tangentBits === null ? 1e-6 : componentAngle(1 / (2 ** tangentBits - 1)) + 1e-6,
         };
+        // The attributes matchDraco compares (with TANGENT) are all the primitive has.
+        expect(Object.keys(out.primitives[i].attributes).sort()).toEqual(['NORMAL', 'POSITION', 'TANGENT', 'TEXCOORD_0']);
         const m = matchDraco(out.primitives[i], pp, bounds);
         expect(m.unmatched, 'output vertices with no plain vertex within the bounds').toBe(0);
         expect(m.lost, 'plain vertices no output vertex matches').toBe(0);
