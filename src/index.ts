@@ -38,3 +38,9 @@ export {
   convertNormalMap, flipGreen, type ConvertMapOptions, type ConvertMapStats, type FrameSet, type MapPart, type MapSpace, type GreenDirection,
 } from './imaging/convert.js';
 export { mapPartsForAsset, primitiveFrameSet, type MapParts, type MapPartsRequest, type MapPrimitiveInfo, type PrimitiveRef } from './lib/mapFrames.js';
+export {
+  renderSheet, countFindings, sceneBounds, VIEW_NAMES, MODE_NAMES, FINDING_KINDS,
+  type RenderScene, type RenderPrimitive, type RenderInstance, type RenderMaterial, type RenderImage, type RenderTextureRef,
+  type RenderedSheet, type SheetOptions, type ViewName, type ModeName,
+} from './render/index.js';
+export { buildRenderScene, renderAssetPng, defaultRenderOptions, type BuiltScene, type RenderAssetOptions, type RenderedAsset } from './lib/renderAsset.js';

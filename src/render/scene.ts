@@ -89,34 +89,39 @@ export function defaultMaterial(): RenderMaterial {
  */
 export function sceneBounds(scene: RenderScene): [number, number, number, number] {
   let minX = Infinity, minY = Infinity, minZ = Infinity, maxX = -Infinity, maxY = -Infinity, maxZ = -Infinity;
-  const visit = (fn: (x: number, y: number, z: number) => void) => {
+  for (let pass = 0; pass < 2; pass++) {
+    const cx = (minX + maxX) / 2, cy = (minY + maxY) / 2, cz = (minZ + maxZ) / 2;
+    let r2 = 0;
     for (const inst of scene.instances) {
       const p = scene.primitives[inst.primitive].positions;
       const m = inst.matrix;
+      const m0 = m[0], m1 = m[1], m2 = m[2], m4 = m[4], m5 = m[5], m6 = m[6], m8 = m[8], m9 = m[9], m10 = m[10], m12 = m[12], m13 = m[13], m14 = m[14];
       for (let i = 0; i < p.length; i += 3) {
         const px = p[i], py = p[i + 1], pz = p[i + 2];
-        const x = m[0] * px + m[4] * py + m[8] * pz + m[12];
-        const y = m[1] * px + m[5] * py + m[9] * pz + m[13];
-        const z = m[2] * px + m[6] * py + m[10] * pz + m[14];
+        const x = m0 * px + m4 * py + m8 * pz + m12;
+        const y = m1 * px + m5 * py + m9 * pz + m13;
+        const z = m2 * px + m6 * py + m10 * pz + m14;
         if (x - x !== 0 || y - y !== 0 || z - z !== 0) continue;
-        fn(x, y, z);
+        if (pass === 0) {
+          if (x < minX) minX = x;
+          if (x > maxX) maxX = x;
+          if (y < minY) minY = y;
+          if (y > maxY) maxY = y;
+          if (z < minZ) minZ = z;
+          if (z > maxZ) maxZ = z;
+        } else {
+          const d = (x - cx) * (x - cx) + (y - cy) * (y - cy) + (z - cz) * (z - cz);
+          if (d > r2) r2 = d;
+        }
       }
     }
-  };
-  visit((x, y, z) => {
-    if (x < minX) minX = x; if (x > maxX) maxX = x;
-    if (y < minY) minY = y; if (y > maxY) maxY = y;
-    if (z < minZ) minZ = z; if (z > maxZ) maxZ = z;
-  });
-  if (!(minX <= maxX)) return [0, 0, 0, 1];
-  const cx = (minX + maxX) / 2, cy = (minY + maxY) / 2, cz = (minZ + maxZ) / 2;
-  let r2 = 0;
-  visit((x, y, z) => {
-    const d = (x - cx) * (x - cx) + (y - cy) * (y - cy) + (z - cz) * (z - cz);
-    if (d > r2) r2 = d;
-  });
-  const r = Math.sqrt(r2);
-  return [cx, cy, cz, r > 0 ? r : 1];
+    if (pass === 0 && !(minX <= maxX)) return [0, 0, 0, 1];
+    if (pass === 1) {
+      const r = Math.sqrt(r2);
+      return [cx, cy, cz, r > 0 ? r : 1];
+    }
+  }
+  return [0, 0, 0, 1];
 }
 
 /** A node's local matrix: `matrix` when given (16 finite numbers), else T * R * S from its TRS (glTF 2.0, 3.5.2). */

@@ -96,27 +96,35 @@ export function prepareInstance(scene: RenderScene, inst: RenderInstance): Prepa
   return { positions, normals, tangents, reference, faceNormals, frontSign: det < 0 ? 1 : -1 };
 }
 
-/** Per-sample outputs of one view: linear RGB per mode (3 per sample) and coverage (1 drawn). */
+/** Per-pixel outputs of one view: linear RGB per mode (3 per pixel, the covered samples' average) and covered samples per pixel. */
 export interface ShadedView {
+  /** Pixels per side. */
+  size: number;
   colour: Float32Array[];
+  /** Covered samples of each pixel, 0 .. ss * ss. */
   covered: Uint8Array;
 }
 
 /**
- * Shades every visible sample of `vis` for each of `modes`. `light` is the unit direction
- * toward the light in world space. Per sample: the triangle's corners' world data are
- * interpolated with the stored barycentrics; see the file header for the formulas. Samples
- * whose normal has no direction fall back to the face normal.
+ * Shades the visible samples of `vis` (ss x ss samples per pixel) for each of `modes` and
+ * resolves them to pixels. `light` is the unit direction toward the light in world space. As
+ * multisampling does (common practice), a pixel's samples that show the same triangle are
+ * shaded once, at their mean barycentrics, and weigh by their number; each pixel's colour is
+ * the mean over its covered samples. Per shading point the corners' world data are
+ * interpolated; see the file header for the formulas. A point whose normal has no direction
+ * falls back to the face normal.
  */
 export function shadeView(
   scene: RenderScene,
   prepared: PreparedInstance[],
   vis: VisibilityBuffer,
+  ss: number,
   backFacing: Uint8Array[],
   modes: readonly ModeName[],
   light: [number, number, number],
 ): ShadedView {
-  const n = vis.width * vis.height;
+  const side = vis.width, size = Math.floor(side / ss);
+  const n = size * size;
   const wantShaded = modes.indexOf('shaded'), wantMismatch = modes.indexOf('mismatch'), wantFindings = modes.indexOf('findings');
   const colour = modes.map(() => new Float32Array(n * 3));
   const covered = new Uint8Array(n);
@@ -126,6 +134,8 @@ export function shadeView(
   const grey = srgbToLinear(NEUTRAL_GREY);
   const kindColours = FINDING_KINDS.map((k) => findingColour(k.bit).map(srgbToLinear));
   const heat = new Float64Array(3);
+  const gInst = new Int32Array(ss * ss), gTri = new Int32Array(ss * ss), gCount = new Int32Array(ss * ss);
+  const gB1 = new Float64Array(ss * ss), gB2 = new Float64Array(ss * ss);
   let lastInst = -1;
   let P: PreparedInstance = prepared[0];
   let idx: Uint32Array = new Uint32Array(0);
@@ -134,9 +144,27 @@ export function shadeView(
   let findings: Uint8Array | null = null;
   let back: Uint8Array = new Uint8Array(0);
   for (let o = 0; o < n; o++) {
-    const inst = vis.instance[o];
-    if (inst < 0) continue;
-    covered[o] = 1;
+    const py = (o / size) | 0, px = o - py * size;
+    let groups = 0, cov = 0;
+    for (let sy = 0; sy < ss; sy++) {
+      for (let sx = 0; sx < ss; sx++) {
+        const s = (py * ss + sy) * side + px * ss + sx;
+        const si = vis.instance[s];
+        if (si < 0) continue;
+        cov++;
+        const st = vis.triangle[s];
+        let g = 0;
+        while (g < groups && (gInst[g] !== si || gTri[g] !== st)) g++;
+        if (g === groups) { gInst[g] = si; gTri[g] = st; gCount[g] = 0; gB1[g] = 0; gB2[g] = 0; groups++; }
+        gCount[g]++;
+        gB1[g] += vis.b1[s];
+        gB2[g] += vis.b2[s];
+      }
+    }
+    covered[o] = cov;
+    for (let g = 0; g < groups; g++) {
+    const inst = gInst[g];
+    const wgt = gCount[g] / cov;
     if (inst !== lastInst) {
       lastInst = inst;
       P = prepared[inst];
@@ -148,8 +176,8 @@ export function shadeView(
       findings = prim.findings;
       back = backFacing[inst];
     }
-    const t = vis.triangle[o];
-    const b1 = vis.b1[o], b2 = vis.b2[o], b0 = 1 - b1 - b2;
+    const t = gTri[g];
+    const b1 = gB1[g] / gCount[g], b2 = gB2[g] / gCount[g], b0 = 1 - b1 - b2;
     const ia = idx[t * 3], ib = idx[t * 3 + 1], ic = idx[t * 3 + 2];
     const flip = back[t] ? -1 : 1;
     const fnx = P.faceNormals[t * 3] * flip, fny = P.faceNormals[t * 3 + 1] * flip, fnz = P.faceNormals[t * 3 + 2] * flip;
@@ -197,7 +225,7 @@ export function shadeView(
       }
       const k = 0.15 + 0.85 * (ndl > 0 ? ndl : 0);
       const out = colour[wantShaded];
-      out[o * 3] = ar * k; out[o * 3 + 1] = ag * k; out[o * 3 + 2] = ab * k;
+      out[o * 3] += ar * k * wgt; out[o * 3 + 1] += ag * k * wgt; out[o * 3 + 2] += ab * k * wgt;
     }
     if (wantMismatch >= 0) {
       let angle = 0;
@@ -219,19 +247,22 @@ export function shadeView(
       }
       mismatchColour(heat, angle);
       const out = colour[wantMismatch];
-      out[o * 3] = srgbToLinear(heat[0]) * shape; out[o * 3 + 1] = srgbToLinear(heat[1]) * shape; out[o * 3 + 2] = srgbToLinear(heat[2]) * shape;
+      const sw = shape * wgt;
+      out[o * 3] += srgbToLinear(heat[0]) * sw; out[o * 3 + 1] += srgbToLinear(heat[1]) * sw; out[o * 3 + 2] += srgbToLinear(heat[2]) * sw;
     }
     if (wantFindings >= 0) {
       const out = colour[wantFindings];
       const bits = findings ? findings[t] : 0;
-      let r = grey, g = grey, b = grey;
+      let cr = grey, cg = grey, cb = grey;
       if (bits) {
         for (let k = 0; k < FINDING_KINDS.length; k++) {
-          if (bits & FINDING_KINDS[k].bit) { r = kindColours[k][0]; g = kindColours[k][1]; b = kindColours[k][2]; break; }
+          if (bits & FINDING_KINDS[k].bit) { cr = kindColours[k][0]; cg = kindColours[k][1]; cb = kindColours[k][2]; break; }
         }
       }
-      out[o * 3] = r * shape; out[o * 3 + 1] = g * shape; out[o * 3 + 2] = b * shape;
+      const sw = shape * wgt;
+      out[o * 3] += cr * sw; out[o * 3 + 1] += cg * sw; out[o * 3 + 2] += cb * sw;
+    }
     }
   }
-  return { colour, covered };
+  return { size, colour, covered };
 }

@@ -7,10 +7,10 @@
 import { FINDING_KINDS, HEAT_LEGEND_DEG, findingColour, mismatchColour } from './palette.js';
 import { CELL_H, drawText, textWidth } from './font.js';
 import { lightInView, orthoCamera, viewToWorldDirection, type ViewName } from './camera.js';
-import { createVisibility, rasterizeInstance } from './rasterize.js';
+import { createVisibility, rasterizeInstance, type VisibilityBuffer } from './rasterize.js';
 import { prepareInstance, shadeView, type ModeName, type PreparedInstance } from './shade.js';
 import { defaultMaterial, sceneBounds, type RenderScene } from './scene.js';
-import { linearToSrgb, srgbToLinear } from './texture.js';
+import { linearToSrgb8, srgbToLinear } from './texture.js';
 
 /** Samples per pixel side (2 x 2 supersampling). */
 export const SUPERSAMPLE = 2;
@@ -59,13 +59,14 @@ const MARKER_DEPTH_SLACK = 0.02;
 
 /**
  * Draws the flagged triangles that cover no sample of the view (no area: degenerate geometry,
- * or smaller than a sample) as squares at their projected centroids, in the colour of their
- * first kind, where they are not hidden behind the surface.
+ * or smaller than a sample) as squares of pixels at their projected centroids, in the colour
+ * of their first kind, where they are not hidden behind the surface (a pixel's nearest sample).
  */
 function drawMarkers(
-  scene: RenderScene, prepared: PreparedInstance[], screens: Float64Array[], depth: Float32Array, instance: Int32Array, triangle: Int32Array,
-  colour: Float32Array, covered: Uint8Array, side: number, half: number,
+  scene: RenderScene, prepared: PreparedInstance[], screens: Float64Array[], vis: VisibilityBuffer, ss: number,
+  colour: Float32Array, covered: Uint8Array, size: number, half: number,
 ): void {
+  const { depth, instance, triangle, width: side } = vis;
   const seen: (Uint8Array | null)[] = scene.instances.map((inst) => {
     const f = scene.primitives[inst.primitive].findings;
     return f ? new Uint8Array(f.length) : null;
@@ -89,57 +90,51 @@ function drawMarkers(
         x += px; y += py; z += pz; k++;
       }
       if (k === 0) continue;
-      x /= k; y /= k; z /= k;
+      x /= k * ss; y /= k * ss; z /= k;
       let kind = 0;
       while (kind < FINDING_KINDS.length - 1 && !(f[t] & FINDING_KINDS[kind].bit)) kind++;
       const rgb = findingColour(FINDING_KINDS[kind].bit).map(srgbToLinear);
       const cx = Math.floor(x), cy = Math.floor(y);
       for (let py = cy - half; py <= cy + half; py++) {
-        if (py < 0 || py >= side) continue;
+        if (py < 0 || py >= size) continue;
         for (let px = cx - half; px <= cx + half; px++) {
-          if (px < 0 || px >= side) continue;
-          const o = py * side + px;
-          if (!(z <= depth[o] + MARKER_DEPTH_SLACK)) continue;
+          if (px < 0 || px >= size) continue;
+          let near = Infinity;
+          for (let sy = 0; sy < ss; sy++) for (let sx = 0; sx < ss; sx++) near = Math.min(near, depth[(py * ss + sy) * side + px * ss + sx]);
+          if (!(z <= near + MARKER_DEPTH_SLACK)) continue;
+          const o = py * size + px;
           colour[o * 3] = rgb[0]; colour[o * 3 + 1] = rgb[1]; colour[o * 3 + 2] = rgb[2];
-          covered[o] = 1;
+          covered[o] = ss * ss;
         }
       }
     }
   }
 }
 
-/** Averages 2 x 2 samples into an RGBA8 cell of size x size pixels. */
-function downsample(colour: Float32Array, covered: Uint8Array, size: number): Uint8Array {
-  const side = size * SUPERSAMPLE;
+/** Encodes per-pixel linear colour and covered-sample counts as an RGBA8 cell (alpha: the covered share). */
+function encodeCell(colour: Float32Array, covered: Uint8Array, size: number, samples: number): Uint8Array {
   const out = new Uint8Array(size * size * 4);
-  for (let y = 0; y < size; y++) {
-    for (let x = 0; x < size; x++) {
-      let r = 0, g = 0, b = 0, n = 0;
-      for (let dy = 0; dy < SUPERSAMPLE; dy++) {
-        for (let dx = 0; dx < SUPERSAMPLE; dx++) {
-          const o = (y * SUPERSAMPLE + dy) * side + x * SUPERSAMPLE + dx;
-          if (!covered[o]) continue;
-          r += colour[o * 3]; g += colour[o * 3 + 1]; b += colour[o * 3 + 2]; n++;
-        }
-      }
-      if (n === 0) continue;
-      const p = (y * size + x) * 4;
-      out[p] = Math.round(linearToSrgb(r / n) * 255);
-      out[p + 1] = Math.round(linearToSrgb(g / n) * 255);
-      out[p + 2] = Math.round(linearToSrgb(b / n) * 255);
-      out[p + 3] = Math.round((n * 255) / (SUPERSAMPLE * SUPERSAMPLE));
-    }
+  for (let p = 0; p < size * size; p++) {
+    const n = covered[p];
+    if (n === 0) continue;
+    out[p * 4] = linearToSrgb8(colour[p * 3]);
+    out[p * 4 + 1] = linearToSrgb8(colour[p * 3 + 1]);
+    out[p * 4 + 2] = linearToSrgb8(colour[p * 3 + 2]);
+    out[p * 4 + 3] = Math.round((n * 255) / samples);
   }
   return out;
 }
 
 /**
  * Renders one view in every mode: returns one RGBA8 size x size cell per mode. `prepared`
- * holds each instance's world-space data (prepareInstance).
+ * holds each instance's world-space data (prepareInstance); `bounds` is the sphere the camera
+ * frames (sceneBounds).
  */
-export function renderViewCells(scene: RenderScene, prepared: PreparedInstance[], view: ViewName, options: SheetOptions): Uint8Array[] {
+export function renderViewCells(
+  scene: RenderScene, prepared: PreparedInstance[], view: ViewName, options: SheetOptions, bounds: [number, number, number, number] = sceneBounds(scene),
+): Uint8Array[] {
   const side = options.size * SUPERSAMPLE;
-  const camera = orthoCamera(view, sceneBounds(scene));
+  const camera = orthoCamera(view, bounds);
   const m = camera.viewProjection;
   const vis = createVisibility(side, side);
   const screens: Float64Array[] = [];
@@ -167,14 +162,14 @@ export function renderViewCells(scene: RenderScene, prepared: PreparedInstance[]
     rasterizeInstance(vis, sc, prim.indices, tc, i, prepared[i].frontSign, !mat.doubleSided, back);
   }
   const light = viewToWorldDirection(camera.view, lightInView(options.light[0], options.light[1]));
-  const shaded = shadeView(scene, prepared, vis, backFacing, options.modes, light);
+  const shaded = shadeView(scene, prepared, vis, SUPERSAMPLE, backFacing, options.modes, light);
   return options.modes.map((mode, k) => {
     let covered = shaded.covered;
     if (mode === 'findings') {
       covered = shaded.covered.slice();
-      drawMarkers(scene, prepared, screens, vis.depth, vis.instance, vis.triangle, shaded.colour[k], covered, side, markerHalf(options.size) * SUPERSAMPLE);
+      drawMarkers(scene, prepared, screens, vis, SUPERSAMPLE, shaded.colour[k], covered, options.size, markerHalf(options.size));
     }
-    return downsample(shaded.colour[k], covered, options.size);
+    return encodeCell(shaded.colour[k], covered, options.size, SUPERSAMPLE * SUPERSAMPLE);
   });
 }
 
@@ -215,7 +210,8 @@ function legendOf(scene: RenderScene, mode: ModeName, options: SheetOptions): Le
 export function renderSheet(scene: RenderScene, options: SheetOptions): RenderedSheet {
   const { size, views, modes } = options;
   const prepared = scene.instances.map((inst) => prepareInstance(scene, inst));
-  const cells = views.map((v) => renderViewCells(scene, prepared, v, options)); // cells[view][mode]
+  const bounds = sceneBounds(scene);
+  const cells = views.map((v) => renderViewCells(scene, prepared, v, options, bounds)); // cells[view][mode]
   if (views.length === 1 && modes.length === 1) return { width: size, height: size, rgba: cells[0][0] };
 
   const scale = size >= 256 ? 2 : 1;

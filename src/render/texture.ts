@@ -20,6 +20,28 @@ export function linearToSrgb(c: number): number {
 }
 
 let SRGB_LUT: Float32Array | null = null;
+let SRGB8_THRESHOLDS: Float64Array | null = null;
+
+/**
+ * The 8-bit sRGB code of a linear value: the same as Math.round(linearToSrgb(c) * 255), found
+ * by bisecting the linear values where the rounded code steps up (table built on first use).
+ */
+export function linearToSrgb8(c: number): number {
+  let t = SRGB8_THRESHOLDS;
+  if (!t) {
+    t = SRGB8_THRESHOLDS = new Float64Array(256);
+    t[0] = -Infinity;
+    for (let k = 1; k < 256; k++) t[k] = srgbToLinear((k - 0.5) / 255);
+  }
+  if (!(c > 0)) return 0;
+  let lo = 0, hi = 255;
+  while (lo < hi) {
+    const mid = (lo + hi + 1) >> 1;
+    if (c >= t[mid]) lo = mid;
+    else hi = mid - 1;
+  }
+  return lo;
+}
 
 /** 16-bit sample -> linear, through the sRGB curve (table built on first use). */
 function srgbTable(): Float32Array {
