@@ -51,7 +51,7 @@ export function countFindings(scene: RenderScene): number[] {
 
 /** Half-side of a finding marker in pixels at a view size. Our choice: visible at 512, not covering much. */
 function markerHalf(size: number): number {
-  return Math.max(2, Math.round(size / 160));
+  return Math.max(2, Math.round(size / 100));
 }
 
 /** Markers depth-test against the surface with this slack in NDC depth (the sphere spans about 2). */
