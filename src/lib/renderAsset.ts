@@ -132,7 +132,10 @@ async function buildMaterials(asset: Asset, notes: string[]): Promise<{ material
         images.push(img);
       } catch (err) {
         decoded.set(source, null);
-        const why = bytes && (kindName(bytes) === 'PNG' || kindName(bytes) === 'JPEG') ? `cannot be decoded (${String((err as Error)?.message ?? err).split('\n')[0]})` : `is ${kindName(bytes)}, not PNG or JPEG`;
+        const kind = kindName(bytes);
+        const why = !bytes ? 'was not found'
+          : kind === 'PNG' || kind === 'JPEG' ? `cannot be decoded (${String((err as Error)?.message ?? err).split('\n')[0]})`
+          : `is ${kind}, not PNG or JPEG`;
         notes.push(`image ${source} (${role}) ${why}; drawn without it`);
       }
     }
