@@ -10,7 +10,7 @@ export { TanframeError, type ErrorCode } from './mesh/errors.js';
 export type { Asset, AttributeData, ComponentArray, ExternalImage, PrimitiveData, PrimitiveReplacement } from './mesh/asset.js';
 export type { UvTransform } from './mesh/uvTransform.js';
 export { readAsset, readAssetBytes, processFile, processFileOutcome, outputFormat, type FileJob, type FileOutcome } from './lib/processFile.js';
-export { solveAsset, solvePrimitive, type AssetSolve } from './lib/bakeAsset.js';
+export { solveAsset, solvePrimitive, type AssetSolve, type SolvedSurface } from './lib/bakeAsset.js';
 export { createCompactScratch, type CompactScratch } from './mesh/compact.js';
 export { defaultProcessOptions, GATE_NAMES, type GateLimit, type GateName, type ProcessOptions } from './lib/options.js';
 export { trippedGates, gateFigures, parseLimit, parseLimitValue, DEFAULT_LIMITS, GATE_INFO, type GateCount, type GateInfo } from './lib/gates.js';
