@@ -207,8 +207,21 @@ function plainPrimitive(p: PrimitiveData): RenderPrimitive | null {
   return { positions, normals, uvs, tangents: null, referenceTangents: null, indices, findings: null, material: p.material ?? -1 };
 }
 
-/** The nodes of the asset's scene (json.scene, else scene 0, else every root node), each with its global matrix, depth first. */
-function sceneNodes(json: any): { mesh: number; matrix: Float64Array }[] {
+/**
+ * Most node visits while walking the scene: glTF nodes form a tree (each node at most one
+ * parent, glTF 2.0, 3.5.3), but a file may break that and reach one node by many paths, which
+ * would cost exponential time; the walk stops there. Our choice.
+ */
+export const MAX_NODE_VISITS = 100_000;
+
+/** Most triangles drawn over all instances (a mesh placed by many nodes counts each time); the same figure as the read limit's default. */
+export const MAX_RENDER_TRIANGLES = 20_000_000;
+
+/**
+ * The nodes of the asset's scene (json.scene, else scene 0, else every root node), each with
+ * its global matrix, depth first; at most MAX_NODE_VISITS visits (`truncated` then says so).
+ */
+function sceneNodes(json: any): { nodes: { mesh: number; matrix: Float64Array }[]; truncated: boolean } {
   const nodes: any[] = Array.isArray(json.nodes) ? json.nodes : [];
   const out: { mesh: number; matrix: Float64Array }[] = [];
   let roots: number[];
@@ -221,9 +234,11 @@ function sceneNodes(json: any): { mesh: number; matrix: Float64Array }[] {
     roots = nodes.map((_, i) => i).filter((i) => !child.has(i));
   }
   const visiting = new Set<number>();
+  let visits = 0, truncated = false;
   const visit = (i: number, parent: Float64Array) => {
     const n = nodes[i];
     if (!n || visiting.has(i)) return;
+    if (++visits > MAX_NODE_VISITS) { truncated = true; return; }
     visiting.add(i);
     const local = nodeMatrix(n);
     const m = new Float64Array(16);
@@ -242,7 +257,7 @@ function sceneNodes(json: any): { mesh: number; matrix: Float64Array }[] {
     const meshes: any[] = Array.isArray(json.meshes) ? json.meshes : [];
     meshes.forEach((_, i) => out.push({ mesh: i, matrix: identity }));
   }
-  return out;
+  return { nodes: out, truncated };
 }
 
 /**
@@ -295,14 +310,22 @@ export async function buildRenderScene(asset: Asset, options: RenderAssetOptions
   }
   if (notDrawn > 0) notes.push(`${notDrawn} primitive${notDrawn === 1 ? '' : 's'} without triangles (points or lines) not drawn`);
   const instances: RenderScene['instances'] = [];
-  for (const node of sceneNodes(asset.json)) {
+  const walk = sceneNodes(asset.json);
+  if (walk.truncated) notes.push(`the node hierarchy reaches nodes by more than ${MAX_NODE_VISITS.toLocaleString('en-US')} paths (glTF nodes form a tree); the rest is not drawn`);
+  let drawnTriangles = 0, skippedInstances = 0;
+  for (const node of walk.nodes) {
     const mesh = asset.json.meshes?.[node.mesh];
     const count = Array.isArray(mesh?.primitives) ? mesh.primitives.length : 0;
     for (let k = 0; k < count; k++) {
       const s = slot.get(`${node.mesh}/${k}`);
-      if (s !== undefined) instances.push({ primitive: s, matrix: node.matrix });
+      if (s === undefined) continue;
+      const tris = primitives[s].indices.length / 3;
+      if (drawnTriangles + tris > MAX_RENDER_TRIANGLES) { skippedInstances++; continue; }
+      drawnTriangles += tris;
+      instances.push({ primitive: s, matrix: node.matrix });
     }
   }
+  if (skippedInstances > 0) notes.push(`${skippedInstances} placed primitive${skippedInstances === 1 ? '' : 's'} past ${MAX_RENDER_TRIANGLES.toLocaleString('en-US')} drawn triangles not drawn`);
   const labels: BuiltScene['labels'] = { shaded: [`${options.method} frames`] };
   if (stored > 0 && recomputed === 0) labels.mismatch = [`stored vs ${options.method}`];
   else if (stored === 0 && recomputed > 0) labels.mismatch = [`${other} vs ${options.method}`, '(no stored tangents)'];

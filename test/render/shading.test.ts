@@ -190,3 +190,18 @@ describe('the scene as read', () => {
     expect(b[3]).toBeCloseTo(Math.SQRT1_2, 6);
   });
 });
+
+describe('a node hierarchy that is not a tree', () => {
+  it('stops walking after MAX_NODE_VISITS visits and says so, in time linear in the cap', async () => {
+    // Source: glTF 2.0, 3.5.3 (nodes form disjoint strict trees: one parent at most). A chain of 24
+    // nodes each naming the next twice reaches the last node by 2^23 paths.
+    const { buildGltf, glbBytes } = await import('../helpers/gltfBuilder.js');
+    const { json, bin } = buildGltf([unitQuad()]);
+    json.nodes = Array.from({ length: 24 }, (_, i) => (i < 23 ? { children: [i + 1, i + 1] } : { mesh: 0 }));
+    json.scenes = [{ nodes: [0] }];
+    const built = await buildRenderScene(await readAssetBytes(glbBytes(json, bin), 'dag.glb'), defaultRenderOptions());
+    expect(built.notes.join('\n')).toMatch(/more than 100,000 paths/);
+    expect(built.scene.instances.length).toBeLessThanOrEqual(100_000);
+    expect(built.scene.instances.length).toBeGreaterThan(1000);
+  });
+});
