@@ -7,7 +7,7 @@ export { VIEW_NAMES, lightInView, orthoCamera, type Camera, type ViewName } from
 export { MODE_NAMES, prepareInstance, shadeView, type ModeName, type PreparedInstance } from './shade.js';
 export { countFindings, renderSheet, renderViewCells, SUPERSAMPLE, type RenderedSheet, type SheetOptions } from './sheet.js';
 export { FINDING_KINDS, HEAT_LEGEND_DEG, NEUTRAL_GREY, findingColour, mismatchColour } from './palette.js';
-export { createVisibility, rasterizeInstance, SUBPIXEL, type VisibilityBuffer } from './rasterize.js';
+export { clearVisibility, createVisibility, rasterizeInstance, SUBPIXEL, type VisibilityBuffer } from './rasterize.js';
 export { linearToSrgb, sampleTexture, srgbToLinear } from './texture.js';
 export {
   WRAP_CLAMP, WRAP_MIRROR, WRAP_REPEAT, defaultMaterial, nodeMatrix, sceneBounds,

@@ -51,6 +51,32 @@ const HEAT: readonly [number, number, number, number][] = [
 /** Angles the mismatch legend names, in degrees (the last is "and more"). */
 export const HEAT_LEGEND_DEG: readonly number[] = [0, 0.5, 2, 5, 10];
 
+let HEAT_LINEAR: [number, number, number, number][] | null = null;
+
+/** sRGB (0..1) -> linear, IEC 61966-2-1 (kept here so the palette stands alone). */
+function toLinear(c: number): number {
+  return c <= 0.04045 ? c / 12.92 : Math.pow((c + 0.055) / 1.055, 2.4);
+}
+
+/**
+ * Writes the heat-scale colour of a mismatch angle in LINEAR light into out[0..2]: the stops of
+ * mismatchColour linearised, interpolated in linear light between them (the stops themselves are
+ * the same colours; table built on first use).
+ */
+export function mismatchColourLinear(out: Float64Array, angleDeg: number): void {
+  let H = HEAT_LINEAR;
+  if (!H) H = HEAT_LINEAR = HEAT.map((h) => [h[0], toLinear(h[1]), toLinear(h[2]), toLinear(h[3])]);
+  let k = 1;
+  while (k < H.length - 1 && angleDeg > H[k][0]) k++;
+  const a = H[k - 1], b = H[k];
+  let f = (angleDeg - a[0]) / (b[0] - a[0]);
+  if (!(f > 0)) f = 0;
+  if (f > 1) f = 1;
+  out[0] = a[1] + (b[1] - a[1]) * f;
+  out[1] = a[2] + (b[2] - a[2]) * f;
+  out[2] = a[3] + (b[3] - a[3]) * f;
+}
+
 /** Writes the heat-scale sRGB colour (0..1) of a mismatch angle in degrees into out[0..2]; beyond the last stop it stays at the top. */
 export function mismatchColour(out: Float64Array, angleDeg: number): void {
   let k = 1;

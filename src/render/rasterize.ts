@@ -34,6 +34,13 @@ export function createVisibility(width: number, height: number): VisibilityBuffe
   return { width, height, depth, instance: new Int32Array(n).fill(-1), triangle: new Int32Array(n).fill(-1), b1: new Float32Array(n), b2: new Float32Array(n) };
 }
 
+/** Empties `buf` for another view (as createVisibility leaves it), reusing its arrays. */
+export function clearVisibility(buf: VisibilityBuffer): void {
+  buf.depth.fill(Infinity);
+  buf.instance.fill(-1);
+  buf.triangle.fill(-1);
+}
+
 /**
  * Rasterises the triangles of one instance into `buf`. `screen` holds 4 values per vertex:
  * x and y in samples (y down), NDC z, and 1/w. A triangle is front-facing when its signed

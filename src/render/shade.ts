@@ -9,7 +9,7 @@
  * World-space vertex data per instance, then one shading pass over the visible samples of a view.
  */
 import { mat3, mat4 } from 'gl-matrix';
-import { FINDING_KINDS, NEUTRAL_GREY, findingColour, mismatchColour } from './palette.js';
+import { FINDING_KINDS, NEUTRAL_GREY, findingColour, mismatchColourLinear } from './palette.js';
 import type { VisibilityBuffer } from './rasterize.js';
 import { type RenderInstance, type RenderScene, defaultMaterial } from './scene.js';
 import { sampleTexture, srgbToLinear } from './texture.js';
@@ -245,10 +245,10 @@ export function shadeView(
           angle = (Math.atan2(Math.sqrt(cx * cx + cy * cy + cz * cz), nx * rx + ny * ry + nz * rz) * 180) / Math.PI;
         }
       }
-      mismatchColour(heat, angle);
+      mismatchColourLinear(heat, angle);
       const out = colour[wantMismatch];
       const sw = shape * wgt;
-      out[o * 3] += srgbToLinear(heat[0]) * sw; out[o * 3 + 1] += srgbToLinear(heat[1]) * sw; out[o * 3 + 2] += srgbToLinear(heat[2]) * sw;
+      out[o * 3] += heat[0] * sw; out[o * 3 + 1] += heat[1] * sw; out[o * 3 + 2] += heat[2] * sw;
     }
     if (wantFindings >= 0) {
       const out = colour[wantFindings];

@@ -7,7 +7,7 @@
 import { FINDING_KINDS, HEAT_LEGEND_DEG, findingColour, mismatchColour } from './palette.js';
 import { CELL_H, drawText, textWidth } from './font.js';
 import { lightInView, orthoCamera, viewToWorldDirection, type ViewName } from './camera.js';
-import { createVisibility, rasterizeInstance, type VisibilityBuffer } from './rasterize.js';
+import { clearVisibility, createVisibility, rasterizeInstance, type VisibilityBuffer } from './rasterize.js';
 import { prepareInstance, shadeView, type ModeName, type PreparedInstance } from './shade.js';
 import { defaultMaterial, sceneBounds, type RenderScene } from './scene.js';
 import { linearToSrgb8, srgbToLinear } from './texture.js';
@@ -67,9 +67,11 @@ function drawMarkers(
   colour: Float32Array, covered: Uint8Array, size: number, half: number,
 ): void {
   const { depth, instance, triangle, width: side } = vis;
+  const flagged = scene.primitives.map((p) => !!p.findings && p.findings.some((b) => b !== 0));
+  if (!flagged.some((x) => x)) return;
   const seen: (Uint8Array | null)[] = scene.instances.map((inst) => {
     const f = scene.primitives[inst.primitive].findings;
-    return f ? new Uint8Array(f.length) : null;
+    return f && flagged[inst.primitive] ? new Uint8Array(f.length) : null;
   });
   for (let o = 0; o < instance.length; o++) {
     const i = instance[o];
@@ -128,15 +130,19 @@ function encodeCell(colour: Float32Array, covered: Uint8Array, size: number, sam
 /**
  * Renders one view in every mode: returns one RGBA8 size x size cell per mode. `prepared`
  * holds each instance's world-space data (prepareInstance); `bounds` is the sphere the camera
- * frames (sceneBounds).
+ * frames (sceneBounds); `scratch`, a visibility buffer of the view's sample size, is reused
+ * when given (its contents are replaced).
  */
 export function renderViewCells(
   scene: RenderScene, prepared: PreparedInstance[], view: ViewName, options: SheetOptions, bounds: [number, number, number, number] = sceneBounds(scene),
+  scratch: VisibilityBuffer | null = null,
 ): Uint8Array[] {
   const side = options.size * SUPERSAMPLE;
   const camera = orthoCamera(view, bounds);
   const m = camera.viewProjection;
-  const vis = createVisibility(side, side);
+  let vis: VisibilityBuffer;
+  if (scratch && scratch.width === side && scratch.height === side) { vis = scratch; clearVisibility(vis); }
+  else vis = createVisibility(side, side);
   const screens: Float64Array[] = [];
   const backFacing: Uint8Array[] = [];
   const fallback = defaultMaterial();
@@ -211,7 +217,8 @@ export function renderSheet(scene: RenderScene, options: SheetOptions): Rendered
   const { size, views, modes } = options;
   const prepared = scene.instances.map((inst) => prepareInstance(scene, inst));
   const bounds = sceneBounds(scene);
-  const cells = views.map((v) => renderViewCells(scene, prepared, v, options, bounds)); // cells[view][mode]
+  const scratch = createVisibility(size * SUPERSAMPLE, size * SUPERSAMPLE);
+  const cells = views.map((v) => renderViewCells(scene, prepared, v, options, bounds, scratch)); // cells[view][mode]
   if (views.length === 1 && modes.length === 1) return { width: size, height: size, rgba: cells[0][0] };
 
   const scale = size >= 256 ? 2 : 1;
