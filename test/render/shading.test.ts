@@ -205,3 +205,42 @@ describe('a node hierarchy that is not a tree', () => {
     expect(built.scene.instances.length).toBeGreaterThan(1000);
   });
 });
+
+describe('faces and transforms', () => {
+  it('a double-sided quad seen from the back is lit with its normal reversed; a single-sided one is not drawn', async () => {
+    // Source: glTF 2.0, 3.9.6 (doubleSided: back-face culling off and the back face's normals
+    // reversed before lighting; false: back faces culled). Seen from the back with the light along
+    // the view direction, the reversed normal faces the light: the albedo itself.
+    const two = await renderBytes(materialGlb([unitQuad()], { baseColor: [ALBEDO, ALBEDO, ALBEDO], doubleSided: true }), 'two.glb',
+      { views: ['back'], modes: ['shaded'], size: 32, light: [0, 0] });
+    const p = pixel(two, 16, 16);
+    expect(p[3]).toBe(255);
+    expect(Math.abs(p[0] - srgb(ALBEDO) * 255)).toBeLessThanOrEqual(1);
+    const one = await renderBytes(materialGlb([unitQuad()], { baseColor: [ALBEDO, ALBEDO, ALBEDO] }), 'one.glb',
+      { views: ['back'], modes: ['shaded'], size: 32, light: [0, 0] });
+    expect(one.rgba.every((v, i) => i % 4 !== 3 || v === 0)).toBe(true);
+  });
+
+  it('a mirroring node transform keeps the quad front-facing and lights the map as its mirror image', async () => {
+    // Source: glTF 2.0, 3.7.4 (a negative determinant turns front faces clockwise) and 3.7.2.1
+    // (bitangent = cross(N, t) * w, which the mirror must keep pointing where the file's does).
+    // Map tilted 40 degrees toward +t; mirrored in x, +t points to world -X. Light at azimuth 60
+    // (toward +X): cos(60 - 40) unmirrored, cos(60 + 40) mirrored. Tilted toward +b instead, the
+    // mirror leaves +b at world +Y: a light at elevation 50 gives cos(50 - 40) both ways.
+    const a = (40 * Math.PI) / 180;
+    for (const [n, light, plain, mirrored] of [
+      [[Math.sin(a), 0, Math.cos(a)], [60, 0], 20, 100],
+      [[0, Math.sin(a), Math.cos(a)], [0, 50], 10, 10],
+    ] as [[number, number, number], [number, number], number, number][]) {
+      const t = encodeNormal(n);
+      for (const [scale, deg] of [[[1, 1, 1], plain], [[-1, 1, 1], mirrored]] as [number[], number][]) {
+        const s = await renderBytes(materialGlb([unitQuad()], { baseColor: [ALBEDO, ALBEDO, ALBEDO], normalTexel: [t[0], t[1], t[2]] }, { scale }), 'm.glb',
+          { views: ['front'], modes: ['shaded'], size: 32, light });
+        const want = srgb(ALBEDO * (0.15 + 0.85 * Math.max(0, Math.cos((deg * Math.PI) / 180)))) * 255;
+        const p = pixel(s, 16, 16);
+        expect(p[3], `scale ${scale}`).toBe(255);
+        expect(Math.abs(p[0] - want), `scale ${scale} light ${light}: ${p[0]} vs ${want}`).toBeLessThanOrEqual(1);
+      }
+    }
+  });
+});
