@@ -10,7 +10,7 @@ import type { FileJob } from '../lib/processFile.js';
 import { buildReport } from '../report/json.js';
 import type { FileReport } from '../report/types.js';
 import type { InputFile } from '../io/inputs.js';
-import type { ProcessOptions } from '../lib/options.js';
+import { COMPRESSION_MODES, type ProcessOptions } from '../lib/options.js';
 import { containerOf, outputRelativeName, outputTarget } from '../lib/outputNames.js';
 import { planRun, type PlannedMesh } from '../lib/writePlan.js';
 import { namedExplicitly, perFile, resolveSettings } from './config.js';
@@ -51,7 +51,8 @@ export function registerBake(program: Command, io: CliIo, done: (code: number) =
       if (!Number.isFinite(x) || x < 0 || x > 180) throw new TanframeError('usage', `--smooth-angle: expected degrees in [0, 180], got '${v}'`);
       return x;
     }, 60)
-    .addOption(new Option('--tangent-type <type>', 'TANGENT component type').choices(['float', 'snorm16', 'snorm8']).default('float'))
+    .addOption(new Option('--tangent-type <type>', 'TANGENT component type').choices(['float', 'snorm16', 'snorm8']))
+    .addOption(new Option('--compression <mode>', 'how baked primitives are stored: as they came in (Draco, meshopt, quantized), uncompressed, or compressed with Draco or meshopt').choices([...COMPRESSION_MODES]).default('keep'))
     .option('--dry-run', 'do everything but write the meshes', false)
     .option('--force', `bake every file, ignoring the state of earlier runs (${STATE_FILE_NAME})`, false);
   addSharedOptions(cmd);
@@ -72,7 +73,10 @@ export async function runBake(inputs: string[], given: Record<string, any>, io: 
     p.keepExisting = !!o.keepExisting;
     p.normals = o.normals;
     p.smoothAngle = o.smoothAngle;
-    p.tangentType = o.tangentType;
+    // Without --tangent-type TANGENT is float, or with --compression keep the type of a quantized NORMAL.
+    p.tangentType = o.tangentType ?? 'float';
+    p.tangentTypeFromInput = o.tangentType === undefined;
+    p.compression = o.compression;
   };
   bakeOnly(options);
   const expanded = await expandInputs(inputs, io.cwd, { exclude: o.exclude, skipFolders: o.out ? [o.out] : [] });
@@ -153,7 +157,7 @@ export function sortReports(files: FileReport[]): FileReport[] {
 /** The options echoed in the report (stable keys, no paths that vary between machines). */
 export function reportOptions(o: Record<string, any>): Record<string, unknown> {
   const keys = ['method', 'weight', 'uv', 'allPrimitives', 'failOn', 'limits', 'maxDegenerateUv', 'tolerance', 'uvEpsilon',
-    'format', 'inPlace', 'keepExisting', 'normals', 'smoothAngle', 'tangentType', 'dryRun', 'shard'];
+    'format', 'inPlace', 'keepExisting', 'normals', 'smoothAngle', 'tangentType', 'compression', 'dryRun', 'shard'];
   const out: Record<string, unknown> = {};
   for (const k of keys) if (o[k] !== undefined) out[k] = o[k];
   return out;
