@@ -141,5 +141,15 @@ if (!process.argv.includes('--no-convert')) {
   results.convertMap = { size: Number(size), exit: code };
 }
 
+// 6. render: one 512 x 512 view of a 100k-triangle model (its own script).
+if (!process.argv.includes('--no-render')) {
+  console.log('\nrender (bench/render.js):');
+  const code = await new Promise((resolve) => {
+    const p = spawn(process.execPath, ['--expose-gc', path.join(here, 'render.js'), '--runs', quick ? '3' : '7'], { cwd: repo, stdio: 'inherit' });
+    p.on('close', resolve);
+  });
+  results.render = { exit: code };
+}
+
 fs.writeFileSync(path.join(here, 'results.json'), JSON.stringify(results, null, 2) + '\n');
 console.log(`\nwrote ${path.relative(process.cwd(), path.join(here, 'results.json'))}`);

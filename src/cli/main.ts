@@ -9,6 +9,7 @@ import { cleanText } from '../mesh/text.js';
 import { registerAudit } from './audit.js';
 import { registerBake } from './bake.js';
 import { registerConvertMap } from './convertMap.js';
+import { registerRender } from './render.js';
 import { registerReport } from './report.js';
 import { toolVersion, type CliIo } from './shared.js';
 
@@ -39,6 +40,7 @@ export function buildProgram(io: CliIo, done: (code: number) => void): Command {
   registerAudit(program, io, done);
   registerConvertMap(program, io, done);
   registerReport(program, io, done);
+  registerRender(program, io, done);
   for (const c of program.commands) c.exitOverride().configureOutput({ writeOut: io.stdout, writeErr: io.stderr });
   return program;
 }

@@ -44,9 +44,18 @@ export interface DiagnoseInput {
   uvTouching?: number;
   /**
    * Per-triangle marks to fill for pictures (1 flagged, 0 not; triangleCount entries each),
-   * or null/absent when no picture is wanted.
+   * or null/absent when no picture is wanted. The optional ones are filled when given: a
+   * triangle is marked for invalid values or bad normals when one of its corners' vertices is.
    */
-  marks?: { degenerateUv: Uint8Array; overlap: Uint8Array } | null;
+  marks?: {
+    degenerateUv: Uint8Array;
+    overlap: Uint8Array;
+    degenerateGeometry?: Uint8Array;
+    invalidValues?: Uint8Array;
+    badNormals?: Uint8Array;
+    /** Triangles with a corner whose stored tangent is mismatched (triangle order of computedIndices). */
+    tangentMismatch?: Uint8Array;
+  } | null;
   /** OBJ: per triangle, the source line of its face (PrimitiveData.faceLines); null or absent for glTF. */
   faceLines?: Uint32Array | null;
   /**
@@ -54,6 +63,13 @@ export interface DiagnoseInput {
    * PrimitiveData.compactedFrom); null or absent: vertices are numbered as given.
    */
   vertexNumbers?: Uint32Array | null;
+}
+
+/** Sets out[t] = 1 for each triangle with a corner whose vertex is marked in vertexMarks, else 0. */
+function trianglesOfVertices(out: Uint8Array, indices: Uint32Array, vertexMarks: Uint8Array, triangleCount: number): void {
+  for (let t = 0; t < triangleCount; t++) {
+    out[t] = vertexMarks[indices[t * 3]] | vertexMarks[indices[t * 3 + 1]] | vertexMarks[indices[t * 3 + 2]];
+  }
 }
 
 /** Verdicts the caller acts on. */
@@ -83,19 +99,22 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
     return { count: f.count, vertices: listed, positions: vertexPositions(f.vertices, positions), triangleCount: f.triangleCount, triangles: f.triangles, ...where };
   };
   report.degenerateUv = located(findDegenerateUvTriangles(indices, uvs, triangleCount, input.uvEpsilon, marks ? marks.degenerateUv : null));
-  report.degenerateGeometry = located(findDegenerateGeometry(indices, positions, triangleCount));
+  report.degenerateGeometry = located(findDegenerateGeometry(indices, positions, triangleCount, undefined, marks?.degenerateGeometry ?? null));
   const invalid = new Uint8Array(vertexCount);
   markInvalidVertices(invalid, vertexCount, positions, normals, uvs, storedTangents);
   report.invalidValues = vertexFinding(invalid);
+  if (marks?.invalidValues) trianglesOfVertices(marks.invalidValues, indices, invalid, triangleCount);
   const unitTolerance = input.normalUnitTolerance ?? UNIT_LENGTH_TOLERANCE;
   const validity = input.tangentValidity ?? FLOAT_TANGENT_VALIDITY;
   const badNormal = new Uint8Array(vertexCount);
   if (normals) findBadNormals(indices, positions, normals, triangleCount, vertexCount, unitTolerance, input.positionHalfStep ?? 0, badNormal);
   report.badNormals = vertexFinding(badNormal);
+  if (marks?.badNormals) trianglesOfVertices(marks.badNormals, indices, badNormal, triangleCount);
   const stacked = new Uint8Array(triangleCount);
   report.uvOverlap = located(findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null, null, { stacked, touching: input.uvTouching }));
   report.stackedShells = findingFromMarks(stacked, triangleCount);
   let valid = false;
+  if (marks?.tangentMismatch) marks.tangentMismatch.fill(0, 0, triangleCount);
   if (storedTangents) {
     const corners = new Uint8Array(input.computedIndices.length);
     const c = compareStoredTangents(
@@ -108,6 +127,7 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
     for (let k = 0; k < corners.length; k++) if (corners[k]) mismatchedTriangles[(k / 3) | 0] = 1;
     const invalidTangent = new Uint8Array(vertexCount);
     for (let v = 0; v < vertexCount; v++) if (!isStoredTangentValid(storedTangents, normals, v, validity)) invalidTangent[v] = 1;
+    if (marks?.tangentMismatch) marks.tangentMismatch.set(mismatchedTriangles.subarray(0, triangleCount));
     report.storedTangents = {
       invalid: c.invalid,
       undefinedFrames: c.undefinedFrames,
