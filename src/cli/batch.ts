@@ -1,6 +1,6 @@
 /**
  * The batch both `bake` and `audit` run: jobs on the worker pool (or in-process), the
- * progress bar, and the pictures streamed to --uv-maps / --html as files finish.
+ * progress bar, and the pictures streamed to --uv-maps / --views / --html as files finish.
  */
 import * as os from 'node:os';
 import type { FileJob, FileOutcome } from '../lib/processFile.js';
@@ -41,7 +41,8 @@ export async function runBatch(
   onOutcome?: (index: number, outcome: FileOutcome) => void,
 ): Promise<{ reports: FileReport[]; pictures: PictureOutputs; writeFailures: number }> {
   const pictures = new PictureOutputs(o, io, undefined, plan);
-  const withPictures = pictures.wanted ? jobs.map((j) => ({ ...j, pictures: true })) : jobs;
+  const views = pictures.views.wants();
+  const withPictures = pictures.wanted || views ? jobs.map((j) => ({ ...j, pictures: pictures.wanted, views })) : jobs;
   const bar = progressWanted(!!io.stderrIsTTY, io.env, o) && jobs.length > 0
     ? new ProgressBar(io.stderr, jobs.length, io.clock ? () => io.clock!.now() : undefined, io.stderrColumns)
     : null;
@@ -53,7 +54,12 @@ export async function runBatch(
       fileTimeoutMs: fileTimeoutMs(o),
       workerScript: io.workerScript,
       onOutcome,
-      onPictures: pictures.wanted ? (_i, list) => pictures.take(list) : undefined,
+      onPictures: pictures.wanted || views
+        ? (_i, list, sheets) => {
+            pictures.take(list);
+            pictures.views.take(sheets);
+          }
+        : undefined,
       onProgress: bar || records
         ? (done, _total, input, report) => {
             bar?.update(done, input);

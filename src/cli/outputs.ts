@@ -6,10 +6,11 @@ import * as path from 'node:path';
 import { writeFilesAtomic } from '../io/files.js';
 import { cleanText } from '../mesh/text.js';
 import type { RunRequest, WritePlan } from '../lib/writePlan.js';
-import { renderHtml, type HtmlPicture } from '../report/html.js';
+import { renderHtml, type HtmlPicture, type HtmlView } from '../report/html.js';
 import { renderJunit } from '../report/junit.js';
 import type { Report } from '../report/types.js';
-import { pictureFileName, renderUvMapSvg } from '../report/uvMapSvg.js';
+import { pictureFileName, renderUvMapSvg, viewFileName } from '../report/uvMapSvg.js';
+import type { ViewSheet } from '../lib/viewSheets.js';
 import type { UvPicture } from '../report/uvPicture.js';
 import type { CliIo } from './shared.js';
 
@@ -24,6 +25,7 @@ export function namedWrites(o: Record<string, any>, io: CliIo): Pick<RunRequest,
   }
   const folders: RunRequest['folders'] = [];
   if (o.uvMaps) folders.push({ option: '--uv-maps', path: path.resolve(io.cwd, o.uvMaps), mayWrite: (name) => name.toLowerCase().endsWith('.svg') });
+  if (o.views) folders.push({ option: '--views', path: path.resolve(io.cwd, o.views), mayWrite: (name) => name.toLowerCase().endsWith('.png') });
   return { files, folders };
 }
 
@@ -81,7 +83,11 @@ export class PictureOutputs {
     this.dir = o.uvMaps ? path.resolve(io.cwd, o.uvMaps) : null;
     this.forHtml = !!o.html;
     this.wanted = this.dir !== null || this.forHtml;
+    this.views = new ViewOutputs(o, io, plan);
   }
+
+  /** The view sheets of --views (and their copies for --html). */
+  readonly views: ViewOutputs;
 
   /** Takes the pictures of one file (call in job order so names and the page are deterministic). */
   take(pictures: UvPicture[]): void {
@@ -132,6 +138,85 @@ export class PictureOutputs {
    */
   async finish(): Promise<{ written: number; failed: number }> {
     await Promise.all(this.writes);
+    const v = await this.views.finish();
+    return { written: this.written + v.written, failed: this.failures + v.failed };
+  }
+}
+
+/**
+ * PNG bytes of view sheets one HTML page embeds in all; later sheets are left out of the page
+ * (with a note; --views still has them). A choice of ours: 16 MiB, 40 sheets at the page's
+ * per-sheet budget (PAGE_SHEET_BYTES), about 21 MiB of base64 text.
+ */
+export const HTML_VIEW_BYTES = 16 * 2 ** 20;
+
+/**
+ * Receives the view sheets of each file as the batch goes (in job order): writes each full
+ * sheet as a PNG under --views (through the plan's late guard, atomically) and keeps the
+ * page's copy for --html within HTML_VIEW_BYTES. Notes of a sheet go to stderr, one line each.
+ */
+export class ViewOutputs {
+  /** --views was given. */
+  readonly wanted: boolean;
+  /** What the HTML page shows, in job order. */
+  readonly html: HtmlView[] = [];
+  private readonly dir: string | null;
+  private readonly forHtml: boolean;
+  private readonly option: string;
+  private readonly names = new Set<string>();
+  private readonly writes: Promise<void>[] = [];
+  private pageBytes = 0;
+  private written = 0;
+  private failures = 0;
+
+  /** `pageBudget`: the page's budget of sheet bytes (tests pass a small one); `plan`: the run's write plan. */
+  constructor(o: Record<string, any>, private readonly io: CliIo, private readonly plan: WritePlan | null = null, private readonly pageBudget: number = HTML_VIEW_BYTES) {
+    this.dir = o.views ? path.resolve(io.cwd, o.views) : null;
+    this.option = `--views ${o.views}`;
+    this.wanted = this.dir !== null;
+    this.forHtml = this.wanted && !!o.html;
+  }
+
+  /** What the jobs are to render: the full sheet, and the page's copy when --html is given too. */
+  wants(): { sheet: boolean; page: boolean } | undefined {
+    return this.wanted ? { sheet: true, page: this.forHtml } : undefined;
+  }
+
+  /** Takes one file's sheets (call in job order so names and the page are deterministic). */
+  take(v: ViewSheet | null): void {
+    if (!v || !this.wanted) return;
+    for (const note of v.notes) this.io.stderr(`tanframe: ${cleanText(v.input)}: --views: ${cleanText(note)}\n`);
+    if (this.dir && v.sheet) {
+      let name = viewFileName(v.input);
+      for (let k = 2; this.names.has(name); k++) name = viewFileName(v.input).replace(/\.png$/, `~${k}.png`);
+      this.names.add(name);
+      const file = path.join(this.dir, name);
+      const bytes = v.sheet;
+      this.writes.push((async () => {
+        try {
+          const target = this.plan ? this.plan.check(file, `${this.option}: ${this.plan.shown(file)}`) : file;
+          await writeFilesAtomic([{ path: target, bytes }]);
+          this.written++;
+        } catch (err) {
+          this.failures++;
+          if (this.failures === 1 || !/cannot write/.test(String((err as Error)?.message))) writeFailure(this.io, this.option, err);
+        }
+      })());
+    }
+    if (!this.forHtml) return;
+    if (!v.page) {
+      this.html.push({ input: v.input, png: null, omitted: v.pageOmitted ?? 'not drawn' });
+    } else if (this.pageBytes + v.page.length > this.pageBudget) {
+      this.html.push({ input: v.input, png: null, omitted: `the page embeds at most ${this.pageBudget.toLocaleString('en-US')} bytes of sheets; see --views` });
+    } else {
+      this.pageBytes += v.page.length;
+      this.html.push({ input: v.input, png: v.page });
+    }
+  }
+
+  /** Waits for the PNG files; returns how many were written and how many failed. */
+  async finish(): Promise<{ written: number; failed: number }> {
+    await Promise.all(this.writes);
     return { written: this.written, failed: this.failures };
   }
 }
@@ -157,6 +242,6 @@ export async function writeNamedFile(option: string, file: string, text: string,
 export async function writeReportFiles(report: Report, o: Record<string, any>, io: CliIo, pictures: PictureOutputs, planned?: Map<string, string>): Promise<number> {
   let failed = 0;
   if (o.junit) failed += await writeNamedFile('--junit', o.junit, renderJunit(report), io, planned);
-  if (o.html) failed += await writeNamedFile('--html', o.html, renderHtml(report, pictures.html), io, planned);
+  if (o.html) failed += await writeNamedFile('--html', o.html, renderHtml(report, pictures.html, pictures.views.html), io, planned);
   return failed;
 }

@@ -6,6 +6,7 @@ import { processFileOutcome, type FileJob, type FileOutcome } from '../lib/proce
 import type { ProcessOptions } from '../lib/options.js';
 import type { FileReport } from '../report/types.js';
 import type { UvPicture } from '../report/uvPicture.js';
+import type { ViewSheet } from '../lib/viewSheets.js';
 import { defaultWorkerScript, runInWorkers } from './pool.js';
 
 /** How to run a batch. */
@@ -19,8 +20,8 @@ export interface RunSettings {
   fileTimeoutMs?: number;
   /** The worker script (default: defaultWorkerScript()). */
   workerScript?: URL;
-  /** Receives each file's pictures, in job order (whatever order the files finish in). */
-  onPictures?: (index: number, pictures: UvPicture[]) => void;
+  /** Receives each file's pictures and view sheets, in job order (whatever order the files finish in). */
+  onPictures?: (index: number, pictures: UvPicture[], views: ViewSheet | null) => void;
   /** Receives each job's whole outcome, in completion order. */
   onOutcome?: (index: number, outcome: FileOutcome) => void;
   /** Called after each file, in completion order, with the count done so far and the file's report. */
@@ -37,7 +38,7 @@ export async function runFiles(jobs: FileJob[], options: ProcessOptions, setting
   const s: RunSettings = typeof settings === 'number' ? { threads: settings } : settings;
   const reports: FileReport[] = new Array(jobs.length);
   // Pictures wait here until every earlier job has given its own, then go out in job order.
-  const waiting: (UvPicture[] | undefined)[] = new Array(jobs.length);
+  const waiting: (FileOutcome | undefined)[] = new Array(jobs.length);
   let released = 0;
   let done = 0;
   const take = (index: number, outcome: FileOutcome) => {
@@ -46,11 +47,11 @@ export async function runFiles(jobs: FileJob[], options: ProcessOptions, setting
     done++;
     s.onProgress?.(done, jobs.length, outcome.report.input, outcome.report);
     if (!s.onPictures) return;
-    waiting[index] = outcome.pictures;
+    waiting[index] = outcome;
     while (released < jobs.length && waiting[released] !== undefined) {
-      const pictures = waiting[released]!;
+      const ready = waiting[released]!;
       waiting[released] = undefined;
-      s.onPictures(released, pictures);
+      s.onPictures(released, ready.pictures, ready.views ?? null);
       released++;
     }
   };

@@ -118,6 +118,7 @@ export function addSharedOptions(cmd: Command): Command {
     .option('--junit <file>', 'write a JUnit XML file: one test case per input file')
     .option('--html <file>', 'write one self-contained HTML page: summary, per-file tables, UV pictures')
     .option('--uv-maps <dir>', 'write one SVG picture of the UV layout per primitive with findings')
+    .option('--views <dir>', 'write one PNG sheet of the shaded model per file with findings (as render makes it); --html embeds them')
     .option('--jobs <n>', 'worker threads (default: available cores; 1 runs in-process)', intArg(1))
     .option('--shard <k/n>', 'process only the k-th of n slices of the sorted input list', shardArg)
     .option('--json', 'print the JSON report on stdout instead of the summary', false)

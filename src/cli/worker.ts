@@ -7,6 +7,7 @@ import { parentPort } from 'node:worker_threads';
 import { processFileOutcome, toReportError, type FileJob, type FileOutcome } from '../lib/processFile.js';
 import type { ProcessOptions } from '../lib/options.js';
 import { pictureBuffers } from '../report/uvPicture.js';
+import { viewBuffers } from '../lib/viewSheets.js';
 
 /** A message from the pool: process job `id`. */
 export interface WorkerRequest {
@@ -38,7 +39,7 @@ if (port) {
       };
     }
     const answer: WorkerAnswer = { id: msg.id, outcome };
-    port.postMessage(answer, pictureBuffers(outcome.pictures));
+    port.postMessage(answer, [...pictureBuffers(outcome.pictures), ...viewBuffers(outcome.views)]);
   });
   // Every module loaded: the pool may send jobs.
   port.postMessage({ ready: true });

@@ -16,6 +16,8 @@ import { readObj, readObjBytes } from '../io/objRead.js';
 import { memoryResources, type AssetResources } from '../io/resources.js';
 import type { FileReport } from '../report/types.js';
 import type { UvPicture } from '../report/uvPicture.js';
+import { hasFindings } from './pictures.js';
+import { renderViewSheets, type ViewSheet, type ViewWants } from './viewSheets.js';
 import { referencedFiles, unchangedOutputs } from './assetFiles.js';
 import { planCompression, type PrimitiveCompression } from './compression.js';
 import { recordParts, type RecordParts } from './runState.js';
@@ -41,6 +43,8 @@ export interface FileJob {
   displayOutput: string | null;
   /** Also return UV picture data for primitives with findings (--uv-maps, --html). */
   pictures?: boolean;
+  /** Also render view sheets when the file has findings (--views; the page's copy with --html too). */
+  views?: ViewWants;
   /** This file's own options (config overrides), replacing the batch's; absent: the batch's. */
   options?: ProcessOptions;
   /** Gates a config waiver lets through for this file, each with its reason. */
@@ -55,6 +59,8 @@ export interface FileJob {
 export interface FileOutcome {
   report: FileReport;
   pictures: UvPicture[];
+  /** The file's view sheets, when the job asked for them and the file has findings. */
+  views?: ViewSheet | null;
   /** What the state records, when the job asked for it and the bake wrote its outputs. */
   record?: RecordParts;
 }
@@ -200,6 +206,7 @@ export async function processFileOutcome(job: FileJob, batchOptions: ProcessOpti
     seconds: 0,
   };
   let pictures: UvPicture[] = [];
+  let views: ViewSheet | null = null;
   let record: RecordParts | undefined;
   try {
     const inputHash = job.record && job.output && !job.dryRun ? await hashWithStamp(job.input) : null;
@@ -211,6 +218,15 @@ export async function processFileOutcome(job: FileJob, batchOptions: ProcessOpti
     pictures = solved.pictures;
     for (const p of pictures) p.input = job.displayInput;
     applyGates(report, options, job.waivers ?? []);
+    if (job.views && (job.views.sheet || job.views.page) && report.primitives.some((p) => p.action !== 'skipped' && hasFindings(p))) {
+      try {
+        views = await renderViewSheets(asset, options, job.views);
+      } catch (err) {
+        // A sheet that cannot be drawn is told beside the others; the file's report stands.
+        views = { input: '', sheet: null, page: null, notes: [`view sheet could not be drawn: ${String((err as Error)?.message ?? err).split('\n')[0]}`], pageOmitted: 'could not be drawn' };
+      }
+      views.input = job.displayInput;
+    }
     if (job.command === 'bake' && job.output) {
       const format = outputFormat(asset.container, job.format);
       const w = job.writes;
@@ -250,8 +266,12 @@ export async function processFileOutcome(job: FileJob, batchOptions: ProcessOpti
     report.waived = [];
     report.notes = [];
     pictures = [];
+    views = null;
     record = undefined;
   }
   report.seconds = (performance.now() - started) / 1000;
-  return record ? { report, pictures, record } : { report, pictures };
+  const outcome: FileOutcome = { report, pictures };
+  if (views) outcome.views = views;
+  if (record) outcome.record = record;
+  return outcome;
 }

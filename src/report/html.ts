@@ -1,8 +1,9 @@
 /**
  * Based on: the HTML Living Standard (WHATWG) for a self-contained document (inline <style>,
  * inline <svg>). The report page of `--html`: the summary, an overview of every file, then a
- * section per file with findings (its primitives' table, first triangle indices, UV pictures).
- * No script, no external reference of any kind: it opens from a CI artifact store offline.
+ * section per file with findings (its primitives' table, first triangle indices, its view sheet
+ * and UV pictures). No script, no external reference of any kind (images are data: URIs): it
+ * opens from a CI artifact store offline.
  */
 import { ADVICE, NOTES_ADVICE } from './advice.js';
 import { filesWorstFirst, gateLine, notesText, primitivesWorstFirst, severity, skippedLine } from './summary.js';
@@ -17,6 +18,20 @@ export interface HtmlPicture {
   /** Inline SVG markup (from renderUvMapSvg), or null when `omitted` says why there is none. */
   svg: string | null;
   omitted?: string;
+}
+
+/** One file's view sheet for the page: PNG bytes (embedded as a data: URI), or why there is none. */
+export interface HtmlView {
+  input: string;
+  png: Uint8Array | null;
+  omitted?: string;
+}
+
+/** Base64 of bytes (RFC 4648, section 4), through the global btoa of browsers and Node.js. */
+function base64(bytes: Uint8Array): string {
+  let s = '';
+  for (let i = 0; i < bytes.length; i += 0x8000) s += String.fromCharCode(...bytes.subarray(i, i + 0x8000));
+  return btoa(s);
 }
 
 /** Triangle indices listed per finding on the page. */
@@ -82,6 +97,8 @@ section.file .scroll { margin-top: 12px; }
 .pictures { display: flex; flex-wrap: wrap; gap: 16px; margin-top: 14px; }
 figure { margin: 0; }
 figure svg { display: block; max-width: min(100%, 560px); height: auto; border: 1px solid var(--line); border-radius: 4px; }
+figure.view { flex-basis: 100%; }
+figure.view img { display: block; max-width: 100%; height: auto; border: 1px solid var(--line); border-radius: 4px; background: #fff; }
 figcaption { color: var(--muted); font-size: 12px; margin-top: 4px; }
 .note { color: var(--muted); font-size: 12px; }
 a { color: var(--accent); }
@@ -213,7 +230,7 @@ function fileDetails(f: FileReport): string {
   return out.join('\n');
 }
 
-function fileSection(f: FileReport, anchor: string, pictures: HtmlPicture[]): string {
+function fileSection(f: FileReport, anchor: string, pictures: HtmlPicture[], view: HtmlView | undefined): string {
   const status = statusOf(f);
   const pills = [`<span class="pill ${status}">${status}</span>`, ...f.gates.map((g) => `<span class="pill gate">${h(g)}</span>`)];
   const parts = [`<section class="file sev-${severity(f)}" id="${anchor}" data-input="${h(f.input)}">`, `<h2>${h(f.input)}${pills.join('')}</h2>`];
@@ -230,8 +247,16 @@ function fileSection(f: FileReport, anchor: string, pictures: HtmlPicture[]): st
   }
   for (const w of f.warnings) parts.push(`<div class="note">warning: ${h(w)}</div>`);
   for (const note of f.notes ?? []) parts.push(`<div class="note">note: ${h(note)}</div>`);
-  if (pictures.length) {
+  if (pictures.length || view) {
     parts.push('<div class="pictures">');
+    if (view?.png) {
+      parts.push(
+        `<figure class="view" data-view="${h(f.input)}"><img alt="${h(`Views of ${f.input}: shaded, tangent mismatch and findings`)}" src="data:image/png;base64,${base64(view.png)}">` +
+          '<figcaption>the model from the front, right, back and left: shaded with the baked frames, tangent mismatch, findings</figcaption></figure>',
+      );
+    } else if (view) {
+      parts.push(`<div class="note">view sheet left out (${h(view.omitted ?? 'not drawn')})</div>`);
+    }
     for (const pic of pictures) {
       if (pic.svg) {
         parts.push(`<figure data-picture="m${pic.mesh}p${pic.primitive}">${pic.svg}<figcaption>UV layout, mesh ${pic.mesh} primitive ${pic.primitive}</figcaption></figure>`);
@@ -246,10 +271,10 @@ function fileSection(f: FileReport, anchor: string, pictures: HtmlPicture[]): st
 }
 
 /**
- * Renders the report page. `pictures` are matched to files by `input`; files are shown worst
- * first. Same inputs, same text (no clock, no randomness).
+ * Renders the report page. `pictures` (UV pictures) and `views` (view sheets) are matched to
+ * files by `input`; files are shown worst first. Same inputs, same text (no clock, no randomness).
  */
-export function renderHtml(report: Report, pictures: HtmlPicture[]): string {
+export function renderHtml(report: Report, pictures: HtmlPicture[], views: HtmlView[] = []): string {
   const s = report.summary;
   const files = filesWorstFirst(report.files);
   const gated = s.gated ?? report.files.filter((f) => f.gates.length > 0).length;
@@ -295,7 +320,9 @@ export function renderHtml(report: Report, pictures: HtmlPicture[]): string {
       `<td>${n(sum((p) => p.mirroredTriangles))}</td><td>${n(sum((p) => p.stackedShells?.count ?? 0))}</td></tr>`
     );
   });
-  const sections = files.filter((f) => severity(f) > 0).map((f) => fileSection(f, anchors.get(f)!, byInput.get(f.input) ?? []));
+  const viewOf = new Map<string, HtmlView>();
+  for (const v of views) viewOf.set(v.input, v);
+  const sections = files.filter((f) => severity(f) > 0).map((f) => fileSection(f, anchors.get(f)!, byInput.get(f.input) ?? [], viewOf.get(f.input)));
   return `<!doctype html>
 <html lang="en">
 <head>

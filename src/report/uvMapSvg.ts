@@ -256,6 +256,20 @@ export function renderUvMapSvg(p: UvPicture, options: UvMapSvgOptions = {}): str
  * `assets_crate.gltf__m0p1.svg` (the caller adds a `~2` suffix when two names meet).
  */
 export function pictureFileName(input: string, mesh: number, primitive: number): string {
+  return `${flatName(input)}__m${mesh}p${primitive}.svg`;
+}
+
+/** The report's path of a file flattened into one file name (see pictureFileName). */
+function flatName(input: string): string {
   const parts = input.split(/[\\/]+/).filter((s) => s !== '' && s !== '.' && s !== '..').map((s) => s.replace(/[^A-Za-z0-9._-]/g, '-'));
-  return `${parts.join('_') || 'input'}__m${mesh}p${primitive}.svg`;
+  return parts.join('_') || 'input';
+}
+
+/**
+ * The file name of a file's view sheet under --views: its path flattened as pictureFileName
+ * does, then `.png`. Example: `props/crate.gltf` -> `props_crate.gltf.png` (the caller adds
+ * `~2` before `.png` when two names meet).
+ */
+export function viewFileName(input: string): string {
+  return `${flatName(input)}.png`;
 }
