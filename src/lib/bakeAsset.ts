@@ -21,7 +21,7 @@ import {
 import type { PrimitiveReport } from '../report/types.js';
 import type { UvPicture } from '../report/uvPicture.js';
 import { diagnosePrimitive } from './diagnosePrimitive.js';
-import { normalMapBackground, type BackgroundCache } from './pictureBackground.js';
+import { normalMapBackground, type BackgroundCache, type JpegDecode } from './pictureBackground.js';
 import { buildUvPicture, hasFindings } from './pictures.js';
 import { tangentNeedOf } from './material.js';
 import { morphTangentDelta, type MorphBase } from './morphTangents.js';
@@ -310,7 +310,7 @@ export function solvePrimitive(
  * for primitives whose geometry changes and, with `pictures` true, the UV picture data of
  * the primitives with findings.
  */
-export function solveAsset(asset: Asset, options: ProcessOptions, pictures = false): AssetSolve {
+export function solveAsset(asset: Asset, options: ProcessOptions, pictures = false, jpeg: JpegDecode | null = null): AssetSolve {
   const primitives: PrimitiveReport[] = [];
   const replacements = new Map<number, PrimitiveReplacement>();
   const shown: UvPicture[] = [];
@@ -331,7 +331,7 @@ export function solveAsset(asset: Asset, options: ProcessOptions, pictures = fal
     const replacement = earlier ? earlier.replacement : r.replacement;
     if (replacement) replacements.set(i, replacement);
     if (r.picture) {
-      const b = normalMapBackground(asset, p.material, r.picture.uvSet, backgrounds);
+      const b = normalMapBackground(asset, p.material, r.picture.uvSet, backgrounds, jpeg);
       r.picture.background = b.background;
       r.picture.backgroundNote = b.note;
       shown.push(r.picture);

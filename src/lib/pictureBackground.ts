@@ -67,12 +67,35 @@ function imageBytes(asset: Asset, index: number): Uint8Array | string {
   return ext?.bytes ?? 'the normal map image was not found';
 }
 
-function shrink(bytes: Uint8Array): { png: Uint8Array; width: number; height: number } | string {
+/** A JPEG decoder (jpeg-js's `decode`, loaded by the caller), RGBA 8-bit out. */
+export type JpegDecode = (bytes: Uint8Array, opts: { useTArray: true; formatAsRGBA: true; maxResolutionInMP: number; maxMemoryUsageInMB: number }) => { width: number; height: number; data: Uint8Array };
+
+/** Most texels of a normal map decoded for a picture (4096 x 4096); a larger one is not drawn. A choice of ours. */
+export const MAX_BACKGROUND_TEXELS = 4096 * 4096;
+
+/** Width and height from a PNG's IHDR (PNG specification, 11.2.2: bytes 16-23, big-endian), or null. */
+function pngSize(bytes: Uint8Array): [number, number] | null {
+  if (bytes.length < 24) return null;
+  const dv = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  return [dv.getUint32(16), dv.getUint32(20)];
+}
+
+function shrink(bytes: Uint8Array, jpeg: JpegDecode | null): { png: Uint8Array; width: number; height: number } | string {
   const kind = detectImageKind(bytes);
-  if (kind !== 'png') return `${kind === 'unknown' ? 'an unrecognised' : `a ${kind.toUpperCase()}`} normal map is not drawn behind the layout (PNG only)`;
-  let image;
+  if (kind === 'jpeg' && !jpeg) return 'a JPEG normal map is not drawn behind the layout here (no JPEG decoder given)';
+  if (kind !== 'png' && kind !== 'jpeg') {
+    return `${kind === 'unknown' ? 'an unrecognised' : `a ${kind.toUpperCase()}`} normal map is not drawn behind the layout (PNG and JPEG only)`;
+  }
+  let image: { width: number; height: number; channels: number; data: Uint8Array | Uint16Array };
   try {
-    image = decodePng(bytes);
+    if (kind === 'png') {
+      const size = pngSize(bytes);
+      if (size && size[0] * size[1] > MAX_BACKGROUND_TEXELS) return `the normal map (${size[0]} x ${size[1]}) is too large to draw behind the layout`;
+      image = decodePng(bytes);
+    } else {
+      const d = jpeg!(bytes, { useTArray: true, formatAsRGBA: true, maxResolutionInMP: MAX_BACKGROUND_TEXELS / 1e6, maxMemoryUsageInMB: 256 });
+      image = { width: d.width, height: d.height, channels: 4, data: d.data };
+    }
   } catch {
     return 'the normal map could not be decoded';
   }
@@ -84,11 +107,12 @@ function shrink(bytes: Uint8Array): { png: Uint8Array; width: number; height: nu
 /**
  * The normal map of material `material` as a picture background for UV set `uvSet`: null
  * with a null note when the material has no normal map; null with a note (one line, our
- * wording) when it cannot be drawn (another UV set, a missing or non-PNG image). The PNG
+ * wording) when it cannot be drawn (another UV set, a missing image, a format other than PNG,
+ * or JPEG without `jpeg`, the decoder the caller loaded). The PNG
  * bytes are a fresh copy per call (each picture owns its buffers, for transfer between
  * threads); the decode is shared through `cache`.
  */
-export function normalMapBackground(asset: Asset, material: number | null, uvSet: number, cache: BackgroundCache): BackgroundResult {
+export function normalMapBackground(asset: Asset, material: number | null, uvSet: number, cache: BackgroundCache, jpeg: JpegDecode | null = null): BackgroundResult {
   const info = normalTextureInfo(asset.json, material);
   if (!info) return { background: null, note: null };
   const transformExt = info.extensions?.KHR_texture_transform;
@@ -100,7 +124,7 @@ export function normalMapBackground(asset: Asset, material: number | null, uvSet
   let shrunk = cache.get(source);
   if (shrunk === undefined) {
     const bytes = imageBytes(asset, source);
-    shrunk = typeof bytes === 'string' ? bytes : shrink(bytes);
+    shrunk = typeof bytes === 'string' ? bytes : shrink(bytes, jpeg);
     cache.set(source, shrunk);
   }
   if (typeof shrunk === 'string') return { background: null, note: shrunk };

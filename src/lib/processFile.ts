@@ -18,6 +18,7 @@ import type { FileReport } from '../report/types.js';
 import type { UvPicture } from '../report/uvPicture.js';
 import { hasFindings } from './pictures.js';
 import { renderViewSheets, type ViewSheet, type ViewWants } from './viewSheets.js';
+import type { JpegDecode } from './pictureBackground.js';
 import { referencedFiles, unchangedOutputs } from './assetFiles.js';
 import { planCompression, type PrimitiveCompression } from './compression.js';
 import { recordParts, type RecordParts } from './runState.js';
@@ -213,7 +214,9 @@ export async function processFileOutcome(job: FileJob, batchOptions: ProcessOpti
     const asset = await readAsset(job.input, { maxTriangles: options.maxTriangles });
     report.warnings = capWarnings(asset.warnings).map((w) => quoteText(w, MAX_MESSAGE_LENGTH));
     if (job.command === 'audit') for (const ext of asset.decompressed ?? []) report.notes.push(`decompressed ${ext}`);
-    const solved = solveAsset(asset, options, !!job.pictures);
+    // JPEG normal maps behind UV pictures: the decoder is loaded only when pictures are wanted.
+    const jpeg = job.pictures ? ((await import('jpeg-js')).default.decode as unknown as JpegDecode) : null;
+    const solved = solveAsset(asset, options, !!job.pictures, jpeg);
     report.primitives = solved.primitives;
     pictures = solved.pictures;
     for (const p of pictures) p.input = job.displayInput;

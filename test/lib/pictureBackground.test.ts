@@ -26,6 +26,30 @@ async function quadAsset(image: any, info: any = { index: 0 }, sampler?: any) {
 }
 
 describe('normalMapBackground', () => {
+  it('decodesAJpegMapWithTheDecoderItIsGiven', async () => {
+    // A flat 16 x 16 JPEG (128, 128, 255), written by jpeg-js's own encoder; JPEG is lossy, so
+    // the shrunk copy is compared within 3 levels.
+    const jpegJs = (await import('jpeg-js')).default;
+    const px = new Uint8Array(16 * 16 * 4);
+    for (let i = 0; i < 256; i++) px.set([128, 128, 255, 255], i * 4);
+    const bytes = jpegJs.encode({ data: px, width: 16, height: 16 }, 95).data;
+    const asset = await quadAsset({ uri: `data:image/jpeg;base64,${Buffer.from(bytes).toString('base64')}` });
+    const r = normalMapBackground(asset, 0, 0, new Map(), jpegJs.decode as any);
+    expect(r.note).toBeNull();
+    const img = decodePng(r.background!.png);
+    expect([img.width, img.height]).toEqual([16, 16]);
+    for (const [k, want] of [[0, 128], [1, 128], [2, 255]]) expect(Math.abs(img.data[40 * 3 + k] - want)).toBeLessThanOrEqual(3);
+  });
+
+  it('leavesOutAMapTooLargeToDecodeForAPicture', async () => {
+    // Only the header is read: a PNG whose IHDR says 8192 x 4096 (PNG specification, 11.2.2).
+    const png = mapPng(2, 2);
+    new DataView(png.buffer, png.byteOffset).setUint32(16, 8192);
+    new DataView(png.buffer, png.byteOffset).setUint32(20, 4096);
+    const r = normalMapBackground(await quadAsset({ uri: `data:image/png;base64,${Buffer.from(png).toString('base64')}` }), 0, 0, new Map());
+    expect(r).toEqual({ background: null, note: 'the normal map (8192 x 4096) is too large to draw behind the layout' });
+  });
+
   it('shrinksADataUriMapAndKeepsItsColours', async () => {
     const png = mapPng(2 * PICTURE_BACKGROUND_SIDE, PICTURE_BACKGROUND_SIDE);
     const asset = await quadAsset({ uri: `data:image/png;base64,${Buffer.from(png).toString('base64')}` });
@@ -74,11 +98,14 @@ describe('normalMapBackground', () => {
     // The map samples TEXCOORD_1 while the picture shows TEXCOORD_0.
     expect((normalMapBackground(await quadAsset({ uri }, { index: 0, texCoord: 1 }), 0, 0, new Map())).note)
       .toBe('the normal map samples TEXCOORD_1, not this set; it is not drawn');
-    // JPEG bytes (the format's signature FF D8 FF, from memory) are named, not decoded.
+    // JPEG bytes (the format's signature FF D8 FF, from memory) without a decoder are named, not decoded.
     const jpeg = `data:image/jpeg;base64,${Buffer.from([0xff, 0xd8, 0xff, 0xe0, 0, 16]).toString('base64')}`;
     const j = normalMapBackground(await quadAsset({ uri: jpeg }), 0, 0, new Map());
     expect(j.background).toBeNull();
-    expect(j.note).toBe('a JPEG normal map is not drawn behind the layout (PNG only)');
+    expect(j.note).toBe('a JPEG normal map is not drawn behind the layout here (no JPEG decoder given)');
+    // A GIF (signature "GIF8", from memory) is not one of glTF's image formats.
+    const gif = `data:image/gif;base64,${Buffer.from('GIF89a\x01\x00').toString('base64')}`;
+    expect(normalMapBackground(await quadAsset({ uri: gif }), 0, 0, new Map()).note).toBe('a GIF normal map is not drawn behind the layout (PNG and JPEG only)');
     // No normal texture at all: nothing to say.
     expect(normalMapBackground(await quadAsset({ uri }), null, 0, new Map())).toEqual({ background: null, note: null });
   });
