@@ -11,6 +11,8 @@ export type { Asset, AttributeData, ComponentArray, ExternalImage, MeshoptViewRe
 export type { UvTransform } from './mesh/uvTransform.js';
 export { readAsset, readAssetBytes, processFile, processFileOutcome, outputFormat, type FileJob, type FileOutcome } from './lib/processFile.js';
 export { solveAsset, solvePrimitive, type AssetSolve, type SolvedSurface } from './lib/bakeAsset.js';
+export { normalMapBackground, type BackgroundCache, type BackgroundResult, type JpegDecode } from './lib/pictureBackground.js';
+export { renderViewSheets, type ViewSheet, type ViewWants } from './lib/viewSheets.js';
 export { createCompactScratch, type CompactScratch } from './mesh/compact.js';
 export { defaultProcessOptions, GATE_NAMES, COMPRESSION_MODES, type CompressionMode, type GateLimit, type GateName, type ProcessOptions } from './lib/options.js';
 export { planCompression, compressionIn, DRACO_DEFAULT_BITS, type CompressionKind, type CompressionPlan, type PrimitiveCompression } from './lib/compression.js';
@@ -31,7 +33,7 @@ export { type Stamp } from './lib/stampCache.js';
 export { buildReport, summarize } from './report/json.js';
 export { renderSummary, type SummaryStyle } from './report/summary.js';
 export { renderJunit } from './report/junit.js';
-export { renderHtml, type HtmlPicture } from './report/html.js';
+export { renderHtml, type HtmlPicture, type HtmlView } from './report/html.js';
 export { renderUvMapSvg, pictureFileName, type UvMapSvgOptions } from './report/uvMapSvg.js';
 export type { PictureBackground, UvPicture } from './report/uvPicture.js';
 export type { Report, FileReport, GateFigure, PrimitiveReport, ReportSummary, StoredTangentReport, TriangleFinding, VertexFindingReport } from './report/types.js';
