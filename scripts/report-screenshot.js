@@ -18,15 +18,15 @@ const page = path.join(repo, 'out', 'harbor-props-report.html');
 const shot = path.join(repo, 'docs', 'audit-report.png');
 const run = spawnSync(process.execPath, [
   path.join(repo, 'bin', 'tanframe.js'), 'audit', 'examples/harbor-props',
-  '--fail-on', 'degenerate-uv', '--html', path.relative(repo, page), '--quiet', '--jobs', '1',
+  '--fail-on', 'degenerate-uv', '--html', path.relative(repo, page), '--views', 'out/harbor-props-views', '--quiet', '--jobs', '1',
 ], { cwd: repo, stdio: 'inherit' });
 if (run.status !== 1) throw new Error(`expected the demo audit to trip its gate (exit 1), got ${run.status}`);
 const browser = await chromium.launch({ executablePath: '/usr/bin/chromium', args: ['--no-sandbox'] });
 try {
-  const tab = await browser.newPage({ viewport: { width: 1040, height: 1280 }, deviceScaleFactor: 1 });
+  const tab = await browser.newPage({ viewport: { width: 1040, height: 2240 }, deviceScaleFactor: 1 });
   await tab.goto(pathToFileURL(page).href);
   fs.mkdirSync(path.dirname(shot), { recursive: true });
-  await tab.screenshot({ path: shot, clip: { x: 0, y: 0, width: 1040, height: 1280 } });
+  await tab.screenshot({ path: shot, clip: { x: 0, y: 0, width: 1040, height: 2240 } });
   console.log(`${path.relative(repo, shot)}: ${fs.statSync(shot).size} bytes`);
 } finally {
   await browser.close();
