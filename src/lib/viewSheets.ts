@@ -12,7 +12,8 @@ import { buildRenderScene, defaultRenderOptions, type RenderAssetOptions } from 
 
 /**
  * Pixels per side of one view in the sheet the HTML page embeds. A choice of ours: 4 views x 3
- * modes at 200 px make a sheet about 800 px wide, the width of the page's column.
+ * modes at 200 px and the legend column make a sheet 947 x 617 px, about the width of the
+ * page's column (1180 px less its padding), so it is shown near 1:1.
  */
 export const PAGE_VIEW_SIZE = 200;
 
