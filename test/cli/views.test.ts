@@ -4,6 +4,7 @@
 import * as fs from 'node:fs';
 import * as os from 'node:os';
 import * as path from 'node:path';
+import { pathToFileURL } from 'node:url';
 import { decode } from 'fast-png';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { runCli } from '../helpers/cli.js';
@@ -13,6 +14,10 @@ import { readAsset } from '../../src/lib/processFile.js';
 import { defaultProcessOptions } from '../../src/lib/options.js';
 import { PAGE_SHEET_BYTES, PAGE_VIEW_SIZE, renderViewSheets } from '../../src/lib/viewSheets.js';
 import { viewFileName } from '../../src/report/uvMapSvg.js';
+
+const CHROMIUM = '/usr/bin/chromium';
+const hasChromium = fs.existsSync(CHROMIUM);
+if (!hasChromium) console.warn(`SKIPPED (in part): ${CHROMIUM} is absent; the page with view sheets was not opened in a browser`);
 
 let tmp = '';
 beforeAll(async () => {
@@ -73,6 +78,30 @@ describe('--views', () => {
     // Without --views the page has no sheet.
     await runCli(['audit', 'assets', '--html', 'no-views.html', '--quiet'], tmp);
     expect(embeddedPngs(fs.readFileSync(path.join(tmp, 'no-views.html'), 'utf8'))).toEqual([]);
+  });
+
+  it.skipIf(!hasChromium)('showsTheEmbeddedSheetInABrowserLoadingNothingElse', async () => {
+    // Debian's chromium, headless through playwright-core (as test/report/html.test.ts).
+    const { chromium } = await import('playwright-core');
+    const browser = await chromium.launch({ executablePath: CHROMIUM, args: ['--no-sandbox'] });
+    try {
+      const tab = await browser.newPage({ viewport: { width: 1200, height: 900 } });
+      const requests: string[] = [];
+      tab.on('request', (req) => requests.push(req.url()));
+      const page = pathToFileURL(path.join(tmp, 'page.html')).href;
+      await tab.goto(page);
+      expect(requests.filter((u) => !u.startsWith('data:'))).toEqual([page]);
+      const img = await tab.locator('figure.view img').evaluate((e) => {
+        const i = e as HTMLImageElement;
+        return { complete: i.complete, w: i.naturalWidth, h: i.naturalHeight, shown: i.getBoundingClientRect().width };
+      });
+      // The page's copy decodes at its own size (render at PAGE_VIEW_SIZE) and is laid out.
+      const small = decode(fs.readFileSync(path.join(tmp, 'small.png')));
+      expect(img).toMatchObject({ complete: true, w: small.width, h: small.height });
+      expect(img.shown).toBeGreaterThan(400);
+    } finally {
+      await browser.close();
+    }
   });
 
   it('leavesASheetOverTheBudgetOutOfThePageWithANote', async () => {
