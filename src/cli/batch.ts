@@ -40,7 +40,7 @@ export async function runBatch(
   plan: WritePlan | null = null,
   onOutcome?: (index: number, outcome: FileOutcome) => void,
 ): Promise<{ reports: FileReport[]; pictures: PictureOutputs; writeFailures: number }> {
-  const pictures = new PictureOutputs(o, io, undefined, plan);
+  const pictures = await new PictureOutputs(o, io, undefined, plan).ready();
   const withPictures = pictures.wanted ? jobs.map((j) => ({ ...j, pictures: true })) : jobs;
   const bar = progressWanted(!!io.stderrIsTTY, io.env, o) && jobs.length > 0
     ? new ProgressBar(io.stderr, jobs.length, io.clock ? () => io.clock!.now() : undefined, io.stderrColumns)

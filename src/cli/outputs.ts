@@ -6,10 +6,8 @@ import * as path from 'node:path';
 import { writeFilesAtomic } from '../io/files.js';
 import { cleanText } from '../mesh/text.js';
 import type { RunRequest, WritePlan } from '../lib/writePlan.js';
-import { renderHtml, type HtmlPicture } from '../report/html.js';
-import { renderJunit } from '../report/junit.js';
+import type { HtmlPicture } from '../report/html.js';
 import type { Report } from '../report/types.js';
-import { pictureFileName, renderUvMapSvg } from '../report/uvMapSvg.js';
 import type { UvPicture } from '../report/uvPicture.js';
 import type { CliIo } from './shared.js';
 
@@ -58,6 +56,8 @@ export class PictureOutputs {
   private written = 0;
   private failures = 0;
   private readonly option: string;
+  /** The SVG renderer, loaded by ready() (only a run that draws pictures loads it). */
+  private svg: typeof import('../report/uvMapSvg.js') | null = null;
 
   /**
    * `htmlBudget`: the page's budget of drawn triangles (tests pass a small one). `plan`: the
@@ -71,8 +71,20 @@ export class PictureOutputs {
     this.wanted = this.dir !== null || this.forHtml;
   }
 
-  /** Takes the pictures of one file (call in job order so names and the page are deterministic). */
+  /** Loads what drawing needs when pictures are wanted; call before take(). Returns this. */
+  async ready(): Promise<this> {
+    if (this.wanted && !this.svg) this.svg = await import('../report/uvMapSvg.js');
+    return this;
+  }
+
+  /**
+   * Takes the pictures of one file (call in job order so names and the page are deterministic).
+   * Precondition: ready() has resolved.
+   */
   take(pictures: UvPicture[]): void {
+    if (pictures.length === 0) return;
+    if (!this.svg) throw new Error('PictureOutputs.take before ready()');
+    const { pictureFileName, renderUvMapSvg } = this.svg;
     for (const p of pictures) {
       let svg: string | null = null;
       if (this.dir) {
@@ -136,7 +148,8 @@ export async function writeNamedFile(option: string, file: string, text: string,
  */
 export async function writeReportFiles(report: Report, o: Record<string, any>, io: CliIo, pictures: PictureOutputs, planned?: Map<string, string>): Promise<number> {
   let failed = 0;
-  if (o.junit) failed += await writeNamedFile('--junit', o.junit, renderJunit(report), io, planned);
-  if (o.html) failed += await writeNamedFile('--html', o.html, renderHtml(report, pictures.html), io, planned);
+  // The renderers load only when their file is asked for.
+  if (o.junit) failed += await writeNamedFile('--junit', o.junit, (await import('../report/junit.js')).renderJunit(report), io, planned);
+  if (o.html) failed += await writeNamedFile('--html', o.html, (await import('../report/html.js')).renderHtml(report, pictures.html), io, planned);
   return failed;
 }
