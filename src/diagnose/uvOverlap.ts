@@ -165,6 +165,10 @@ export function findUvOverlaps(
   const maxEntries = ENTRIES_PER_TRIANGLE * usableCount;
   let cell = extentSum / usableCount;
   let nu = 1, nv = 1, inv = 1, entryCount = 0;
+  // Per usable triangle its cell range (first and last cell along u, then along v), and per
+  // cell its entry count at cellStart[c + 1], both from the pass that sizes the grid.
+  const range = new Uint32Array(triangleCount * 4);
+  let cellStart = new Uint32Array(0);
   for (;;) {
     nu = Math.max(1, Math.ceil(width / cell));
     nv = Math.max(1, Math.ceil(height / cell));
@@ -174,11 +178,14 @@ export function findUvOverlaps(
     }
     inv = 1 / cell;
     entryCount = 0;
+    cellStart = new Uint32Array(nu * nv + 1);
     for (let t = 0; t < triangleCount && entryCount <= maxEntries; t++) {
       if (!usable[t]) continue;
       const cu0 = cellOf(box[t * 4], minU, inv, nu), cu1 = cellOf(box[t * 4 + 2], minU, inv, nu);
       const cv0 = cellOf(box[t * 4 + 1], minV, inv, nv), cv1 = cellOf(box[t * 4 + 3], minV, inv, nv);
+      range[t * 4] = cu0; range[t * 4 + 1] = cu1; range[t * 4 + 2] = cv0; range[t * 4 + 3] = cv1;
       entryCount += (cu1 - cu0 + 1) * (cv1 - cv0 + 1);
+      for (let cv = cv0; cv <= cv1; cv++) for (let cu = cu0; cu <= cu1; cu++) cellStart[cv * nu + cu + 1]++;
     }
     // A single cell holds each usable triangle once, so this ends.
     if (entryCount <= maxEntries || (nu === 1 && nv === 1)) break;
@@ -186,34 +193,29 @@ export function findUvOverlaps(
   }
   const cellCount = nu * nv;
 
-  // Cell lists in compressed rows: count, prefix sums, fill.
-  const cellStart = new Uint32Array(cellCount + 1);
-  for (let t = 0; t < triangleCount; t++) {
-    if (!usable[t]) continue;
-    const cu0 = cellOf(box[t * 4], minU, inv, nu), cu1 = cellOf(box[t * 4 + 2], minU, inv, nu);
-    const cv0 = cellOf(box[t * 4 + 1], minV, inv, nv), cv1 = cellOf(box[t * 4 + 3], minV, inv, nv);
-    for (let cv = cv0; cv <= cv1; cv++) for (let cu = cu0; cu <= cu1; cu++) cellStart[cv * nu + cu + 1]++;
-  }
+  // Cell lists in compressed rows: prefix sums of the counts, fill.
   for (let c = 0; c < cellCount; c++) cellStart[c + 1] += cellStart[c];
   const entries = new Uint32Array(cellStart[cellCount]);
   const cursor = cellStart.slice(0, cellCount);
   for (let t = 0; t < triangleCount; t++) {
     if (!usable[t]) continue;
-    const cu0 = cellOf(box[t * 4], minU, inv, nu), cu1 = cellOf(box[t * 4 + 2], minU, inv, nu);
-    const cv0 = cellOf(box[t * 4 + 1], minV, inv, nv), cv1 = cellOf(box[t * 4 + 3], minV, inv, nv);
+    const cu0 = range[t * 4], cu1 = range[t * 4 + 1], cv0 = range[t * 4 + 2], cv1 = range[t * 4 + 3];
     for (let cv = cv0; cv <= cv1; cv++) for (let cu = cu0; cu <= cu1; cu++) entries[cursor[cv * nu + cu]++] = t;
   }
 
   // Pairs within each cell; a pair is tested only in the cell of the lower-left corner of
-  // the intersection of its bounding boxes, so once over the whole grid. A pair of two
-  // triangles already known to overlap something teaches nothing, so for an already-marked
-  // triangle only the cell's still-unmarked later entries are visited: `live` holds them,
-  // compacted as they get marked. Near-stacked copies (offset by a little, so not exact copies)
-  // all mark each other in the first pass, and the cell then costs its length, not its square.
+  // the intersection of its bounding boxes, so once over the whole grid. That corner's cell
+  // is (max of the two first cells along u, max along v), as cellOf is monotonic, and a
+  // triangle's first cell is never past the cell it is met in, so the test is "one of the two
+  // starts here" on each axis. A pair of two triangles already known to overlap something
+  // teaches nothing, so for an already-marked triangle only the cell's still-unmarked later
+  // entries are visited: `live` holds them, compacted as they get marked. Near-stacked copies
+  // (offset by a little, so not exact copies) all mark each other in the first pass, and the
+  // cell then costs its length, not its square.
   let maxRow = 0;
   for (let c = 0; c < cellCount; c++) if (cellStart[c + 1] - cellStart[c] > maxRow) maxRow = cellStart[c + 1] - cellStart[c];
   const live = new Uint32Array(maxRow);
-  const counts = new Float64Array(2); // exact tests, pairs visited
+  let exactTests = 0, cellPairs = 0;
   for (let c = 0; c < cellCount; c++) {
     const start = cellStart[c], end = cellStart[c + 1];
     if (end - start < 2) continue;
@@ -222,10 +224,17 @@ export function findUvOverlaps(
     for (let k = start; k < end; k++) live[liveN++] = k;
     for (let i = start; i < end - 1; i++) {
       const a = entries[i];
+      const aMinU = box[a * 4], aMinV = box[a * 4 + 1], aMaxU = box[a * 4 + 2], aMaxV = box[a * 4 + 3];
+      const aHereU = range[a * 4] === cu, aHereV = range[a * 4 + 2] === cv;
       let after = i; // entries at positions <= after have been paired with a
       if (flags[a] === 0) {
         for (let j = i + 1; j < end; j++) {
-          testPair(a, entries[j], flags, box, indices, uvs, minU, minV, inv, nu, nv, cu, cv, counts, touching, shell, stacked);
+          const b = entries[j];
+          cellPairs++;
+          // Boxes that only touch cannot overlap with positive area.
+          if (box[b * 4] >= aMaxU || aMinU >= box[b * 4 + 2] || box[b * 4 + 1] >= aMaxV || aMinV >= box[b * 4 + 3]) continue;
+          if (!((aHereU || range[b * 4] === cu) && (aHereV || range[b * 4 + 2] === cv))) continue;
+          exactTests += testPair(a, b, flags, indices, uvs, touching, shell, stacked);
           if (flags[a] !== 0) { after = j; break; }
         }
         if (flags[a] === 0) continue;
@@ -238,12 +247,15 @@ export function findUvOverlaps(
         const b = entries[pos];
         if (flags[b] !== 0) continue; // marked: dropped for good
         live[w++] = pos;
-        if (pos > after) testPair(a, b, flags, box, indices, uvs, minU, minV, inv, nu, nv, cu, cv, counts, touching, shell, stacked);
+        if (pos <= after) continue;
+        cellPairs++;
+        if (box[b * 4] >= aMaxU || aMinU >= box[b * 4 + 2] || box[b * 4 + 1] >= aMaxV || aMinV >= box[b * 4 + 3]) continue;
+        if (!((aHereU || range[b * 4] === cu) && (aHereV || range[b * 4 + 2] === cv))) continue;
+        exactTests += testPair(a, b, flags, indices, uvs, touching, shell, stacked);
       }
       liveN = w;
     }
   }
-  const exactTests = counts[0], cellPairs = counts[1];
   if (stats) { stats.cellsU = nu; stats.cellsV = nv; stats.cellPairs = cellPairs; stats.exactTests = exactTests; }
   if (copies > 0) {
     for (let t = 0; t < triangleCount; t++) {
@@ -341,43 +353,52 @@ function sameShellKey(k: ShellKeys, a: number, b: number): boolean {
 }
 
 /**
- * Tests one pair of grid triangles met in cell (cu, cv): skipped unless their boxes overlap,
- * this cell holds the lower-left corner of the boxes' intersection, and their UV points are
- * not the same three points; then the exact test, marking both when they overlap (or, when
- * they lie in two stacked shells, marking them stacked instead).
- * counts[0] += exact tests, counts[1] += pairs visited.
+ * Tests one pair of grid triangles whose boxes overlap and that are met in the cell of the
+ * lower-left corner of the boxes' intersection: skipped when their UV points are the same
+ * three points; else the exact test, marking both when they overlap (or, when they lie in two
+ * stacked shells, marking them stacked instead). Returns 1 when the exact test ran, else 0.
  */
 function testPair(
-  a: number, b: number, flags: Uint8Array, box: Float32Array, indices: Uint32Array, uvs: Float32Array,
-  minU: number, minV: number, inv: number, nu: number, nv: number, cu: number, cv: number, counts: Float64Array,
+  a: number, b: number, flags: Uint8Array, indices: Uint32Array, uvs: Float32Array,
   touching: number, shell: ShellKeys, stacked: Uint8Array | null,
-): void {
-  counts[1]++;
-  const aMinU = box[a * 4], aMinV = box[a * 4 + 1], aMaxU = box[a * 4 + 2], aMaxV = box[a * 4 + 3];
-  const bMinU = box[b * 4], bMinV = box[b * 4 + 1], bMaxU = box[b * 4 + 2], bMaxV = box[b * 4 + 3];
-  // Boxes that only touch cannot overlap with positive area.
-  if (bMinU >= aMaxU || aMinU >= bMaxU || bMinV >= aMaxV || aMinV >= bMaxV) return;
-  const ru = aMinU > bMinU ? aMinU : bMinU, rv = aMinV > bMinV ? aMinV : bMinV;
-  if (cellOf(ru, minU, inv, nu) !== cu || cellOf(rv, minV, inv, nv) !== cv) return;
+): number {
   const a0 = indices[a * 3] * 2, a1 = indices[a * 3 + 1] * 2, a2 = indices[a * 3 + 2] * 2;
   const au0 = uvs[a0], av0 = uvs[a0 + 1], au1 = uvs[a1], av1 = uvs[a1 + 1], au2 = uvs[a2], av2 = uvs[a2 + 1];
   const b0 = indices[b * 3] * 2, b1 = indices[b * 3 + 1] * 2, b2 = indices[b * 3 + 2] * 2;
   const bu0 = uvs[b0], bv0 = uvs[b0 + 1], bu1 = uvs[b1], bv1 = uvs[b1 + 1], bu2 = uvs[b2], bv2 = uvs[b2 + 1];
-  if (
-    hasPoint(au0, av0, bu0, bv0, bu1, bv1, bu2, bv2) &&
-    hasPoint(au1, av1, bu0, bv0, bu1, bv1, bu2, bv2) &&
-    hasPoint(au2, av2, bu0, bv0, bu1, bv1, bu2, bv2)
-  ) return; // coincident UV triangles: intentional stacking / mirroring
-  counts[0]++;
+  const m0 = hasPoint(au0, av0, bu0, bv0, bu1, bv1, bu2, bv2);
+  const m1 = hasPoint(au1, av1, bu0, bv0, bu1, bv1, bu2, bv2);
+  const m2 = hasPoint(au2, av2, bu0, bv0, bu1, bv1, bu2, bv2);
+  if (m0 && m1 && m2) return 0; // coincident UV triangles: intentional stacking / mirroring
+  // Neighbours across a shared UV edge (the usual pair): when the third points lie on opposite
+  // sides of it, that edge's normal separates them with depth exactly 0 (shared points project
+  // to exactly 0 relative to the edge's start), which is what the full test would find on that
+  // axis, so the answer is the same without the other five axes.
+  if (m0 ? m1 || m2 : m1 && m2) {
+    // A's edge p -> q in A's order, r its third corner.
+    let pu = au0, pv = av0, qu = au1, qv = av1, ru = au2, rv = av2;
+    if (!m0) { pu = au1; pv = av1; qu = au2; qv = av2; ru = au0; rv = av0; }
+    else if (!m1) { pu = au2; pv = av2; qu = au0; qv = av0; ru = au1; rv = av1; }
+    // B's corner that is neither p nor q.
+    let xu = bu0, xv = bv0;
+    if ((bu0 === pu && bv0 === pv) || (bu0 === qu && bv0 === qv)) {
+      if ((bu1 === pu && bv1 === pv) || (bu1 === qu && bv1 === qv)) { xu = bu2; xv = bv2; } else { xu = bu1; xv = bv1; }
+    }
+    const eu = qu - pu, ev = qv - pv;
+    const dr = -ev * (ru - pu) + eu * (rv - pv);
+    const dx = -ev * (xu - pu) + eu * (xv - pv);
+    if ((dr > 0 && dx < 0) || (dr < 0 && dx > 0)) return 1;
+  }
   if (trianglesOverlap(au0, av0, au1, av1, au2, av2, bu0, bv0, bu1, bv1, bu2, bv2, touching)) {
     // Two shells with the same UV points and area laid on one another: stacking, not overlap.
     if (sameShellKey(shell, a, b)) {
       if (stacked) { stacked[a] = 1; stacked[b] = 1; }
-      return;
+      return 1;
     }
     flags[a] = 1;
     flags[b] = 1;
   }
+  return 1;
 }
 
 /** Writes the UV points of triangle t into out[0..5], sorted by u then v. */
@@ -401,7 +422,10 @@ function stackedClasses(indices: Uint32Array, uvs: Float32Array, usable: Uint8Ar
   let size = 16;
   while (size < usableCount * 2) size <<= 1;
   const mask = size - 1;
+  // Per slot: the first triangle of a class and the full hash of its points, compared before
+  // the points themselves so a probe past another class costs one load.
   const table = new Uint32Array(size).fill(0xffffffff);
+  const hashes = new Uint32Array(size);
   const p = new Float64Array(6), q = new Float64Array(6);
   const bits = new Float32Array(1), word = new Uint32Array(bits.buffer);
   for (let t = 0; t < triangleCount; t++) {
@@ -413,14 +437,20 @@ function stackedClasses(indices: Uint32Array, uvs: Float32Array, usable: Uint8Ar
       h = Math.imul(h ^ word[0], 0x9e3779b1);
       h ^= h >>> 15;
     }
+    // Final mix, so the low bits the mask keeps depend on every bit of the points.
+    h = Math.imul(h ^ (h >>> 16), 0x85ebca6b);
+    h = Math.imul(h ^ (h >>> 13), 0xc2b2ae35);
+    h = (h ^ (h >>> 16)) >>> 0;
     let slot = h & mask;
     for (;;) {
       const r = table[slot];
-      if (r === 0xffffffff) { table[slot] = t; break; }
-      sortedPoints(q, indices, uvs, r);
-      if (p[0] === q[0] && p[1] === q[1] && p[2] === q[2] && p[3] === q[3] && p[4] === q[4] && p[5] === q[5]) {
-        classOf[t] = r;
-        break;
+      if (r === 0xffffffff) { table[slot] = t; hashes[slot] = h; break; }
+      if (hashes[slot] === h) {
+        sortedPoints(q, indices, uvs, r);
+        if (p[0] === q[0] && p[1] === q[1] && p[2] === q[2] && p[3] === q[3] && p[4] === q[4] && p[5] === q[5]) {
+          classOf[t] = r;
+          break;
+        }
       }
       slot = (slot + 1) & mask;
     }
