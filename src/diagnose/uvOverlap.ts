@@ -411,21 +411,24 @@ function sortedPoints(out: Float64Array, indices: Uint32Array, uvs: Float32Array
   out[0] = uvs[a]; out[1] = uvs[a + 1]; out[2] = uvs[b]; out[3] = uvs[b + 1]; out[4] = uvs[c]; out[5] = uvs[c + 1];
 }
 
+/** log2 of the buckets the exact-copy search sorts triangles into by the top bits of their hash. */
+const COPY_BUCKET_BITS = 8;
+
 /**
  * For each usable triangle, the first usable triangle with the same three UV points (in any
  * order, compared as numbers so -0 equals 0); itself when it is the first. Other entries are
- * the triangle itself. Hash on the sorted points, open addressing.
+ * the triangle itself. Hash on the sorted points; triangles are first sorted into 256
+ * buckets by the hash's top bits (a counting sort that keeps triangle order), then each
+ * bucket is searched with its own small open-addressing table, which stays in cache where one
+ * table over the whole mesh would cost a cache and TLB miss per triangle. Equal points have
+ * equal hashes, so they meet in one bucket, in triangle order: the first is the lowest index.
  */
 function stackedClasses(indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, triangleCount: number, usableCount: number): Uint32Array {
   const classOf = new Uint32Array(triangleCount);
   for (let t = 0; t < triangleCount; t++) classOf[t] = t;
-  let size = 16;
-  while (size < usableCount * 2) size <<= 1;
-  const mask = size - 1;
-  // Per slot: the first triangle of a class and the full hash of its points, compared before
-  // the points themselves so a probe past another class costs one load.
-  const table = new Uint32Array(size).fill(0xffffffff);
-  const hashes = new Uint32Array(size);
+  const hashOf = new Uint32Array(triangleCount);
+  const bucketStart = new Uint32Array((1 << COPY_BUCKET_BITS) + 1);
+  const shift = 32 - COPY_BUCKET_BITS;
   const p = new Float64Array(6), q = new Float64Array(6);
   const bits = new Float32Array(1), word = new Uint32Array(bits.buffer);
   for (let t = 0; t < triangleCount; t++) {
@@ -437,22 +440,54 @@ function stackedClasses(indices: Uint32Array, uvs: Float32Array, usable: Uint8Ar
       h = Math.imul(h ^ word[0], 0x9e3779b1);
       h ^= h >>> 15;
     }
-    // Final mix, so the low bits the mask keeps depend on every bit of the points.
+    // Final mix, so every bit (the bucket's top bits, the table's low bits) depends on every point.
     h = Math.imul(h ^ (h >>> 16), 0x85ebca6b);
     h = Math.imul(h ^ (h >>> 13), 0xc2b2ae35);
     h = (h ^ (h >>> 16)) >>> 0;
-    let slot = h & mask;
-    for (;;) {
-      const r = table[slot];
-      if (r === 0xffffffff) { table[slot] = t; hashes[slot] = h; break; }
-      if (hashes[slot] === h) {
-        sortedPoints(q, indices, uvs, r);
-        if (p[0] === q[0] && p[1] === q[1] && p[2] === q[2] && p[3] === q[3] && p[4] === q[4] && p[5] === q[5]) {
-          classOf[t] = r;
-          break;
+    hashOf[t] = h;
+    bucketStart[(h >>> shift) + 1]++;
+  }
+  let largest = 0;
+  for (let k = 0; k < 1 << COPY_BUCKET_BITS; k++) {
+    if (bucketStart[k + 1] > largest) largest = bucketStart[k + 1];
+    bucketStart[k + 1] += bucketStart[k];
+  }
+  // Bucketed triangles with their hashes side by side (read in order), and the table's slots
+  // as (triangle, hash) pairs, so a probe reads one place.
+  const order = new Uint32Array(usableCount * 2);
+  const cursor = bucketStart.slice(0, 1 << COPY_BUCKET_BITS);
+  for (let t = 0; t < triangleCount; t++) {
+    if (!usable[t]) continue;
+    const h = hashOf[t];
+    const o = cursor[h >>> shift]++ * 2;
+    order[o] = t; order[o + 1] = h;
+  }
+  let size = 16;
+  while (size < largest * 2) size <<= 1;
+  const table = new Uint32Array(size * 2);
+  for (let k = 0; k < 1 << COPY_BUCKET_BITS; k++) {
+    const s0 = bucketStart[k], s1 = bucketStart[k + 1];
+    if (s1 - s0 < 2) continue;
+    let tableSize = 16;
+    while (tableSize < (s1 - s0) * 2) tableSize <<= 1;
+    const mask = tableSize - 1;
+    table.fill(0xffffffff, 0, tableSize * 2);
+    for (let i = s0; i < s1; i++) {
+      const t = order[i * 2], h = order[i * 2 + 1];
+      let slot = h & mask;
+      for (;;) {
+        const r = table[slot * 2];
+        if (r === 0xffffffff) { table[slot * 2] = t; table[slot * 2 + 1] = h; break; }
+        if (table[slot * 2 + 1] === h) {
+          sortedPoints(p, indices, uvs, t);
+          sortedPoints(q, indices, uvs, r);
+          if (p[0] === q[0] && p[1] === q[1] && p[2] === q[2] && p[3] === q[3] && p[4] === q[4] && p[5] === q[5]) {
+            classOf[t] = r;
+            break;
+          }
         }
+        slot = (slot + 1) & mask;
       }
-      slot = (slot + 1) & mask;
     }
   }
   return classOf;
