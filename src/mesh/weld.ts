@@ -3,6 +3,7 @@
  * same when position, normal and texture coordinate are all equal. Hash-based on the float
  * bit patterns (no string keys), with -0 read as +0 so equal floats always weld.
  */
+import { SLOT_WELD_TABLE, threadArena } from './arena.js';
 
 const EMPTY = 0xffffffff;
 
@@ -25,7 +26,7 @@ export function weldVertices(
   let size = 16;
   while (size < vertexCount * 2) size <<= 1;
   const mask = size - 1;
-  const table = new Uint32Array(size).fill(EMPTY);
+  const table = threadArena().u32(SLOT_WELD_TABLE, size, EMPTY);
   let distinct = 0;
   for (let v = 0; v < vertexCount; v++) {
     // A NaN equals nothing, not even itself: such a vertex welds to no other and stays out of
@@ -83,7 +84,7 @@ export function weldPositions(out: Uint32Array, positions: Float32Array, vertexC
   let size = 16;
   while (size < vertexCount * 2) size <<= 1;
   const mask = size - 1;
-  const table = new Uint32Array(size).fill(EMPTY);
+  const table = threadArena().u32(SLOT_WELD_TABLE, size, EMPTY);
   let distinct = 0;
   for (let v = 0; v < vertexCount; v++) {
     const px = positions[v * 3], py = positions[v * 3 + 1], pz = positions[v * 3 + 2];
