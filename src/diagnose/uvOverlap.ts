@@ -6,6 +6,12 @@
  * "Real-Time Collision Detection" (2005), chapters on primitive tests and spatial
  * partitioning (cited from memory).
  */
+import {
+  SLOT_OVERLAP_BOX, SLOT_OVERLAP_CELLS, SLOT_OVERLAP_CLASS, SLOT_OVERLAP_CURSOR, SLOT_OVERLAP_ENTRIES, SLOT_OVERLAP_FLAGS,
+  SLOT_OVERLAP_HASH, SLOT_OVERLAP_LIVE, SLOT_OVERLAP_ORDER, SLOT_OVERLAP_RANGE, SLOT_OVERLAP_TABLE, SLOT_OVERLAP_USABLE,
+  SLOT_SHELL_AREA, SLOT_SHELL_HASH_A, SLOT_SHELL_HASH_B, SLOT_SHELL_OF, SLOT_SHELL_PARENT, SLOT_SHELL_POINTS, SLOT_SHELL_SEEN,
+  threadArena, type Arena,
+} from '../mesh/arena.js';
 import { assert } from '../mesh/errors.js';
 import { UV_DEGENERATE_RELATIVE, UV_OVERLAP_ABSOLUTE, UV_OVERLAP_RELATIVE, UV_SHELL_AREA_RELATIVE } from '../mesh/tolerances.js';
 import { findingFromMarks, type Finding } from './finding.js';
@@ -89,12 +95,13 @@ export function findUvOverlaps(
   assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
   assert(!marks || marks.length >= triangleCount, 'marks must hold one entry per triangle');
   assert(!stacked || stacked.length >= triangleCount, 'stacked must hold one entry per triangle');
-  const flags = marks ?? new Uint8Array(triangleCount);
-  if (marks) flags.fill(0, 0, triangleCount);
+  const arena = threadArena();
+  const flags = marks ?? arena.u8(SLOT_OVERLAP_FLAGS, triangleCount);
+  flags.fill(0, 0, triangleCount);
   if (stacked) stacked.fill(0, 0, triangleCount);
   // Per-triangle UV bounding boxes (exact: min/max of float32 values) and usability.
-  const box = new Float32Array(triangleCount * 4);
-  const usable = new Uint8Array(triangleCount);
+  const box = arena.f32(SLOT_OVERLAP_BOX, triangleCount * 4);
+  const usable = arena.u8(SLOT_OVERLAP_USABLE, triangleCount, 0);
   let usableCount = 0;
   for (let t = 0; t < triangleCount; t++) {
     const i0 = indices[t * 3] * 2, i1 = indices[t * 3 + 1] * 2, i2 = indices[t * 3 + 2] * 2;
@@ -116,9 +123,9 @@ export function findUvOverlaps(
   // coincide with an earlier usable triangle's joins that triangle's class and stays out of
   // the grid; pairs within a class are intentional stacking, and every copy takes its class's
   // verdict at the end. This keeps thousands of stacked copies from filling one cell.
-  const classOf = stackedClasses(indices, uvs, usable, triangleCount, usableCount);
+  const classOf = stackedClasses(arena, indices, uvs, usable, triangleCount, usableCount);
   // Shells and their keys (UV point hash and area), before copies leave the grid.
-  const shell = shellKeys(indices, uvs, usable, triangleCount);
+  const shell = shellKeys(arena, indices, uvs, usable, triangleCount);
   let copies = 0;
   for (let t = 0; t < triangleCount; t++) {
     if (usable[t] && classOf[t] !== t) {
@@ -167,8 +174,8 @@ export function findUvOverlaps(
   let nu = 1, nv = 1, inv = 1, entryCount = 0;
   // Per usable triangle its cell range (first and last cell along u, then along v), and per
   // cell its entry count at cellStart[c + 1], both from the pass that sizes the grid.
-  const range = new Uint32Array(triangleCount * 4);
-  let cellStart = new Uint32Array(0);
+  const range = arena.u32(SLOT_OVERLAP_RANGE, triangleCount * 4);
+  let cellStart = arena.u32(SLOT_OVERLAP_CELLS, 0);
   for (;;) {
     nu = Math.max(1, Math.ceil(width / cell));
     nv = Math.max(1, Math.ceil(height / cell));
@@ -178,7 +185,7 @@ export function findUvOverlaps(
     }
     inv = 1 / cell;
     entryCount = 0;
-    cellStart = new Uint32Array(nu * nv + 1);
+    cellStart = arena.u32(SLOT_OVERLAP_CELLS, nu * nv + 1, 0);
     for (let t = 0; t < triangleCount && entryCount <= maxEntries; t++) {
       if (!usable[t]) continue;
       const cu0 = cellOf(box[t * 4], minU, inv, nu), cu1 = cellOf(box[t * 4 + 2], minU, inv, nu);
@@ -195,8 +202,9 @@ export function findUvOverlaps(
 
   // Cell lists in compressed rows: prefix sums of the counts, fill.
   for (let c = 0; c < cellCount; c++) cellStart[c + 1] += cellStart[c];
-  const entries = new Uint32Array(cellStart[cellCount]);
-  const cursor = cellStart.slice(0, cellCount);
+  const entries = arena.u32(SLOT_OVERLAP_ENTRIES, cellStart[cellCount]);
+  const cursor = arena.u32(SLOT_OVERLAP_CURSOR, cellCount);
+  cursor.set(cellStart.subarray(0, cellCount));
   for (let t = 0; t < triangleCount; t++) {
     if (!usable[t]) continue;
     const cu0 = range[t * 4], cu1 = range[t * 4 + 1], cv0 = range[t * 4 + 2], cv1 = range[t * 4 + 3];
@@ -214,7 +222,7 @@ export function findUvOverlaps(
   // cell then costs its length, not its square.
   let maxRow = 0;
   for (let c = 0; c < cellCount; c++) if (cellStart[c + 1] - cellStart[c] > maxRow) maxRow = cellStart[c + 1] - cellStart[c];
-  const live = new Uint32Array(maxRow);
+  const live = arena.u32(SLOT_OVERLAP_LIVE, maxRow);
   let exactTests = 0, cellPairs = 0;
   for (let c = 0; c < cellCount; c++) {
     const start = cellStart[c], end = cellStart[c + 1];
@@ -290,9 +298,9 @@ interface ShellKeys {
  * hashes (sums of per-vertex hashes of the UV bits) and the sum of |det| of its triangles, so
  * that two shells with the same UV points and area compare equal whatever their triangulation.
  */
-function shellKeys(indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, triangleCount: number): ShellKeys {
+function shellKeys(arena: Arena, indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, triangleCount: number): ShellKeys {
   const vertexCount = uvs.length >> 1;
-  const parent = new Uint32Array(vertexCount);
+  const parent = arena.u32(SLOT_SHELL_PARENT, vertexCount);
   for (let v = 0; v < vertexCount; v++) parent[v] = v;
   for (let t = 0; t < triangleCount; t++) {
     if (!usable[t]) continue;
@@ -302,10 +310,11 @@ function shellKeys(indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, 
       if (r !== r0) parent[r] = r0;
     }
   }
-  const shellOf = new Uint32Array(triangleCount).fill(0xffffffff);
-  const hashA = new Uint32Array(vertexCount), hashB = new Uint32Array(vertexCount), points = new Uint32Array(vertexCount);
-  const area = new Float64Array(vertexCount);
-  const seen = new Uint8Array(vertexCount);
+  const shellOf = arena.u32(SLOT_SHELL_OF, triangleCount, 0xffffffff);
+  const hashA = arena.u32(SLOT_SHELL_HASH_A, vertexCount, 0), hashB = arena.u32(SLOT_SHELL_HASH_B, vertexCount, 0);
+  const points = arena.u32(SLOT_SHELL_POINTS, vertexCount, 0);
+  const area = arena.f64(SLOT_SHELL_AREA, vertexCount, 0);
+  const seen = arena.u8(SLOT_SHELL_SEEN, vertexCount, 0);
   const bits = new Float32Array(2), words = new Uint32Array(bits.buffer);
   for (let t = 0; t < triangleCount; t++) {
     if (!usable[t]) continue;
@@ -423,10 +432,10 @@ const COPY_BUCKET_BITS = 8;
  * table over the whole mesh would cost a cache and TLB miss per triangle. Equal points have
  * equal hashes, so they meet in one bucket, in triangle order: the first is the lowest index.
  */
-function stackedClasses(indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, triangleCount: number, usableCount: number): Uint32Array {
-  const classOf = new Uint32Array(triangleCount);
+function stackedClasses(arena: Arena, indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, triangleCount: number, usableCount: number): Uint32Array {
+  const classOf = arena.u32(SLOT_OVERLAP_CLASS, triangleCount);
   for (let t = 0; t < triangleCount; t++) classOf[t] = t;
-  const hashOf = new Uint32Array(triangleCount);
+  const hashOf = arena.u32(SLOT_OVERLAP_HASH, triangleCount);
   const bucketStart = new Uint32Array((1 << COPY_BUCKET_BITS) + 1);
   const shift = 32 - COPY_BUCKET_BITS;
   const p = new Float64Array(6), q = new Float64Array(6);
@@ -454,7 +463,7 @@ function stackedClasses(indices: Uint32Array, uvs: Float32Array, usable: Uint8Ar
   }
   // Bucketed triangles with their hashes side by side (read in order), and the table's slots
   // as (triangle, hash) pairs, so a probe reads one place.
-  const order = new Uint32Array(usableCount * 2);
+  const order = arena.u32(SLOT_OVERLAP_ORDER, usableCount * 2);
   const cursor = bucketStart.slice(0, 1 << COPY_BUCKET_BITS);
   for (let t = 0; t < triangleCount; t++) {
     if (!usable[t]) continue;
@@ -464,7 +473,7 @@ function stackedClasses(indices: Uint32Array, uvs: Float32Array, usable: Uint8Ar
   }
   let size = 16;
   while (size < largest * 2) size <<= 1;
-  const table = new Uint32Array(size * 2);
+  const table = arena.u32(SLOT_OVERLAP_TABLE, size * 2);
   for (let k = 0; k < 1 << COPY_BUCKET_BITS; k++) {
     const s0 = bucketStart[k], s1 = bucketStart[k + 1];
     if (s1 - s0 < 2) continue;

@@ -11,6 +11,7 @@ import {
   isStoredTangentSetValid,
 } from '../diagnose/index.js';
 import { findingFromMarks } from '../diagnose/finding.js';
+import { SLOT_STACKED, threadArena } from '../mesh/arena.js';
 import { FLOAT_TANGENT_VALIDITY, UNIT_LENGTH_TOLERANCE, type TangentValidityTolerances } from '../mesh/tolerances.js';
 import type { PrimitiveReport } from '../report/types.js';
 
@@ -67,7 +68,7 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
   const unitTolerance = input.normalUnitTolerance ?? UNIT_LENGTH_TOLERANCE;
   const validity = input.tangentValidity ?? FLOAT_TANGENT_VALIDITY;
   report.badNormals = { count: normals ? findBadNormals(indices, positions, normals, triangleCount, vertexCount, unitTolerance, input.positionHalfStep ?? 0).count : 0 };
-  const stacked = new Uint8Array(triangleCount);
+  const stacked = threadArena().u8(SLOT_STACKED, triangleCount);
   report.uvOverlap = findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null, null, { stacked, touching: input.uvTouching });
   report.stackedShells = findingFromMarks(stacked, triangleCount);
   let valid = false;
