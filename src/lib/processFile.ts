@@ -5,6 +5,7 @@
  */
 import * as path from 'node:path';
 import type { Asset } from '../mesh/asset.js';
+import { Arena, threadArena } from '../mesh/arena.js';
 import { assert, TanframeError } from '../mesh/errors.js';
 import { writeFilesAtomic } from '../io/files.js';
 import { readGltf, readGltfBytes } from '../io/gltfRead.js';
@@ -167,6 +168,9 @@ export async function processFileOutcome(job: FileJob, batchOptions: ProcessOpti
       report.notes.push(job.command === 'bake' ? `decompressed ${ext} (written uncompressed)` : `decompressed ${ext}`);
     }
     const solved = solveAsset(asset, options, !!job.pictures);
+    // The scratch of ordinary primitives stays for the next file; a huge one's is let go
+    // before encoding, so it does not add to the file's peak.
+    threadArena().trim(Arena.KEEP_BYTES);
     report.primitives = solved.primitives;
     pictures = solved.pictures;
     for (const p of pictures) p.input = job.displayInput;

@@ -11,43 +11,52 @@
  * its caller may live in an arena: results are fresh arrays; only scratch is handed out here.
  */
 
-/** Slots of the frame solve (welding, the corner kernel, adjacency, groups, the split). */
+/**
+ * Slots of the frame solve, in the order it runs: an array dead by the time a later one is
+ * made shares its slot (the weld table and the edge rows, the welded representatives and the
+ * row starts, the group helper and the split's frame ids), so the solve's scratch is about its
+ * largest moment, not the sum of its arrays.
+ */
 export const SLOT_WELD_TABLE = 0;
+export const SLOT_ADJ_EDGES = 0;
 export const SLOT_WELD_REP = 1;
+export const SLOT_ADJ_START = 1;
 export const SLOT_CORNER_VERTEX = 2;
 export const SLOT_TRIANGLE_FLAGS = 3;
 export const SLOT_CONTRIB = 4;
-export const SLOT_ADJ_START = 5;
-export const SLOT_ADJ_FILL = 6;
-export const SLOT_ADJ_EDGES = 7;
-export const SLOT_NEIGHBOUR = 8;
-export const SLOT_CORNER_FRAME = 9;
-export const SLOT_FRAMES = 10;
-export const SLOT_FIRST_GOOD = 11;
-export const SLOT_SPLIT_FRAME_OF = 12;
-export const SLOT_SPLIT_SOURCE = 13;
-export const SLOT_SPLIT_HASHED = 14;
-export const SLOT_LENGYEL_SUMS = 15;
-export const SLOT_LENGYEL_UNDEFINED = 16;
-/** Slots of the UV-overlap check (it runs after the solve, so it reuses the solve's slots). */
-export const SLOT_OVERLAP_BOX = 0;
-export const SLOT_OVERLAP_USABLE = 1;
-export const SLOT_OVERLAP_RANGE = 2;
-export const SLOT_OVERLAP_CELLS = 3;
-export const SLOT_OVERLAP_ENTRIES = 4;
-export const SLOT_OVERLAP_CURSOR = 5;
-export const SLOT_OVERLAP_LIVE = 6;
+export const SLOT_LENGYEL_SUMS = 4;
+export const SLOT_ADJ_FILL = 5;
+export const SLOT_LENGYEL_UNDEFINED = 5;
+export const SLOT_NEIGHBOUR = 6;
+export const SLOT_CORNER_FRAME = 7;
+export const SLOT_FRAMES = 8;
+export const SLOT_FIRST_GOOD = 9;
+export const SLOT_SPLIT_FRAME_OF = 9;
+export const SLOT_SPLIT_SOURCE = 10;
+export const SLOT_SPLIT_HASHED = 11;
+/**
+ * Slots of the UV-overlap check. It runs after the solve, so it reuses the solve's slots, the
+ * largest arrays on the largest slots (the cell ranges on the corner contributions, the boxes
+ * on the welded corners, the cell entries on the edge rows).
+ */
+export const SLOT_OVERLAP_RANGE = 4;
+export const SLOT_OVERLAP_BOX = 2;
+export const SLOT_OVERLAP_ENTRIES = 0;
+export const SLOT_OVERLAP_ORDER = 6;
 export const SLOT_OVERLAP_CLASS = 7;
 export const SLOT_OVERLAP_HASH = 8;
-export const SLOT_OVERLAP_ORDER = 9;
-export const SLOT_OVERLAP_TABLE = 10;
-export const SLOT_SHELL_PARENT = 11;
-export const SLOT_SHELL_OF = 12;
+export const SLOT_SHELL_OF = 1;
+export const SLOT_SHELL_AREA = 9;
+export const SLOT_OVERLAP_USABLE = 3;
+export const SLOT_OVERLAP_CELLS = 10;
+export const SLOT_OVERLAP_CURSOR = 11;
+export const SLOT_OVERLAP_TABLE = 5;
+export const SLOT_SHELL_PARENT = 12;
 export const SLOT_SHELL_HASH_A = 13;
 export const SLOT_SHELL_HASH_B = 14;
 export const SLOT_SHELL_POINTS = 15;
-export const SLOT_SHELL_AREA = 16;
-export const SLOT_SHELL_SEEN = 17;
+export const SLOT_SHELL_SEEN = 16;
+export const SLOT_OVERLAP_LIVE = 17;
 export const SLOT_OVERLAP_FLAGS = 18;
 export const SLOT_STACKED = 19;
 
@@ -57,6 +66,8 @@ const MIN_BLOCK = 1 << 16;
 /** Scratch memory kept across calls: one growable block per slot. */
 export class Arena {
   private readonly blocks: ArrayBuffer[] = [];
+  /** Most bytes the arena keeps between files (processFile trims to it once a file is solved). */
+  static readonly KEEP_BYTES = 64 * 2 ** 20;
   /** Bytes of blocks allocated so far (grows only; for benchmarks). */
   allocatedBytes = 0;
 
@@ -131,6 +142,23 @@ export class Arena {
     b.set(kept);
     b.fill(fill, kept.length);
     return b;
+  }
+
+  /**
+   * Lets go of the largest blocks until the arena holds at most `maxBytes` (the garbage
+   * collector frees them), so one huge primitive does not keep its scratch resident through
+   * the rest of its file and the files after it, while the scratch of ordinary ones stays.
+   */
+  trim(maxBytes: number): void {
+    let held = this.heldBytes();
+    while (held > maxBytes) {
+      let largest = -1;
+      for (let i = 0; i < this.blocks.length; i++) {
+        if (this.blocks[i] && (largest < 0 || this.blocks[i].byteLength > this.blocks[largest].byteLength)) largest = i;
+      }
+      held -= this.blocks[largest].byteLength;
+      delete this.blocks[largest];
+    }
   }
 
   /** Bytes the arena holds now. */
