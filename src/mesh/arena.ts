@@ -34,6 +34,11 @@ export const SLOT_FIRST_GOOD = 9;
 export const SLOT_SPLIT_FRAME_OF = 9;
 export const SLOT_SPLIT_SOURCE = 10;
 export const SLOT_SPLIT_HASHED = 11;
+/** Welding's own scratch besides its table (dead once welding returns). */
+export const SLOT_WELD_HASH = 20;
+export const SLOT_WELD_ORDER = 21;
+export const SLOT_WELD_BUCKETS = 22;
+export const SLOT_WELD_CURSOR = 23;
 /**
  * Slots of the UV-overlap check. It runs after the solve, so it reuses the solve's slots, the
  * largest arrays on the largest slots (the cell ranges on the corner contributions, the boxes
