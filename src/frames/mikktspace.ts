@@ -82,16 +82,18 @@ export function computeMikktspaceFrames(
   const rep = arena.u32(SLOT_WELD_REP, vertexCount);
   const weldedVertices = weldVertices(rep, positions, normals, uvs, vertexCount);
   const wi = arena.u32(SLOT_CORNER_VERTEX, cornerCount);
-  for (let c = 0; c < cornerCount; c++) wi[c] = rep[indices[c]];
 
   // 2. Per-triangle derivatives and flags.
   const flags = arena.u8(SLOT_TRIANGLE_FLAGS, triangleCount);
   // Per corner: the triangle's derivative projected on the corner's tangent plane, normalised
-  // and weighted by the projected corner angle (zero for triangles that contribute nothing).
-  const contrib = arena.f32(SLOT_CONTRIB, cornerCount * 3, 0);
+  // and weighted by the projected corner angle (zero for triangles that contribute nothing;
+  // every entry is written below, so the arena's old contents never show).
+  const contrib = arena.f32(SLOT_CONTRIB, cornerCount * 3);
   let degenerateUv = 0, mirrored = 0, degenerateTriangles = 0;
   for (let t = 0; t < triangleCount; t++) {
-    const a = wi[t * 3], b = wi[t * 3 + 1], c = wi[t * 3 + 2];
+    // The welded corners, written here (one pass over the corners, not two).
+    const a = rep[indices[t * 3]], b = rep[indices[t * 3 + 1]], c = rep[indices[t * 3 + 2]];
+    wi[t * 3] = a; wi[t * 3 + 1] = b; wi[t * 3 + 2] = c;
     let f = GROUP_WITH_ANY;
     const u0 = uvs[a * 2], v0 = uvs[a * 2 + 1];
     const t21x = uvs[b * 2] - u0, t21y = vSign * (uvs[b * 2 + 1] - v0);
@@ -103,6 +105,7 @@ export function computeMikktspaceFrames(
     if (a === b || a === c || b === c) {
       flags[t] = f | DEGENERATE;
       degenerateTriangles++;
+      contrib.fill(0, t * 9, t * 9 + 9);
       continue;
     }
     const x0 = positions[a * 3], y0 = positions[a * 3 + 1], z0 = positions[a * 3 + 2];
@@ -155,6 +158,8 @@ export function computeMikktspaceFrames(
         const o = (t * 3 + k) * 3;
         contrib[o] = angle * px; contrib[o + 1] = angle * py; contrib[o + 2] = angle * pz;
       }
+    } else {
+      contrib.fill(0, t * 9, t * 9 + 9);
     }
   }
 
