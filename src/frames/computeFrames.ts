@@ -63,7 +63,8 @@ export function computeFrames(input: FrameInput, options: FrameOptions = {}): Fr
     const sourceVertex = new Uint32Array(vertexCount);
     for (let v = 0; v < vertexCount; v++) sourceVertex[v] = v;
     const undefinedCorners = new Uint8Array(indices.length);
-    for (let c = 0; c < indices.length; c++) undefinedCorners[c] = undefinedVertex[indices[c]];
+    // Every corner of a vertex that took the fallback (none, usually: the array stays zero).
+    if (s.fallbackTangents > 0) for (let c = 0; c < indices.length; c++) undefinedCorners[c] = undefinedVertex[indices[c]];
     return {
       tangents,
       indices: indices.slice(),
