@@ -36,6 +36,7 @@ function bake(src, out, report, extra = []) {
 }
 
 const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'tanframe-bench-rerun-'));
+process.env.TANFRAME_CACHE_DIR = path.join(tmp, 'cache'); // the stamp cache of these runs, not the user's
 try {
   const src = path.join(tmp, 'assets');
   fs.cpSync(path.join(repo, 'examples/harbor-props'), path.join(src, 'harbor-props'), { recursive: true });

@@ -25,6 +25,7 @@ export { writeFilesAtomic, type AssetWriteOptions, type OutputFile } from './io/
 export type { JobWrites } from './lib/writePlan.js';
 export { expandInputs, globMatcher, type DiscoveryOptions, type ExpandedInputs, type InputFile } from './io/inputs.js';
 export { STATE_FILE_NAME, type HashedFile, type RecordParts } from './lib/runState.js';
+export { type Stamp } from './lib/stampCache.js';
 export { buildReport, summarize } from './report/json.js';
 export { renderSummary, type SummaryStyle } from './report/summary.js';
 export { renderJunit } from './report/junit.js';

@@ -14,7 +14,8 @@ import { containerOf, outputRelativeName, outputTarget } from '../lib/outputName
 import { planRun, type PlannedMesh } from '../lib/writePlan.js';
 import { namedExplicitly, perFile, resolveSettings } from './config.js';
 import { checkOutputOptions, emitReport, exitStatus, shardOf, toolVersion, type CliIo } from './shared.js';
-import { RunState } from '../lib/runState.js';
+import { cacheFolder, StampCache } from '../lib/stampCache.js';
+import { realOrSelf, RunState } from '../lib/runState.js';
 import { STATE_FILE_NAME } from '../lib/options.js';
 import { runBatch } from './batch.js';
 import { namedWrites, writeReportFiles } from './outputs.js';
@@ -80,7 +81,12 @@ export async function runBake(inputs: string[], given: Record<string, any>, io: 
     planned.push(f);
   }
   const writing = meshes.filter((m) => m.output !== '');
-  const run = await planRun({ cwd: io.cwd, inputs: expanded.files.map((f) => f.path), meshes: writing, ...namedWrites(o, io) });
+  const stateFolder = target && target.kind === 'folder' && !o.dryRun ? target.path : null;
+  // The stamps of earlier runs into this folder (stampCache.ts) spare the plan and the state check reading unchanged files.
+  const stamps = stateFolder ? await StampCache.open(cacheFolder(io.env), await realOrSelf(path.join(stateFolder, STATE_FILE_NAME)), !o.force) : null;
+  const run = await planRun({
+    cwd: io.cwd, inputs: expanded.files.map((f) => f.path), meshes: writing, ...namedWrites(o, io), hash: stamps ? (f) => stamps.sha(f) : undefined,
+  });
   const jobs: FileJob[] = [];
   let w = 0;
   for (let i = 0; i < planned.length; i++) {
@@ -99,10 +105,10 @@ export async function runBake(inputs: string[], given: Record<string, any>, io: 
       ...own,
     });
   }
-  const stateFolder = target && target.kind === 'folder' && !o.dryRun ? target.path : null;
   if (stateFolder) run.plan.write(path.join(stateFolder, STATE_FILE_NAME), `the state file ${run.plan.shown(path.join(stateFolder, STATE_FILE_NAME))}`);
   const state = stateFolder ? await RunState.open(stateFolder, {
     version: toolVersion(), options, force: !!o.force, inputs: files.map((f) => f.path), warn: (m) => io.stderr(`tanframe: warning: ${m}\n`),
+    stamps: stamps ?? undefined, mayWriteCache: (f) => run.plan.readers(run.plan.key(f)).size === 0,
   }) : null;
   const pending = state ? await state.pending(jobs, reports) : jobs;
   const batch = await runBatch(pending, options, o, io, run.plan, state ? (i, outcome) => state.take(pending[i], outcome.report, outcome.record) : undefined);

@@ -111,7 +111,15 @@ interface WalkRules {
   skip: Set<string>;
 }
 
-async function walk(dir: string, visited: Set<string>, out: string[], rules: WalkRules, base: string): Promise<void> {
+/**
+ * How many folder levels below its base a glob can reach: Infinity with `**`, else one more
+ * than its slashes (counted inside braces too, so the bound is never too low).
+ */
+export function globDepth(glob: string): number {
+  return glob.includes('**') ? Infinity : glob.split('/').length;
+}
+
+async function walk(dir: string, visited: Set<string>, out: string[], rules: WalkRules, base: string, depth = Infinity): Promise<void> {
   const root = dir === base;
   let real: string;
   try {
@@ -142,8 +150,10 @@ async function walk(dir: string, visited: Set<string>, out: string[], rules: Wal
         continue;
       }
     }
-    if (isDir && !isSkippedFolderName(e.name)) await walk(p, visited, out, rules, base);
-    else if (isFile) out.push(p);
+    if (isDir && !isSkippedFolderName(e.name)) {
+      // A file at this level is depth 1; a glob reaching `depth` levels enters folders above it only.
+      if (depth > 1) await walk(p, visited, out, rules, base, depth - 1);
+    } else if (isFile) out.push(p);
   }
 }
 
@@ -231,7 +241,7 @@ export async function expandInputs(inputs: string[], cwd: string, discovery: Dis
       const base = path.resolve(cwd, scan.base === '' ? '.' : scan.base);
       const matches = globMatcher(scan.prefix + scan.glob);
       const found: string[] = [];
-      await walk(base, new Set(), found, rules, base);
+      await walk(base, new Set(), found, rules, base, globDepth(scan.glob));
       const hits = found.filter((f) => isMeshFile(f) && matches(toPosix(path.relative(base, f))));
       if (hits.length === 0) problems.push({ input, message: 'the pattern matches no .glb, .gltf or .obj file' });
       const shownBase = scan.base === '' && toPosix(input).startsWith('/') ? '/' : scan.base;

@@ -17,7 +17,8 @@ import { memoryResources, type AssetResources } from '../io/resources.js';
 import type { FileReport } from '../report/types.js';
 import type { UvPicture } from '../report/uvPicture.js';
 import { unchangedOutputs } from './assetFiles.js';
-import { recordParts, sha256File, type RecordParts } from './runState.js';
+import { recordParts, type RecordParts } from './runState.js';
+import { hashWithStamp } from './stampCache.js';
 import { solveAsset } from './bakeAsset.js';
 import { guardOutputs } from './outputGuard.js';
 import { gateFigures, wasChecked } from './gates.js';
@@ -161,7 +162,7 @@ export async function processFileOutcome(job: FileJob, batchOptions: ProcessOpti
   let pictures: UvPicture[] = [];
   let record: RecordParts | undefined;
   try {
-    const inputSha = job.record && job.output && !job.dryRun ? await sha256File(job.input) : null;
+    const inputHash = job.record && job.output && !job.dryRun ? await hashWithStamp(job.input) : null;
     const asset = await readAsset(job.input, { maxTriangles: options.maxTriangles });
     report.warnings = capWarnings(asset.warnings).map((w) => quoteText(w, MAX_MESSAGE_LENGTH));
     for (const ext of asset.decompressed ?? []) {
@@ -194,7 +195,7 @@ export async function processFileOutcome(job: FileJob, batchOptions: ProcessOpti
         });
         report.notes.push(...(w?.notes ?? []));
       }
-      if (inputSha) record = await recordParts(inputSha, asset, job.input, planned);
+      if (inputHash?.sha256) record = await recordParts({ sha256: inputHash.sha256, stamp: inputHash.stamp }, asset, job.input, planned, !job.dryRun);
       report.output = job.dryRun ? null : job.displayOutput;
     }
   } catch (err) {

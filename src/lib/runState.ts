@@ -25,6 +25,11 @@
  * would trip none again); a file that failed or tripped a gate loses its record and runs
  * every time. Records of outputs this run did not touch are kept (other runs into the folder).
  *
+ * Speed: the hashes of unchanged files come from machine-local stamps (stampCache.ts: device,
+ * inode, size and times, kept in the user's cache folder, never in the portable state file), so
+ * a rerun with nothing changed reads no file's bytes; a stamp that does not match, or was taken
+ * too soon after the file changed, means the bytes are hashed.
+ *
  * Trust: the input is hashed before the reader reads it and the outputs from the bytes
  * written, so a file edited during the run only makes the next run redo it. Referenced files
  * are hashed right after the read (a file swapped in that instant is the one gap). A state
@@ -38,7 +43,6 @@
  * and a warning says so).
  */
 import { createHash } from 'node:crypto';
-import { createReadStream } from 'node:fs';
 import * as fsp from 'node:fs/promises';
 import * as path from 'node:path';
 import type { Asset } from '../mesh/asset.js';
@@ -47,6 +51,7 @@ import { writeFilesAtomic, type OutputFile } from '../io/files.js';
 import type { FileReport } from '../report/types.js';
 import { referencedFiles } from './assetFiles.js';
 import { STATE_FILE_NAME, type ProcessOptions } from './options.js';
+import { hashWithStamp, ownStamp, StampCache, type Stamp } from './stampCache.js';
 
 export { STATE_FILE_NAME };
 
@@ -73,6 +78,8 @@ export interface RecordParts {
   input: string;
   references: HashedFile[];
   outputs: HashedFile[];
+  /** Stamps of the files hashed (absolute path -> stamp), for the machine-local stamp cache. */
+  stamps?: Record<string, Stamp>;
 }
 
 /** The part of a file job the state needs. */
@@ -98,28 +105,28 @@ export function sha256Bytes(bytes: Uint8Array): string {
   return createHash('sha256').update(bytes).digest('hex');
 }
 
-/** SHA-256 (hex) of a file's bytes, streamed; null when it is absent or not a readable regular file. */
-export async function sha256File(file: string): Promise<string | null> {
-  const st = await fsp.stat(file).catch(() => null);
-  if (!st?.isFile()) return null;
-  return new Promise((resolve) => {
-    const hash = createHash('sha256');
-    const stream = createReadStream(file, { highWaterMark: 1 << 20 });
-    stream.on('data', (chunk) => hash.update(chunk));
-    stream.on('error', () => resolve(null));
-    stream.on('end', () => resolve(hash.digest('hex')));
-  });
-}
-
 /**
  * What the worker measures for the state after a bake: the input's hash (taken before the
  * read), the hash of every file the asset references (absent ones null) and of every planned
  * output (from its bytes).
  */
-export async function recordParts(inputSha: string, asset: Asset, input: string, planned: OutputFile[]): Promise<RecordParts> {
+export async function recordParts(inputHash: { sha256: string; stamp: Stamp | null }, asset: Asset, input: string, planned: OutputFile[], written: boolean): Promise<RecordParts> {
+  const stamps: Record<string, Stamp> = {};
+  if (inputHash.stamp) stamps[path.resolve(input)] = inputHash.stamp;
   const references: HashedFile[] = [];
-  for (const ref of referencedFiles(asset, input)) references.push({ path: ref.path, sha256: await sha256File(ref.path) });
-  return { input: inputSha, references, outputs: planned.map((f) => ({ path: path.resolve(f.path), sha256: sha256Bytes(f.bytes) })) };
+  for (const ref of referencedFiles(asset, input)) {
+    const h = await hashWithStamp(ref.path);
+    references.push({ path: ref.path, sha256: h.sha256 });
+    if (h.stamp) stamps[path.resolve(ref.path)] = h.stamp;
+  }
+  const outputs: HashedFile[] = [];
+  for (const f of planned) {
+    const sha256 = sha256Bytes(f.bytes);
+    outputs.push({ path: path.resolve(f.path), sha256 });
+    const s = written ? await ownStamp(f.path, sha256) : null;
+    if (s) stamps[path.resolve(f.path)] = s;
+  }
+  return { input: inputHash.sha256, references, outputs, stamps };
 }
 
 /** JSON with object keys sorted at every level, so equal options give equal text. */
@@ -186,6 +193,10 @@ export interface StateSettings {
   inputs: string[];
   /** Prints one warning line. */
   warn: (message: string) => void;
+  /** The machine-local stamps of this state file (stampCache.ts), shared with the write plan; none by default. */
+  stamps?: StampCache;
+  /** False for a stamp file the run must not write (it reads it). */
+  mayWriteCache?: (file: string) => boolean;
 }
 
 /**
@@ -202,6 +213,7 @@ export class RunState {
     readonly file: string,
     records: Map<string, StateRecord>,
     private readonly settings: StateSettings,
+    private readonly stamps: StampCache,
   ) {
     this.records = records;
   }
@@ -225,7 +237,8 @@ export class RunState {
     } else if (loaded) {
       records = loaded.records;
     }
-    const state = new RunState(file, records, settings);
+    const stamps = settings.stamps ?? (await StampCache.open(null, real));
+    const state = new RunState(file, records, settings, stamps);
     state.changed = loaded !== null && 'problem' in loaded;
     return state;
   }
@@ -249,14 +262,14 @@ export class RunState {
     if (this.settings.force || !job.output) return false;
     const r = this.records.get(this.key(job));
     if (!r || r.tool !== this.settings.version || canonical(r.options) !== canonical(this.optionsOf(job))) return false;
-    if ((await sha256File(job.input)) !== r.input.sha256) return false;
+    if ((await this.stamps.sha(job.input)) !== r.input.sha256) return false;
     const inputDir = path.dirname(path.resolve(job.input));
     for (const ref of r.references) {
       const abs = path.resolve(inputDir, ...ref.path.split('/'));
-      if ((await sha256File(abs)) !== ref.sha256) return false;
+      if ((await this.stamps.sha(abs)) !== ref.sha256) return false;
     }
     for (const out of r.outputs) {
-      if ((await sha256File(path.resolve(this.folder, ...out.path.split('/')))) !== out.sha256) return false;
+      if ((await this.stamps.sha(path.resolve(this.folder, ...out.path.split('/')))) !== out.sha256) return false;
     }
     return true;
   }
@@ -305,6 +318,7 @@ export class RunState {
       return;
     }
     this.changed = true;
+    for (const [p, st] of Object.entries(parts.stamps ?? {})) this.stamps.put(p, st);
     const touches = [...parts.references, ...parts.outputs].find((f) => path.resolve(f.path) === this.file);
     if (touches) this.blocked = `${job.displayInput} reads or writes ${touches.path}`;
     const inputDir = path.dirname(path.resolve(job.input));
@@ -322,6 +336,7 @@ export class RunState {
    * state that cannot be written, or must not be (see `take`), is a warning.
    */
   async save(): Promise<void> {
+    await this.stamps.save(this.settings.mayWriteCache);
     if (!this.changed) return;
     if (this.blocked) {
       this.settings.warn(`not writing ${this.file}: ${this.blocked}`);
@@ -338,7 +353,8 @@ export class RunState {
   }
 }
 
-async function realOrSelf(p: string): Promise<string> {
+/** The real path of `p`, through its folder when it does not exist yet, else `p` resolved. */
+export async function realOrSelf(p: string): Promise<string> {
   const abs = path.resolve(p);
   try {
     return await fsp.realpath(abs);

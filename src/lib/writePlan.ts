@@ -255,6 +255,8 @@ export interface RunRequest {
   files: { option: string; path: string }[];
   /** Folders the user named: --uv-maps (later --views), with the names the run may write in them. */
   folders: { option: string; path: string; mayWrite: (name: string) => boolean }[];
+  /** SHA-256 (hex) of a file, null when it cannot be read; default: hash its bytes (a rerun passes its stamp cache). */
+  hash?: (file: string) => Promise<string | null>;
 }
 
 /** The settled plan: the plan itself (for late checks), each mesh's writes (or why it is refused), where each named file goes. */
@@ -267,11 +269,6 @@ export interface RunPlan {
 
 /** Hex digits of a content hash in file names: 64 bits, deterministic, short (the same as buffer names). Our choice. */
 export const NAME_HASH_DIGITS = BUFFER_HASH_DIGITS;
-
-/** First NAME_HASH_DIGITS hex digits of the SHA-256 of `bytes`. */
-export function contentTag(bytes: Uint8Array): string {
-  return createHash('sha256').update(bytes).digest('hex').slice(0, NAME_HASH_DIGITS);
-}
 
 /** `uri` with `.<tag>` before its extension, in its last segment. */
 function taggedUri(uri: string, tag: string): string {
@@ -298,29 +295,39 @@ function head(file: string): Uint8Array | null {
   }
 }
 
-async function hashOf(file: string): Promise<string | null> {
+async function hashBytes(file: string): Promise<string | null> {
   try {
-    return contentTag(await readRegularFile(file));
+    return createHash('sha256').update(await readRegularFile(file)).digest('hex');
   } catch {
     return null;
   }
 }
 
-/** Buffers each .gltf in `dir` reads (key of the .gltf -> keys of its buffers); one look per folder. */
-async function gltfBuffersIn(dir: string, plan: WritePlan, cache: Map<string, Map<string, string[]>>): Promise<Map<string, string[]>> {
+/** What one asset in an output folder reads: the keys of its buffer and image files. */
+interface FolderAsset {
+  buffers: string[];
+  images: string[];
+}
+
+/** The buffers and images each .gltf and .glb in `dir` reads (keyed by the asset's key); one look per folder. */
+async function assetsIn(dir: string, plan: WritePlan, cache: Map<string, Map<string, FolderAsset>>): Promise<Map<string, FolderAsset>> {
   const known = cache.get(dir);
   if (known) return known;
-  const out = new Map<string, string[]>();
+  const out = new Map<string, FolderAsset>();
   cache.set(dir, out);
   let names: string[] = [];
   try {
-    names = fs.readdirSync(dir).filter((n) => n.toLowerCase().endsWith('.gltf'));
+    names = fs.readdirSync(dir).filter((n) => /\.(gltf|glb)$/i.test(n));
   } catch {
     return out;
   }
   for (const n of names.sort()) {
     const refs = await listAssetReferences(path.join(dir, n));
-    if (refs) out.set(plan.key(path.join(dir, n)), refs.files.filter((f) => f.kind === 'buffer').map((f) => f.path));
+    if (!refs) continue;
+    out.set(plan.key(path.join(dir, n)), {
+      buffers: refs.files.filter((f) => f.kind === 'buffer').map((f) => f.path),
+      images: refs.files.filter((f) => f.kind === 'image').map((f) => plan.key(f.path)),
+    });
   }
   return out;
 }
@@ -334,6 +341,8 @@ async function gltfBuffersIn(dir: string, plan: WritePlan, cache: Map<string, Ma
  */
 export async function planRun(req: RunRequest): Promise<RunPlan> {
   const plan = new WritePlan(req.cwd);
+  const hash = req.hash ?? hashBytes;
+  const hashOf = async (file: string) => (await hash(file))?.slice(0, NAME_HASH_DIGITS) ?? null;
   const refs = new Map<string, AssetReferences | null>();
   for (const input of req.inputs) plan.read(input, input);
   for (const input of req.inputs) {
@@ -344,7 +353,7 @@ export async function planRun(req: RunRequest): Promise<RunPlan> {
 
   const jobs: (JobWrites | { refused: string })[] = [];
   const images: { job: number; uri: string; source: string; target: string; outDir: string; root: string }[] = [];
-  const folderCache = new Map<string, Map<string, string[]>>();
+  const folderCache = new Map<string, Map<string, FolderAsset>>();
   for (let i = 0; i < req.meshes.length; i++) {
     const m = req.meshes[i];
     const r = refs.get(m.input) ?? null;
@@ -382,12 +391,12 @@ export async function planRun(req: RunRequest): Promise<RunPlan> {
     }
     if (m.format === 'gltf') {
       // Buffers of the asset being replaced, and buffers other .gltf files beside it read.
-      const others = await gltfBuffersIn(outDir, plan, folderCache);
+      const others = await assetsIn(outDir, plan, folderCache);
       const outKey = plan.key(output);
       const keep = new Set<string>();
-      for (const [g, bufs] of others) if (g !== outKey) for (const b of bufs) keep.add(b);
+      for (const [g, a] of others) if (g !== outKey) for (const b of a.buffers) keep.add(b);
       job.keep = [...keep];
-      for (const b of others.get(outKey) ?? []) {
+      for (const b of others.get(outKey)?.buffers ?? []) {
         const readers = plan.readers(plan.key(b));
         const readByOthers = [...readers].some((x) => plan.key(x) !== outKey);
         if (keep.has(b)) job.notes.push(`kept ${path.basename(b)} as it was: another .gltf beside it reads it too (the baked asset has its own buffer file)`);
@@ -408,7 +417,9 @@ export async function planRun(req: RunRequest): Promise<RunPlan> {
   }
   for (const d of req.folders) plan.folder(d.path, `${d.option} ${plan.shown(d.path)}`, d.mayWrite);
 
-  // Images: one file per distinct content on each name.
+  // Images: one file per distinct content on each name. A copy never changes a file in place
+  // that an existing asset names: different bytes on an existing name get a name of their own
+  // (so the old JSON reads its old image until the new JSON is renamed into place).
   const byTarget = new Map<string, typeof images>();
   for (const img of images) {
     if (plan.key(img.target) === plan.key(img.source)) continue; // copied onto itself: nothing to write
@@ -417,34 +428,62 @@ export async function planRun(req: RunRequest): Promise<RunPlan> {
     if (list) list.push(img);
     else byTarget.set(k, [img]);
   }
+  const finalTargets = new Map<number, Set<string>>();
+  const target = (x: (typeof images)[number], file: string) => {
+    const set = finalTargets.get(x.job) ?? new Set<string>();
+    set.add(plan.key(file));
+    finalTargets.set(x.job, set);
+    (jobs[x.job] as JobWrites).files.push(file);
+  };
+  const taggedTarget = (x: (typeof images)[number], tag: string) => path.join(x.outDir, ...uriToRelativePath(taggedUri(x.uri, tag)).split('/'));
+  const rename = (x: (typeof images)[number], tag: string) => {
+    (jobs[x.job] as JobWrites).imageUris[x.uri] = taggedUri(x.uri, tag);
+    const file = taggedTarget(x, tag);
+    if (!plan.plans(plan.key(file))) plan.write(file, `the image ${plan.shown(file)} copied for ${plan.shown(req.meshes[x.job].input)}`, { root: x.root });
+    target(x, file);
+  };
   for (const [k, list] of byTarget) {
-    const sources = [...new Set(list.map((x) => plan.key(x.source)))];
-    let renamed = false;
-    if (sources.length > 1) {
-      const hashes = new Map<string, string | null>();
-      for (const x of list) if (!hashes.has(x.source)) hashes.set(x.source, await hashOf(x.source));
-      renamed = new Set(hashes.values()).size > 1;
-      if (renamed) {
-        for (const x of list) {
-          const tag = hashes.get(x.source);
-          if (!tag) continue;
-          const uri = taggedUri(x.uri, tag);
-          (jobs[x.job] as JobWrites).imageUris[x.uri] = uri;
-          const target = path.join(x.outDir, ...uriToRelativePath(uri).split('/'));
-          if (!plan.plans(plan.key(target))) plan.write(target, `the image ${plan.shown(target)} copied for ${plan.shown(req.meshes[x.job].input)}`, { root: x.root });
-          (jobs[x.job] as JobWrites).files.push(target);
-        }
+    const hashes = new Map<string, string | null>();
+    for (const x of list) if (!hashes.has(x.source)) hashes.set(x.source, await hashOf(x.source));
+    if (new Set(hashes.values()).size > 1) {
+      for (const x of list) {
+        const tag = hashes.get(x.source);
+        if (tag) rename(x, tag);
       }
+      continue;
     }
-    if (renamed) continue;
     const first = list[0];
+    const tag = hashes.get(first.source) ?? null;
+    const existing = await hashOf(first.target);
     const readers = plan.readers(k);
-    if (readers.size > 0 && (await hashOf(first.target)) !== (await hashOf(first.source))) {
+    // The name holds other bytes (an earlier bake's image), or an earlier bake already gave
+    // these bytes a name of their own: the new asset names that copy.
+    if (tag !== null && existing !== tag && readers.size === 0 && (existing !== null || (await hashOf(taggedTarget(first, tag))) === tag)) {
+      for (const x of list) rename(x, tag);
+      continue;
+    }
+    if (readers.size > 0 && existing !== tag) {
       // Another input reads this file and the copy would change it.
       plan.write(first.target, `the image ${plan.shown(first.target)} copied for ${plan.shown(req.meshes[first.job].input)}`, { root: first.root });
     }
     if (readers.size === 0) plan.write(first.target, `the image ${plan.shown(first.target)} copied for ${plan.shown(req.meshes[first.job].input)}`, { root: first.root });
-    for (const x of list) (jobs[x.job] as JobWrites).files.push(x.target);
+    for (const x of list) target(x, x.target);
+  }
+  // Images the replaced output named and the new one does not: removed once the new JSON is in
+  // place, unless an input reads them or another asset in the folder names them.
+  for (let i = 0; i < req.meshes.length; i++) {
+    const job = jobs[i];
+    // A GLB output names images by URI only when its input does (then it has images here).
+    if ('refused' in job || req.meshes[i].inPlace || (req.meshes[i].format === 'glb' && !finalTargets.has(i))) continue;
+    const outDir = path.dirname(job.output);
+    const assets = await assetsIn(outDir, plan, folderCache);
+    const outKey = plan.key(job.output);
+    const mine = finalTargets.get(i) ?? new Set<string>();
+    for (const img of assets.get(outKey)?.images ?? []) {
+      if (mine.has(img) || plan.readers(img).size > 0 || plan.plans(img) || !isInside(outDir, img)) continue;
+      if ([...assets].some(([a, refs]) => a !== outKey && refs.images.includes(img))) continue;
+      job.removeAfter.push(img);
+    }
   }
   return { plan, jobs, files };
 }

@@ -556,6 +556,40 @@ describe('a multi-file asset killed between its renames reads entirely old or en
     expect(tree(path.join(dir, 'out'))).toEqual(fresh);
   });
 
+  it('bake -o with a changed image: the new asset names its own copy; killed before the JSON rename the old asset reads its old image', async () => {
+    // in/crate.gltf + crate.bin + textures/normal.png (shade 128), baked to out/; then the
+    // source image changes (shade 90) and the bake runs again.
+    const dir = path.join(tmp, 'kill-image');
+    await writeQuad(path.join(dir, 'in'), 'crate');
+    const base = ['bake', 'in/crate.gltf', '-o', 'out/crate.gltf'];
+    expect((await runCli([...base, '--quiet'], dir)).code).toBe(0);
+    const old = tree(path.join(dir, 'out'));
+    expect(old['textures/normal.png']).toBe(sha256(path.join(dir, 'in', 'textures', 'normal.png')));
+    fs.writeFileSync(path.join(dir, 'in', 'textures', 'normal.png'), png(90));
+    const newImage = sha256(path.join(dir, 'in', 'textures', 'normal.png'));
+
+    await killAt('before-main', base, dir);
+    const afterKill = tree(path.join(dir, 'out'));
+    for (const [n, h] of Object.entries(old)) expect(afterKill[n], n).toBe(h); // the old JSON, buffer and image as they were
+    await readsWhole(path.join(dir, 'out', 'crate.gltf'));
+
+    const r = await runCli([...base, '--quiet'], dir);
+    expect(r.code, r.stderr).toBe(0);
+    const json = JSON.parse(fs.readFileSync(path.join(dir, 'out', 'crate.gltf'), 'utf8'));
+    const uri: string = json.images[0].uri;
+    expect(uri).toMatch(/^textures\/normal\.[0-9a-f]{16}\.png$/);
+    const now = tree(path.join(dir, 'out'));
+    expect(now[uri]).toBe(newImage);
+    expect(now['textures/normal.png']).toBeUndefined(); // the old image went with the old JSON
+    await readsWhole(path.join(dir, 'out', 'crate.gltf'));
+
+    // A rerun that ignores the state names the same copy again and writes nothing.
+    const before = fs.statSync(path.join(dir, 'out', 'crate.gltf')).mtimeMs;
+    expect((await runCli([...base, '--force', '--quiet'], dir)).code).toBe(0);
+    expect(tree(path.join(dir, 'out'))).toEqual(now);
+    expect(fs.statSync(path.join(dir, 'out', 'crate.gltf')).mtimeMs).toBe(before);
+  });
+
   it('--in-place: killed before the JSON rename leaves the input exactly as it was', async () => {
     const dir = path.join(tmp, 'kill-inplace');
     await writeQuad(dir, 'crate');

@@ -7,7 +7,7 @@ import * as fs from 'node:fs';
 import * as os from 'node:os';
 import * as path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { expandInputs, globMatcher } from '../../src/io/inputs.js';
+import { expandInputs, globDepth, globMatcher } from '../../src/io/inputs.js';
 
 let tmp = '';
 beforeAll(() => {
@@ -104,6 +104,21 @@ describe('globs as inputs', () => {
     const root = tree('based', ['props/x/a.glb', 'props/b.obj', 'other/c.glb']);
     const r = await expandInputs(['props/**/*.glb'], root);
     expect(r.files.map((f) => f.relative)).toEqual(['x/a.glb']);
+  });
+
+  it('a glob without ** walks no deeper than its own levels (a rooted "/*.glb" once walked the whole disk)', async () => {
+    // depth/
+    //   a.glb            <- '*.glb' reaches it (depth 1)
+    //   one/b.glb        <- '*/*.glb' and '{*.glb,one/*.glb}' reach it (depth 2)
+    //   one/two/c.glb    <- only '**' reaches it
+    const root = tree('depth', ['a.glb', 'one/b.glb', 'one/two/c.glb']);
+    expect(globDepth('*.glb')).toBe(1);
+    expect(globDepth('*/*.glb')).toBe(2);
+    expect(globDepth('{*.glb,one/*.glb}')).toBe(2);
+    expect(globDepth('one/**/*.glb')).toBe(Infinity);
+    expect((await expandInputs(['*/*.glb'], root)).files.map((f) => f.relative)).toEqual(['one/b.glb']);
+    expect((await expandInputs(['{*.glb,one/*.glb}'], root)).files.map((f) => f.relative)).toEqual(['a.glb', 'one/b.glb']);
+    expect((await expandInputs(['**/c.glb'], root)).files.map((f) => f.relative)).toEqual(['one/two/c.glb']);
   });
 
   it('an --exclude pattern whose braces expand past the cap is a usage error, not an internal one', async () => {
