@@ -23,6 +23,7 @@ import { tangentNeedOf } from './material.js';
 import { morphTangentDelta, type MorphBase } from './morphTangents.js';
 import type { ProcessOptions } from './options.js';
 import { encodeTangents } from './tangentEncoding.js';
+import { Arena, threadArena } from '../mesh/arena.js';
 import { applyUvTransform, changesFrames, type UvTransform } from '../mesh/uvTransform.js';
 import { componentHalfStep, tangentValidityTolerances, unitLengthTolerance, uvOverlapAbsolute } from '../mesh/tolerances.js';
 
@@ -170,6 +171,9 @@ export function solvePrimitive(
     { positions, normals, uvs: transformedUvs(uvs, transform), indices, faces: p.faces },
     { method: options.method, weight: options.weight, uvOrigin: 'top-left' },
   );
+  // A huge primitive's solve scratch is let go before the diagnostics make theirs (an ordinary
+  // one's stays in the arena for the diagnostics and the next primitive).
+  threadArena().trim(Arena.KEEP_BYTES);
   const source = genSource ? composeSource(genSource, frames.sourceVertex) : frames.sourceVertex;
   report.verticesOut = source.length;
   report.splitVertices = genSource ? frames.stats.splitVertices : source.length - vertexCount;
@@ -200,6 +204,7 @@ export function solvePrimitive(
     uvTouching: uvOverlapAbsolute(uvAttr.componentType, uvAttr.normalized),
     marks,
   });
+  threadArena().trim(Arena.KEEP_BYTES);
   let picture: UvPicture | null = null;
   if (marks && hasFindings(report)) {
     // Mirroring as src/frames counts it (glTF v downward, so vSign = -1; the default epsilon).
