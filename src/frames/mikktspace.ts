@@ -10,7 +10,7 @@
  */
 import { MIKK_NOT_ZERO, PROJECTED_ZERO, UV_DEGENERATE_RELATIVE } from '../mesh/tolerances.js';
 import {
-  SLOT_ADJ_EDGES, SLOT_ADJ_FILL, SLOT_ADJ_START, SLOT_CONTRIB, SLOT_CORNER_VERTEX, SLOT_FIRST_GOOD, SLOT_FRAMES, SLOT_NEIGHBOUR,
+  SLOT_ADJ_EDGES, SLOT_ADJ_FILL, SLOT_ADJ_START, SLOT_ADJ_TARGETS, SLOT_CONTRIB, SLOT_CORNER_VERTEX, SLOT_FIRST_GOOD, SLOT_FRAMES, SLOT_NEIGHBOUR,
   SLOT_TRIANGLE_FLAGS, SLOT_WELD_REP, threadArena, type Arena,
 } from '../mesh/arena.js';
 import { weldVertices } from '../mesh/weld.js';
@@ -333,10 +333,19 @@ function buildNeighbours(arena: Arena, wi: Uint32Array, flags: Uint8Array, trian
   for (let v = 0; v < vertexCount; v++) start[v + 1] += start[v];
   const fill = arena.u32(SLOT_ADJ_FILL, vertexCount);
   fill.set(start.subarray(0, vertexCount));
+  // Per row entry: the corner, and beside it the edge's target vertex, so a row is searched
+  // without loading the corners' triangles.
   const edges = arena.u32(SLOT_ADJ_EDGES, start[vertexCount]);
+  const targets = arena.u32(SLOT_ADJ_TARGETS, start[vertexCount]);
   for (let t = 0; t < triangleCount; t++) {
     if (flags[t] & DEGENERATE) continue;
-    for (let i = 0; i < 3; i++) edges[fill[wi[t * 3 + i]]++] = t * 3 + i;
+    const v0 = wi[t * 3], v1 = wi[t * 3 + 1], v2 = wi[t * 3 + 2];
+    let k = fill[v0]++;
+    edges[k] = t * 3; targets[k] = v1;
+    k = fill[v1]++;
+    edges[k] = t * 3 + 1; targets[k] = v2;
+    k = fill[v2]++;
+    edges[k] = t * 3 + 2; targets[k] = v0;
   }
   // Rows longer than LONG_ROW (a vertex shared by many triangles, as at the centre of a
   // large fan) are sorted by target vertex, then corner, and searched by bisection, so no
@@ -347,34 +356,36 @@ function buildNeighbours(arena: Arena, wi: Uint32Array, flags: Uint8Array, trian
     const row = Array.from(edges.subarray(s0, s1));
     row.sort((x, y) => wi[nextCorner(x)] - wi[nextCorner(y)] || x - y);
     edges.set(row, s0);
+    for (let k = s0; k < s1; k++) targets[k] = wi[nextCorner(edges[k])];
   }
   const neighbour = arena.u32(SLOT_NEIGHBOUR, cornerCount, NONE);
   for (let t = 0; t < triangleCount; t++) {
     if (flags[t] & DEGENERATE) continue;
+    // Corners of later triangles start here (a corner e belongs to a triangle after t iff e >= later).
+    const later = t * 3 + 3;
     for (let i = 0; i < 3; i++) {
       const c = t * 3 + i;
       if (neighbour[c] !== NONE) continue;
-      const a = wi[c], b = wi[t * 3 + (i < 2 ? i + 1 : 0)];
+      const a = wi[c], b = wi[i < 2 ? c + 1 : c - 2];
       const end = start[b + 1];
       let k = start[b];
-      if (end - k > LONG_ROW) {
+      const sorted = end - k > LONG_ROW;
+      if (sorted) {
         // First entry whose target is >= a.
         let hi = end;
         while (k < hi) {
           const mid = (k + hi) >>> 1;
-          if (wi[nextCorner(edges[mid])] < a) k = mid + 1; else hi = mid;
+          if (targets[mid] < a) k = mid + 1; else hi = mid;
         }
       }
       for (; k < end; k++) {
-        const e = edges[k];
-        const u = (e / 3) | 0;
-        const target = wi[e - u * 3 < 2 ? e + 1 : e - 2];
-        if (target !== a) {
-          if (end - start[b] > LONG_ROW) break; // sorted row: past the run of target a
+        if (targets[k] !== a) {
+          if (sorted) break; // sorted row: past the run of target a
           continue;
         }
-        if (u <= t || neighbour[e] !== NONE) continue;
-        neighbour[c] = u;
+        const e = edges[k];
+        if (e < later || neighbour[e] !== NONE) continue;
+        neighbour[c] = (e / 3) | 0;
         neighbour[e] = t;
         break;
       }

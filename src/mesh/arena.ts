@@ -39,6 +39,8 @@ export const SLOT_WELD_HASH = 20;
 export const SLOT_WELD_ORDER = 21;
 export const SLOT_WELD_BUCKETS = 22;
 export const SLOT_WELD_CURSOR = 23;
+/** The edge rows' target vertices, beside SLOT_ADJ_EDGES. */
+export const SLOT_ADJ_TARGETS = 24;
 /**
  * Slots of the UV-overlap check. It runs after the solve, so it reuses the solve's slots, the
  * largest arrays on the largest slots (the cell ranges on the corner contributions, the boxes
