@@ -154,10 +154,11 @@ export function findUvOverlaps(
     sMinU[n] = box[t * 4]; sMinV[n] = box[t * 4 + 1]; sMaxU[n] = box[t * 4 + 2]; sMaxV[n] = box[t * 4 + 3];
     sExtent[n++] = w > h ? w : h;
   }
-  sMinU.sort(); sMinV.sort(); sMaxU.sort(); sMaxV.sort(); sExtent.sort();
+  // Order statistics by selection (linear) rather than sorting: the same values.
   const lowRank = Math.floor(TRIM * sampleCount), highRank = sampleCount - 1 - lowRank;
-  const minU = sMinU[lowRank], minV = sMinV[lowRank], maxU = sMaxU[highRank], maxV = sMaxV[highRank];
-  const clip = EXTENT_CLIP * sExtent[sampleCount >> 1];
+  const minU = selectRank(sMinU, lowRank), minV = selectRank(sMinV, lowRank);
+  const maxU = selectRank(sMaxU, highRank), maxV = selectRank(sMaxV, highRank);
+  const clip = EXTENT_CLIP * selectRank(sExtent, sampleCount >> 1);
   let extentSum = 0;
   for (let t = 0; t < triangleCount; t++) {
     if (!usable[t]) continue;
@@ -556,6 +557,33 @@ function hasPoint(
   u0: number, v0: number, u1: number, v1: number, u2: number, v2: number,
 ): boolean {
   return (u === u0 && v === v0) || (u === u1 && v === v1) || (u === u2 && v === v2);
+}
+
+/**
+ * The value of rank k (0-based) of `a`, as a[k] would be after sorting; reorders `a`.
+ * Quickselect with the median of three as pivot (Hoare partition): linear on average, and the
+ * median-of-three pivot keeps sorted and reversed samples linear too.
+ * Preconditions: 0 <= k < a.length; no NaN.
+ */
+function selectRank(a: Float64Array, k: number): number {
+  let lo = 0, hi = a.length - 1;
+  while (hi > lo) {
+    const mid = (lo + hi) >>> 1;
+    let x = a[lo], y = a[mid], z = a[hi];
+    if (y < x) { const s = x; x = y; y = s; }
+    if (z < y) { y = z; if (y < x) y = x; }
+    const pivot = y;
+    let i = lo, j = hi;
+    while (i <= j) {
+      while (a[i] < pivot) i++;
+      while (a[j] > pivot) j--;
+      if (i <= j) { const s = a[i]; a[i] = a[j]; a[j] = s; i++; j--; }
+    }
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else return a[k];
+  }
+  return a[k];
 }
 
 /** Grid cell of coordinate x along one axis: floor((x - origin) * inv), clamped to [0, n - 1]. */
