@@ -73,8 +73,8 @@ const MIN_BLOCK = 1 << 16;
 /** Scratch memory kept across calls: one growable block per slot. */
 export class Arena {
   private readonly blocks: ArrayBuffer[] = [];
-  /** Most bytes the arena keeps between files (processFile trims to it once a file is solved). */
-  static readonly KEEP_BYTES = 64 * 2 ** 20;
+  /** Most bytes the arena keeps between primitives and files (enough for the scratch of a few hundred thousand triangles); bakeAsset and processFile trim to it. */
+  static readonly KEEP_BYTES = 32 * 2 ** 20;
   /** Bytes of blocks allocated so far (grows only; for benchmarks). */
   allocatedBytes = 0;
 
