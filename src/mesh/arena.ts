@@ -12,53 +12,53 @@
  */
 
 /**
- * Slots of the frame solve, in the order it runs: an array dead by the time a later one is
- * made shares its slot (the weld table and the edge rows, the welded representatives and the
- * row starts, the group helper and the split's frame ids), so the solve's scratch is about its
- * largest moment, not the sum of its arrays.
+ * Slots of the frame solve, in the order it runs. An array dead by the time a later one is made
+ * shares its slot, so little dead scratch stays resident: welding's hashes and order become the
+ * corner contributions and the welded corners, the weld table the adjacency row starts, the
+ * edge rows the frame store, their targets the first-good corners, the row fill the split's
+ * frame ids and the row starts its source vertices.
  */
 export const SLOT_WELD_TABLE = 0;
-export const SLOT_ADJ_EDGES = 0;
 export const SLOT_WELD_REP = 1;
-export const SLOT_ADJ_START = 1;
-export const SLOT_CORNER_VERTEX = 2;
-export const SLOT_TRIANGLE_FLAGS = 3;
-export const SLOT_CONTRIB = 4;
-export const SLOT_LENGYEL_SUMS = 4;
-export const SLOT_ADJ_FILL = 5;
-export const SLOT_LENGYEL_UNDEFINED = 5;
-export const SLOT_NEIGHBOUR = 6;
-export const SLOT_CORNER_FRAME = 7;
-export const SLOT_FRAMES = 8;
-export const SLOT_FIRST_GOOD = 9;
-export const SLOT_SPLIT_FRAME_OF = 9;
-export const SLOT_SPLIT_SOURCE = 10;
-export const SLOT_SPLIT_HASHED = 11;
-/** Welding's own scratch besides its table (dead once welding returns). */
 export const SLOT_WELD_HASH = 20;
 export const SLOT_WELD_ORDER = 21;
 export const SLOT_WELD_BUCKETS = 22;
 export const SLOT_WELD_CURSOR = 23;
-/** The edge rows' target vertices, beside SLOT_ADJ_EDGES. */
+export const SLOT_CORNER_VERTEX = 21;
+export const SLOT_CONTRIB = 20;
+export const SLOT_TRIANGLE_FLAGS = 3;
+export const SLOT_ADJ_START = 0;
+export const SLOT_ADJ_FILL = 5;
+export const SLOT_ADJ_EDGES = 2;
 export const SLOT_ADJ_TARGETS = 24;
+export const SLOT_NEIGHBOUR = 6;
+export const SLOT_CORNER_FRAME = 7;
+export const SLOT_FRAMES = 2;
+export const SLOT_FIRST_GOOD = 24;
+export const SLOT_SPLIT_FRAME_OF = 5;
+export const SLOT_SPLIT_SOURCE = 0;
+export const SLOT_SPLIT_HASHED = 11;
+/** lengyel's sums and per-vertex flags (the lengyel solve runs instead of the corner kernel). */
+export const SLOT_LENGYEL_SUMS = 4;
+export const SLOT_LENGYEL_UNDEFINED = 5;
 /**
  * Slots of the UV-overlap check. It runs after the solve, so it reuses the solve's slots, the
- * largest arrays on the largest slots (the cell ranges on the corner contributions, the boxes
- * on the welded corners, the cell entries on the edge rows).
+ * largest arrays on the largest slots (the cell ranges on the corner contributions, the boxes on
+ * the welded corners, the cell entries on the edge rows).
  */
-export const SLOT_OVERLAP_RANGE = 4;
-export const SLOT_OVERLAP_BOX = 2;
-export const SLOT_OVERLAP_ENTRIES = 0;
+export const SLOT_OVERLAP_RANGE = 20;
+export const SLOT_OVERLAP_BOX = 21;
+export const SLOT_OVERLAP_ENTRIES = 2;
 export const SLOT_OVERLAP_ORDER = 6;
 export const SLOT_OVERLAP_CLASS = 7;
-export const SLOT_OVERLAP_HASH = 8;
+export const SLOT_OVERLAP_HASH = 24;
 export const SLOT_SHELL_OF = 1;
-export const SLOT_SHELL_AREA = 9;
+export const SLOT_SHELL_AREA = 0;
 export const SLOT_OVERLAP_USABLE = 3;
-export const SLOT_OVERLAP_CELLS = 10;
+export const SLOT_OVERLAP_CELLS = 5;
 export const SLOT_OVERLAP_CURSOR = 11;
-export const SLOT_OVERLAP_TABLE = 5;
-export const SLOT_SHELL_PARENT = 12;
+export const SLOT_OVERLAP_TABLE = 22;
+export const SLOT_SHELL_PARENT = 23;
 export const SLOT_SHELL_HASH_A = 13;
 export const SLOT_SHELL_HASH_B = 14;
 export const SLOT_SHELL_POINTS = 15;
