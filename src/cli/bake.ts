@@ -9,14 +9,13 @@ import type { FileJob } from '../lib/processFile.js';
 import { buildReport } from '../report/json.js';
 import type { FileReport } from '../report/types.js';
 import type { InputFile } from '../io/inputs.js';
-import type { ProcessOptions } from '../lib/options.js';
 import { containerOf, outputRelativeName, outputTarget } from '../lib/outputNames.js';
 import { planRun, type PlannedMesh } from '../lib/writePlan.js';
 import { namedExplicitly, perFile, resolveSettings } from './config.js';
 import { checkOutputOptions, emitReport, exitStatus, shardOf, toolVersion, type CliIo } from './shared.js';
 import { cacheFolder, StampCache } from '../lib/stampCache.js';
 import { realOrSelf, RunState } from '../lib/runState.js';
-import { STATE_FILE_NAME } from '../lib/options.js';
+import { STATE_FILE_NAME, type ProcessOptions } from '../lib/options.js';
 import { runBatch } from './batch.js';
 import { namedWrites, writeReportFiles } from './outputs.js';
 
@@ -47,7 +46,10 @@ export async function runBake(inputs: string[], given: Record<string, any>, io: 
     p.keepExisting = !!o.keepExisting;
     p.normals = o.normals;
     p.smoothAngle = o.smoothAngle;
-    p.tangentType = o.tangentType;
+    // Without --tangent-type TANGENT is float, or with --compression keep the type of a quantized NORMAL.
+    p.tangentType = o.tangentType ?? 'float';
+    p.tangentTypeFromInput = o.tangentType === undefined;
+    p.compression = o.compression;
   };
   bakeOnly(options);
   const expanded = await expandInputs(inputs, io.cwd, { exclude: o.exclude, skipFolders: o.out ? [o.out] : [] });
@@ -128,7 +130,7 @@ export function sortReports(files: FileReport[]): FileReport[] {
 /** The options echoed in the report (stable keys, no paths that vary between machines). */
 export function reportOptions(o: Record<string, any>): Record<string, unknown> {
   const keys = ['method', 'weight', 'uv', 'allPrimitives', 'failOn', 'limits', 'maxDegenerateUv', 'tolerance', 'uvEpsilon',
-    'format', 'inPlace', 'keepExisting', 'normals', 'smoothAngle', 'tangentType', 'dryRun', 'shard'];
+    'format', 'inPlace', 'keepExisting', 'normals', 'smoothAngle', 'tangentType', 'compression', 'dryRun', 'shard'];
   const out: Record<string, unknown> = {};
   for (const k of keys) if (o[k] !== undefined) out[k] = o[k];
   return out;

@@ -9,7 +9,7 @@ import { Command, InvalidArgumentError, Option } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
 import { MAX_PADDING } from '../imaging/limits.js';
 import type { PrimitiveRef } from '../lib/mapFrames.js';
-import { STATE_FILE_NAME } from '../lib/options.js';
+import { COMPRESSION_MODES, STATE_FILE_NAME } from '../lib/options.js';
 import { addSharedOptions, annotateOption, type CliIo } from './options.js';
 
 /** Registers `bake` on `program`; `done` receives the exit status. */
@@ -28,7 +28,8 @@ export function registerBake(program: Command, io: CliIo, done: (code: number) =
       if (!Number.isFinite(x) || x < 0 || x > 180) throw new TanframeError('usage', `--smooth-angle: expected degrees in [0, 180], got '${v}'`);
       return x;
     }, 60)
-    .addOption(new Option('--tangent-type <type>', 'TANGENT component type').choices(['float', 'snorm16', 'snorm8']).default('float'))
+    .addOption(new Option('--tangent-type <type>', 'TANGENT component type').choices(['float', 'snorm16', 'snorm8']))
+    .addOption(new Option('--compression <mode>', 'how baked primitives are stored: as they came in (Draco, meshopt, quantized), uncompressed, or compressed with Draco or meshopt').choices([...COMPRESSION_MODES]).default('keep'))
     .option('--dry-run', 'do everything but write the meshes', false)
     .option('--force', `bake every file, ignoring the state of earlier runs (${STATE_FILE_NAME})`, false);
   addSharedOptions(cmd);

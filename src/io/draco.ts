@@ -1,5 +1,5 @@
 /**
- * Decoding of Draco-compressed mesh primitives (KHR_draco_mesh_compression).
+ * Decoding and encoding of Draco-compressed mesh primitives (KHR_draco_mesh_compression).
  * Based on: KHR_draco_mesh_compression extension specification (the primitive extension
  * object names a bufferView holding the Draco stream and maps each attribute semantic to a
  * Draco attribute unique id; the accessors describe the decoded data; the stream's faces are
@@ -7,7 +7,8 @@
  * (Draco's own JavaScript build), read from node_modules and loaded only when a file holds
  * Draco data; nothing is fetched from a network at run time. Each attribute is read with
  * `GetAttributeDataArrayForAllPoints` in the component type the stream stores (quantized
- * streams come back dequantized), the faces with `GetTrianglesUInt32Array`.
+ * streams come back dequantized), the faces with `GetTrianglesUInt32Array`. Encoding uses the
+ * package's encoder module (MeshBuilder and ExpertEncoder: per-attribute quantization bits).
  */
 import { TanframeError } from '../mesh/errors.js';
 
@@ -249,4 +250,156 @@ export async function decodeDracoPrimitive(stream: Uint8Array, attributeIds: Rec
     draco.destroy(buffer);
     draco.destroy(decoder);
   }
+}
+
+/** How the input's Draco stream stored one attribute: quantization bits, or null for values stored as they are. */
+export interface DracoAttributeSetting {
+  /** Quantization bits (octahedral bits for normals), or null when the attribute is not quantized. */
+  bits: number | null;
+}
+
+/** What a Draco stream records of its encoding: method and, per glTF semantic, quantization. */
+export interface DracoStreamSettings {
+  /** 0 sequential, 1 edgebreaker. */
+  method: number;
+  attributes: Record<string, DracoAttributeSetting>;
+}
+
+/**
+ * Reads the encoder settings a Draco stream records: its method (header) and, for each
+ * semantic of `attributeIds`, the quantization bits of its attribute. The stream is decoded
+ * once more with the attribute transforms left in place (the decoder's SkipAttributeTransform),
+ * so the quantization and octahedron transforms report their bits (Draco's
+ * AttributeQuantizationTransform / AttributeOctahedronTransform InitFromAttribute). Throws
+ * 'bad-draco' when the stream does not decode (callers read it with decodeDracoPrimitive first).
+ */
+export async function readDracoSettings(stream: Uint8Array, attributeIds: Record<string, number>, where: string): Promise<DracoStreamSettings> {
+  const header = readDracoHeader(stream, where);
+  const draco = await loadModule();
+  const decoder = new draco.Decoder();
+  const buffer = new draco.DecoderBuffer();
+  let geometry: any = null;
+  try {
+    buffer.Init(new Int8Array(stream.buffer, stream.byteOffset, stream.byteLength), stream.byteLength);
+    for (const t of [draco.POSITION, draco.NORMAL, draco.COLOR, draco.TEX_COORD, draco.GENERIC]) decoder.SkipAttributeTransform(t);
+    try {
+      geometry = decodeGeometry(draco, decoder, buffer);
+    } catch {
+      throw new TanframeError('bad-draco', `${where}: the KHR_draco_mesh_compression data does not decode`);
+    }
+    const attributes: Record<string, DracoAttributeSetting> = {};
+    for (const semantic of Object.keys(attributeIds).sort()) {
+      const attribute = decoder.GetAttributeByUniqueId(geometry, attributeIds[semantic]);
+      if (!attribute || !attribute.ptr) continue;
+      const q = new draco.AttributeQuantizationTransform();
+      const o = new draco.AttributeOctahedronTransform();
+      try {
+        if (q.InitFromAttribute(attribute)) attributes[semantic] = { bits: q.quantization_bits() };
+        else if (o.InitFromAttribute(attribute)) attributes[semantic] = { bits: o.quantization_bits() };
+        else attributes[semantic] = { bits: null };
+      } finally {
+        draco.destroy(q);
+        draco.destroy(o);
+      }
+    }
+    return { method: header.method, attributes };
+  } finally {
+    if (geometry) draco.destroy(geometry);
+    draco.destroy(buffer);
+    draco.destroy(decoder);
+  }
+}
+
+/** One attribute to store in a Draco stream. */
+export interface DracoEncodeAttribute {
+  semantic: string;
+  /** Values, element-major; float attributes may be quantized, integer ones are stored as they are. */
+  array: Float32Array | Int8Array | Uint8Array | Int16Array | Uint16Array | Uint32Array;
+  itemSize: number;
+  /** Quantization bits for a float attribute, or null to store its floats as they are. */
+  bits: number | null;
+}
+
+/** A mesh to store in a Draco stream. */
+export interface DracoEncodeInput {
+  attributes: DracoEncodeAttribute[];
+  /** Triangle list. */
+  indices: Uint32Array;
+  vertexCount: number;
+  /** 0 sequential (keeps the vertex order), 1 edgebreaker. */
+  method: number;
+}
+
+/** A Draco stream and, by semantic, the unique id of each attribute (the extension's `attributes` map). */
+export interface DracoEncoded {
+  bytes: Uint8Array;
+  ids: Record<string, number>;
+}
+
+/** Encodes a triangle mesh as a Draco stream (synchronous once the encoder is loaded). */
+export type DracoEncodeFn = (input: DracoEncodeInput) => DracoEncoded;
+
+let encoderPromise: Promise<any> | null = null;
+
+/** Draco attribute type for a glTF semantic. Source: KHR_draco_mesh_compression (attributes by semantic); TANGENT and others GENERIC. */
+function dracoAttributeType(m: any, semantic: string): number {
+  if (semantic === 'POSITION') return m.POSITION;
+  if (semantic === 'NORMAL') return m.NORMAL;
+  if (semantic.startsWith('TEXCOORD_')) return m.TEX_COORD;
+  if (semantic.startsWith('COLOR_')) return m.COLOR;
+  return m.GENERIC;
+}
+
+/**
+ * Loads the `draco3d` package's encoder module (its public entry, createEncoderModule) and
+ * returns a synchronous encoder. Speed options 5/5 are Draco's defaults (from memory); the
+ * encoder is deterministic for the same input.
+ */
+export async function loadDracoEncoder(): Promise<DracoEncodeFn> {
+  encoderPromise ??= (async () => {
+    const mod: any = await import('draco3d');
+    const draco3d = mod.default ?? mod;
+    return await draco3d.createEncoderModule({});
+  })();
+  const m = await encoderPromise;
+  return (input) => {
+    const builder = new m.MeshBuilder();
+    const mesh = new m.Mesh();
+    let encoder: any = null;
+    const out = new m.DracoInt8Array();
+    try {
+      builder.AddFacesToMesh(mesh, input.indices.length / 3, input.indices);
+      const ids: Record<string, number> = {};
+      const bits: [number, number][] = [];
+      for (const a of input.attributes) {
+        const type = dracoAttributeType(m, a.semantic);
+        const n = input.vertexCount;
+        const arr = a.array;
+        let id: number;
+        if (arr instanceof Float32Array) id = builder.AddFloatAttribute(mesh, type, n, a.itemSize, arr);
+        else if (arr instanceof Int8Array) id = builder.AddInt8Attribute(mesh, type, n, a.itemSize, arr);
+        else if (arr instanceof Uint8Array) id = builder.AddUInt8Attribute(mesh, type, n, a.itemSize, arr);
+        else if (arr instanceof Int16Array) id = builder.AddInt16Attribute(mesh, type, n, a.itemSize, arr);
+        else if (arr instanceof Uint16Array) id = builder.AddUInt16Attribute(mesh, type, n, a.itemSize, arr);
+        else id = builder.AddUInt32Attribute(mesh, type, n, a.itemSize, arr);
+        if (id < 0) throw new TanframeError('internal', `Draco encoder refused attribute ${a.semantic}`);
+        ids[a.semantic] = id;
+        if (arr instanceof Float32Array && a.bits !== null) bits.push([id, a.bits]);
+      }
+      encoder = new m.ExpertEncoder(mesh);
+      for (const [id, b] of bits) encoder.SetAttributeQuantization(id, b);
+      encoder.SetSpeedOptions(5, 5);
+      encoder.SetEncodingMethod(input.method === 0 ? m.MESH_SEQUENTIAL_ENCODING : m.MESH_EDGEBREAKER_ENCODING);
+      const length = encoder.EncodeToDracoBuffer(false, out);
+      if (!(length > 0)) throw new TanframeError('internal', 'the Draco encoder produced no data');
+      const bytes = new Uint8Array(length);
+      for (let i = 0; i < length; i++) bytes[i] = out.GetValue(i) & 0xff;
+      return { bytes, ids };
+    } finally {
+      m.destroy(out);
+      if (encoder) m.destroy(encoder);
+      m.destroy(mesh);
+      m.destroy(builder);
+    }
+  };
 }

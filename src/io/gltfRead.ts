@@ -48,7 +48,7 @@ import { diskResources, type ResourceSource } from './resources.js';
 
 /**
  * Required extensions we can process: ones that do not change how geometry is stored, plus the
- * geometry compressions we decode (the output is written uncompressed).
+ * geometry compressions we decode (and the writer can write again).
  */
 const SAFE_REQUIRED_EXTENSIONS = new Set([
   'KHR_mesh_quantization',
@@ -573,7 +573,9 @@ export async function readGltfBytes(bytes: Uint8Array, sourcePath: string, limit
   const warnings: string[] = [];
   const externalImages = await resolveImages(json, baseDir, warnings, resources);
   const decompressed = [...(ctx.draco.size > 0 ? [DRACO] : []), ...meshopt.decoded];
-  return { sourcePath, container: isGlb ? 'glb' : 'gltf', json, buffers, externalImages, primitives, warnings, decompressed };
+  const asset: Asset = { sourcePath, container: isGlb ? 'glb' : 'gltf', json, buffers, externalImages, primitives, warnings, decompressed };
+  if (meshopt.views.length > 0) asset.meshoptViews = meshopt.views;
+  return asset;
 }
 
 /**

@@ -2,7 +2,8 @@
  * Encodes an Asset, with some primitives replaced by baked geometry, as .glb or .gltf.
  * Based on: glTF 2.0 specification, sections 3.6 (buffers, buffer views, accessors, data
  * alignment, accessor bounds), 3.7.2 (mesh primitives: POSITION min/max required, index
- * component types, morph targets), 3.8.3 (images) and 4.4 (GLB); KHR_mesh_quantization.
+ * component types, morph targets), 3.8.3 (images) and 4.4 (GLB); KHR_mesh_quantization;
+ * KHR_draco_mesh_compression and EXT_meshopt_compression (compressed output).
  *
  * The JSON members the encoder edits are deep-copied and edited in place, the others shared
  * with the input, so every key keeps the input's order and everything we do not touch
@@ -10,16 +11,21 @@
  * references renumbered. All binary data goes into one new buffer: kept buffer views are
  * copied, new accessors get their own tightly packed views; every view starts 4-byte
  * aligned. Replacement arrays shared between primitives (the same AttributeData or index
- * array object) are written once and their accessor shared. Compressed geometry is written
- * uncompressed: Draco primitives from their decoded data, meshopt views from the bytes the
- * reader decoded into them. Every written POSITION accessor (kept or new) has a correct
- * min/max. The output is a pure function of the inputs.
+ * array object) are written once and their accessor shared. Without `compression`,
+ * compressed geometry is written uncompressed: Draco primitives from their decoded data,
+ * meshopt views from the bytes the reader decoded into them. With it (WriteCompression),
+ * unbaked Draco primitives and meshopt views keep their compressed bytes, and replacements
+ * are written as the Draco streams or meshopt views it names (the uncompressed homes of
+ * meshopt views in a fallback buffer 1 without data). Every written POSITION accessor (kept
+ * or new) has a correct min/max. The output is a pure function of the inputs.
  */
 import { createHash } from 'node:crypto';
 import * as path from 'node:path';
 import {
+  BYTE,
   FLOAT,
   MODE_TRIANGLES,
+  SHORT,
   UNSIGNED_INT,
   UNSIGNED_SHORT,
   type Asset,
@@ -27,12 +33,14 @@ import {
   type ComponentArray,
   type PrimitiveReplacement,
 } from '../mesh/asset.js';
+import { toFloat32 } from '../mesh/decode.js';
 import { TanframeError, assert } from '../mesh/errors.js';
 import type { OutputFile } from './files.js';
 import { assembleGlbWith } from './glb.js';
 import { TYPE_COMPONENTS, elementLayout, packedElementBytes } from './gltfAccessor.js';
 import { accessorRefs, bufferViewRefs, keepReferenced } from './gltfRefs.js';
 import { needsQuantization } from './gltfSemantics.js';
+import type { MeshoptEncoders } from './meshopt.js';
 import { uriToRelativePath } from './uri.js';
 
 /** Options of encodeGltf. */
@@ -44,6 +52,45 @@ export interface EncodeOptions {
   imageUris?: Record<string, string>;
   /** .gltf: store the buffer as a `data:` URI instead of a .bin file (the input's buffers were embedded). */
   embedBuffers?: boolean;
+  /** How compressed geometry is written; absent: everything decoded and plain. */
+  compression?: WriteCompression;
+}
+
+/** A baked primitive's geometry as a Draco stream made for it (see lib/compression.ts). */
+export interface DracoPrimitive {
+  /** The stream. */
+  bytes: Uint8Array;
+  /** The extension's `attributes` map: semantic -> Draco unique id. */
+  ids: Record<string, number>;
+  /** Vertices and index count the stream decodes to. */
+  vertexCount: number;
+  indexCount: number;
+  /** Per semantic, the accessor describing the decoded data (no bufferView), POSITION with min/max. */
+  accessors: Record<string, { componentType: number; normalized: boolean; type: string; min?: number[]; max?: number[] }>;
+}
+
+/** How a baked primitive's new buffer views are meshopt-compressed. */
+export interface MeshoptPrimitive {
+  /** EXT_meshopt_compression or KHR_meshopt_compression. */
+  name: string;
+  /** Semantics written through the OCTAHEDRAL filter (NORMAL, TANGENT), with the bytes per element (4: 8-bit, 8: 16-bit). */
+  octahedral: Record<string, 4 | 8>;
+}
+
+/**
+ * Compression of the output. Source: KHR_draco_mesh_compression (the primitive extension,
+ * accessors without bufferView describing the decoded data) and EXT_meshopt_compression
+ * (compressed views whose uncompressed home is a fallback buffer without data).
+ */
+export interface WriteCompression {
+  /** Draco primitives without a replacement and meshopt-compressed views keep the input's compressed bytes. */
+  keepCompressed: boolean;
+  /** Replacements stored as Draco streams. */
+  draco: Map<PrimitiveReplacement, DracoPrimitive>;
+  /** Replacements (keys as the replacements map) whose new views are meshopt-compressed. */
+  meshopt: Map<number, MeshoptPrimitive>;
+  /** Needed when `meshopt` is not empty. */
+  meshoptEncoders?: MeshoptEncoders;
 }
 
 /** Hex digits of the content hash in a .gltf's buffer file name (`<name>.<hash>.bin`). */
@@ -70,7 +117,7 @@ export function isBufferFileOf(outPath: string, name: string): boolean {
 const ARRAY_BUFFER = 34962;
 const ELEMENT_ARRAY_BUFFER = 34963;
 
-/** Geometry-compression extensions whose data we never write (output is uncompressed). */
+/** Geometry-compression extensions. */
 const MESHOPT = ['EXT_meshopt_compression', 'KHR_meshopt_compression'];
 const DRACO = 'KHR_draco_mesh_compression';
 const QUANTIZATION = 'KHR_mesh_quantization';
@@ -134,7 +181,21 @@ interface EncodeState {
   writtenAttributes: Map<AttributeData, number>;
   /** Accessors already written for a replacement index array. */
   writtenIndices: Map<Uint32Array, number>;
+  compression: WriteCompression | null;
+  /** Bytes of the meshopt fallback buffer (buffer 1): the uncompressed homes of compressed views. */
+  fallbackLength: number;
+  /** Meshopt extensions the output's views use. */
+  meshoptUsed: Set<string>;
+  /** While a replacement's views are written meshopt-compressed: how. */
+  meshoptNow: MeshoptPrimitive | null;
+  /** Draco primitives already written (shared replacements share accessors and stream). */
+  writtenDraco: Map<PrimitiveReplacement, { attributes: Record<string, number>; indices: number; view: number }>;
+  /** True when a primitive of the output holds Draco data. */
+  dracoUsed: boolean;
 }
+
+/** The buffer holding the uncompressed homes of meshopt-compressed views (no data: EXT_meshopt_compression fallback). */
+const FALLBACK_BUFFER = 1;
 
 /** The bytes of original buffer view `i` (the reader checked its range). */
 function originalViewBytes(asset: Asset, i: number): Uint8Array {
@@ -203,13 +264,37 @@ function keepAccessors(state: EncodeState, replaced: Set<string>): void {
   json.accessors = state.accessors;
 }
 
-/** Keeps referenced buffer views, copying their bytes into the new buffer. */
+/** Places `byteLength` bytes in the fallback buffer and returns their offset (4-byte aligned). */
+function addFallback(state: EncodeState, byteLength: number): number {
+  const offset = align4(state.fallbackLength);
+  state.fallbackLength = offset + byteLength;
+  return offset;
+}
+
+/**
+ * Keeps referenced buffer views, copying their bytes into the new buffer. With
+ * `keepCompressed`, a meshopt-compressed view keeps its compressed stream (copied) and its
+ * extension object, its uncompressed home moving to the fallback buffer; otherwise it is
+ * written with the bytes the reader decoded into it.
+ */
 function keepBufferViews(state: EncodeState): void {
   const json = state.json;
   const all: any[] = Array.isArray(json.bufferViews) ? json.bufferViews : [];
   const kept = keepReferenced(bufferViewRefs(json), all.length, 'bufferView');
+  const compressed = new Map((state.compression?.keepCompressed ? state.asset.meshoptViews ?? [] : []).map((v) => [v.view, v]));
   state.views = kept.map((old) => {
     const view = all[old];
+    const c = compressed.get(old);
+    if (c) {
+      const ext = view.extensions[c.name];
+      ext.buffer = 0;
+      ext.byteOffset = state.bin.add(c.source);
+      stripExtensions(view, MESHOPT.filter((n) => n !== c.name));
+      view.buffer = FALLBACK_BUFFER;
+      view.byteOffset = addFallback(state, view.byteLength);
+      state.meshoptUsed.add(c.name);
+      return view;
+    }
     const offset = state.bin.add(originalViewBytes(state.asset, old));
     view.buffer = 0;
     if (view.byteOffset !== undefined || offset !== 0) view.byteOffset = offset;
@@ -217,6 +302,40 @@ function keepBufferViews(state: EncodeState): void {
     return view;
   });
   json.bufferViews = state.views;
+}
+
+/**
+ * Appends a meshopt-compressed buffer view over `bytes` (`count` elements of `stride` bytes):
+ * the stream in buffer 0, the uncompressed home in the fallback buffer. Vertex views declare
+ * their byteStride (glTF 2.0: index views never do). Returns its index.
+ */
+function addCompressedView(state: EncodeState, name: string, bytes: Uint8Array, count: number, stride: number, mode: 'ATTRIBUTES' | 'TRIANGLES', filter: string | null): number {
+  const encoders = state.compression?.meshoptEncoders;
+  assert(encoders !== undefined, 'meshopt compression asked for without the encoders');
+  const stream = encoders.encode(bytes, count, stride, mode);
+  const ext: any = { buffer: 0, byteOffset: state.bin.add(stream), byteLength: stream.byteLength, byteStride: stride, count, mode };
+  if (filter) ext.filter = filter;
+  const view: any = { buffer: FALLBACK_BUFFER, byteOffset: addFallback(state, bytes.byteLength), byteLength: bytes.byteLength };
+  if (mode === 'ATTRIBUTES') view.byteStride = stride;
+  view.target = mode === 'ATTRIBUTES' ? ARRAY_BUFFER : ELEMENT_ARRAY_BUFFER;
+  view.extensions = { [name]: ext };
+  state.meshoptUsed.add(name);
+  state.views.push(view);
+  return state.views.length - 1;
+}
+
+/**
+ * A vertex attribute through the OCTAHEDRAL filter: its float values (w 0 for a VEC3) encoded
+ * by meshoptimizer's encodeFilterOct at the full precision of `stride` (8 or 16 bits), read
+ * back as normalized BYTE or SHORT (EXT_meshopt_compression, filter OCTAHEDRAL; KHR_mesh_quantization).
+ */
+function octahedralBytes(state: EncodeState, a: AttributeData, count: number, stride: 4 | 8): Uint8Array {
+  const f = toFloat32(a);
+  const values = new Float32Array(count * 4);
+  for (let i = 0; i < count; i++) {
+    for (let c = 0; c < a.itemSize && c < 4; c++) values[i * 4 + c] = f[i * a.itemSize + c];
+  }
+  return state.compression!.meshoptEncoders!.octahedral(values, count, stride, stride === 4 ? 8 : 16);
 }
 
 /** Appends a buffer view over `bytes` and returns its index. */
@@ -330,9 +449,21 @@ function addAttributeAccessor(state: EncodeState, semantic: string, a: Attribute
   }
   const count = checkAttributeData(a, what);
   if (count === 0) throw new TanframeError('bad-gltf', `${what} has no vertices to write`);
-  const { bytes, stride } = vertexLayoutBytes(a, count);
-  const accessor: any = { bufferView: addView(state, bytes, stride, ARRAY_BUFFER), componentType: a.componentType };
-  if (a.normalized) accessor.normalized = true;
+  const m = state.meshoptNow;
+  const oct = m && !isTarget && (a.itemSize === 3 || a.itemSize === 4) ? m.octahedral[semantic] : undefined;
+  let accessor: any;
+  if (m && oct) {
+    // Decoded by the filter into normalized BYTE (4-byte elements) or SHORT (8-byte elements).
+    const componentType = oct === 4 ? BYTE : SHORT;
+    accessor = { bufferView: addCompressedView(state, m.name, octahedralBytes(state, a, count, oct), count, oct, 'ATTRIBUTES', 'OCTAHEDRAL'), componentType, normalized: true };
+  } else {
+    const { bytes, stride } = vertexLayoutBytes(a, count);
+    const view = m
+      ? addCompressedView(state, m.name, bytes, count, stride ?? bytes.byteLength / count, 'ATTRIBUTES', null)
+      : addView(state, bytes, stride, ARRAY_BUFFER);
+    accessor = { bufferView: view, componentType: a.componentType };
+    if (a.normalized) accessor.normalized = true;
+  }
   accessor.count = count;
   accessor.type = a.type;
   if (semantic === 'POSITION') {
@@ -341,7 +472,7 @@ function addAttributeAccessor(state: EncodeState, semantic: string, a: Attribute
     accessor.min = b.min;
     accessor.max = b.max;
   }
-  if (needsQuantization(semantic, a.type, a.componentType, a.normalized, isTarget)) state.needsQuantization = true;
+  if (needsQuantization(semantic, a.type, accessor.componentType, accessor.normalized === true, isTarget)) state.needsQuantization = true;
   state.accessors.push(accessor);
   state.writtenAttributes.set(a, state.accessors.length - 1);
   return state.accessors.length - 1;
@@ -359,8 +490,11 @@ function addIndexAccessor(state: EncodeState, indices: Uint32Array, vertexCount:
   const small = max < 65535;
   const data = small ? Uint16Array.from(indices) : indices;
   const bytes = new Uint8Array(data.buffer, data.byteOffset, data.byteLength);
+  const m = state.meshoptNow;
   state.accessors.push({
-    bufferView: addView(state, bytes, undefined, ELEMENT_ARRAY_BUFFER),
+    bufferView: m
+      ? addCompressedView(state, m.name, bytes, indices.length, small ? 2 : 4, 'TRIANGLES', null)
+      : addView(state, bytes, undefined, ELEMENT_ARRAY_BUFFER),
     componentType: small ? UNSIGNED_SHORT : UNSIGNED_INT,
     count: indices.length,
     type: 'SCALAR',
@@ -384,7 +518,7 @@ function writeAttributeMap(state: EncodeState, original: unknown, map: Record<st
 }
 
 /** Replaces one primitive's geometry: new attributes, indices and targets; mode triangles. */
-function writeReplacement(state: EncodeState, m: number, p: number, r: PrimitiveReplacement): void {
+function writeReplacement(state: EncodeState, m: number, p: number, r: PrimitiveReplacement, key: number): void {
   const prim = state.json.meshes[m].primitives[p];
   const what = `mesh ${m} primitive ${p}`;
   const oldTargets: any[] = Array.isArray(prim.targets) ? prim.targets : [];
@@ -395,13 +529,61 @@ function writeReplacement(state: EncodeState, m: number, p: number, r: Primitive
   for (const [sem, a] of Object.entries(r.attributes)) {
     assert(checkAttributeData(a, `${what} ${sem}`) === vertexCount, `${what}: ${sem} count differs from the other attributes`);
   }
-  prim.attributes = writeAttributeMap(state, prim.attributes, r.attributes, false, what);
-  prim.indices = addIndexAccessor(state, r.indices, vertexCount, what);
+  const draco = state.compression?.draco.get(r);
+  if (draco) {
+    writeDracoGeometry(state, prim, r, draco);
+  } else {
+    state.meshoptNow = state.compression?.meshopt.get(key) ?? null;
+    prim.attributes = writeAttributeMap(state, prim.attributes, r.attributes, false, what);
+    prim.indices = addIndexAccessor(state, r.indices, vertexCount, what);
+  }
   if (oldTargets.length > 0) {
+    // Morph targets stay accessors (KHR_draco_mesh_compression compresses only the base attributes and indices).
     prim.targets = r.targets.map((t, i) => writeAttributeMap(state, oldTargets[i], t, true, `${what} target ${i}`));
   }
+  state.meshoptNow = null;
   // Replacements are triangle lists; an absent mode already means triangles (glTF 2.0, mesh.primitive.mode default 4).
   if (prim.mode !== undefined) prim.mode = MODE_TRIANGLES;
+}
+
+/**
+ * Writes a replacement's base geometry as its Draco stream: one view holding the stream,
+ * accessors without bufferView describing the decoded data (count, type, POSITION min/max;
+ * KHR_draco_mesh_compression: such accessors are the fallback description of the stream's
+ * data), an indices accessor without bufferView, and the primitive extension. Primitives
+ * sharing the replacement share it all.
+ */
+function writeDracoGeometry(state: EncodeState, prim: any, r: PrimitiveReplacement, d: DracoPrimitive): void {
+  let done = state.writtenDraco.get(r);
+  if (!done) {
+    const attributes: Record<string, number> = {};
+    for (const sem of orderedSemantics(prim.attributes, r.attributes)) {
+      const a = d.accessors[sem];
+      assert(a !== undefined, `Draco stream lacks ${sem}`);
+      const accessor: any = { componentType: a.componentType };
+      if (a.normalized) accessor.normalized = true;
+      accessor.count = d.vertexCount;
+      accessor.type = a.type;
+      if (a.min && a.max) {
+        accessor.min = a.min;
+        accessor.max = a.max;
+      }
+      if (needsQuantization(sem, a.type, a.componentType, a.normalized, false)) state.needsQuantization = true;
+      state.accessors.push(accessor);
+      attributes[sem] = state.accessors.length - 1;
+    }
+    // Source: glTF 2.0 specification, 3.7.2.1: the maximum value of the type (65535) is reserved.
+    state.accessors.push({ componentType: d.vertexCount <= 65535 ? UNSIGNED_SHORT : UNSIGNED_INT, count: d.indexCount, type: 'SCALAR' });
+    done = { attributes, indices: state.accessors.length - 1, view: addView(state, d.bytes, undefined, undefined) };
+    state.writtenDraco.set(r, done);
+  }
+  prim.attributes = { ...done.attributes };
+  prim.indices = done.indices;
+  const ids: Record<string, number> = {};
+  for (const sem of Object.keys(prim.attributes)) ids[sem] = d.ids[sem];
+  if (!isObject(prim.extensions)) prim.extensions = {};
+  prim.extensions[DRACO] = { bufferView: done.view, attributes: ids };
+  state.dracoUsed = true;
 }
 
 /** Removes `name` from extensionsUsed / extensionsRequired (dropping emptied lists). */
@@ -426,8 +608,12 @@ function tidyExtensions(state: EncodeState): void {
   const json = state.json;
   for (const n of MESHOPT) undeclareExtension(json, n);
   for (const b of Array.isArray(json.buffers) ? json.buffers : []) stripExtensions(b, MESHOPT);
+  // Required: the fallback buffer has no data, so a reader without the extension cannot load the file.
+  for (const n of MESHOPT) if (state.meshoptUsed.has(n)) declareRequiredExtension(json, n);
   const dracoLeft = (json.meshes ?? []).some((mesh: any) => (mesh?.primitives ?? []).some((p: any) => isObject(p?.extensions?.[DRACO])));
   if (!dracoLeft) undeclareExtension(json, DRACO);
+  // Required: Draco primitives written here have no uncompressed data.
+  if (state.dracoUsed) declareRequiredExtension(json, DRACO);
   if (state.needsQuantization) declareRequiredExtension(json, QUANTIZATION);
 }
 
@@ -455,6 +641,10 @@ function finishLists(state: EncodeState, binLength: number, binUri: string | nul
   const json = state.json;
   if (binLength > 0) json.buffers = [bufferObject(json, binLength, binUri)];
   else delete json.buffers;
+  if (state.fallbackLength > 0) {
+    const name = MESHOPT.find((n) => state.meshoptUsed.has(n))!;
+    json.buffers.push({ byteLength: align4(state.fallbackLength), extensions: { [name]: { fallback: true } } });
+  }
   if (state.views.length > 0) json.bufferViews = state.views;
   else delete json.bufferViews;
   if (state.accessors.length > 0) json.accessors = state.accessors;
@@ -468,15 +658,16 @@ function isDracoPrimitive(asset: Asset, p: { mesh: number; primitive: number }):
 
 /**
  * Primitives whose geometry exists only as decoded data are written from it when they have no
- * replacement: every OBJ primitive (the synthesized JSON has empty attribute maps) and every
- * Draco-compressed glTF primitive (its accessors have no uncompressed data, or data the
- * extension overrides). Their decoded data is a triangle list.
+ * replacement: every OBJ primitive (the synthesized JSON has empty attribute maps) and, unless
+ * `keepCompressed` keeps their streams, every Draco-compressed glTF primitive (its accessors
+ * have no uncompressed data, or data the extension overrides). Their decoded data is a
+ * triangle list.
  */
-function withDecodedDefaults(asset: Asset, replacements: Map<number, PrimitiveReplacement>): Map<number, PrimitiveReplacement> {
+function withDecodedDefaults(asset: Asset, replacements: Map<number, PrimitiveReplacement>, keepCompressed: boolean): Map<number, PrimitiveReplacement> {
   const all = new Map(replacements);
   asset.primitives.forEach((p, i) => {
     if (all.has(i)) return;
-    if (asset.container !== 'obj' && !isDracoPrimitive(asset, p)) return;
+    if (asset.container !== 'obj' && (keepCompressed || !isDracoPrimitive(asset, p))) return;
     assert(p.mode === MODE_TRIANGLES, `decoded primitive ${i} is not a triangle list`);
     const first = Object.values(p.attributes)[0];
     const count = first ? first.array.length / first.itemSize : 0;
@@ -487,12 +678,12 @@ function withDecodedDefaults(asset: Asset, replacements: Map<number, PrimitiveRe
 }
 
 /** Maps replacement keys (indices into asset.primitives) to "mesh/primitive", sorted by key. */
-function replacementTargets(asset: Asset, replacements: Map<number, PrimitiveReplacement>): [number, number, PrimitiveReplacement][] {
+function replacementTargets(asset: Asset, replacements: Map<number, PrimitiveReplacement>): [number, number, PrimitiveReplacement, number][] {
   const keys = [...replacements.keys()].sort((a, b) => a - b);
   return keys.map((k) => {
     const prim = asset.primitives[k];
     assert(prim !== undefined, `replacement key ${k} is not a primitive index`);
-    return [prim.mesh, prim.primitive, replacements.get(k)!];
+    return [prim.mesh, prim.primitive, replacements.get(k)!, k];
   });
 }
 
@@ -523,26 +714,29 @@ function editableCopy(json: any): any {
  * `<basename>.<hash>.bin` when there is binary data (bufferFileName; none with `embedBuffers`,
  * which stores it as a data: URI), then each external image with known bytes at its relative
  * URI beside the output (or the URI `imageUris` gives it, which the JSON then names). asset.generator and everything not edited stay as read.
- * OBJ primitives and Draco-compressed primitives without a replacement are written from
- * their decoded data; meshopt-compressed views are written with the bytes the reader decoded.
+ * OBJ primitives, and without `compression.keepCompressed` Draco-compressed primitives without
+ * a replacement, are written from their decoded data, meshopt-compressed views with the bytes
+ * the reader decoded; `compression` says what is written compressed.
  * Preconditions: replacement attribute arrays match their componentType/type, equal counts,
  * indices in range, as many morph targets as the original. Deterministic.
  * Throws 'bad-gltf' for dangling references or empty replacements, 'too-large' past 4 GiB GLB.
  */
 export function encodeGltf(asset: Asset, replacements: Map<number, PrimitiveReplacement>, options: EncodeOptions): OutputFile[] {
   const json = editableCopy(asset.json);
-  const targets = replacementTargets(asset, withDecodedDefaults(asset, replacements));
+  const compression = options.compression ?? null;
+  const targets = replacementTargets(asset, withDecodedDefaults(asset, replacements, !!compression?.keepCompressed));
   const replaced = new Set(targets.map(([m, p]) => `${m}/${p}`));
   const state: EncodeState = {
     asset, json, bin: new BinBuilder(), views: [], accessors: [], needsQuantization: false,
     writtenAttributes: new Map(), writtenIndices: new Map(),
+    compression, fallbackLength: 0, meshoptUsed: new Set(), meshoptNow: null, writtenDraco: new Map(), dracoUsed: false,
   };
   for (const [m, p] of targets) stripExtensions(json.meshes[m].primitives[p], [DRACO]);
   keepAccessors(state, replaced);
   keepBufferViews(state);
   const outDir = path.dirname(options.outPath);
   const imageFiles = placeImages(state, options.format, outDir, options.imageUris ?? {});
-  for (const [m, p, r] of targets) writeReplacement(state, m, p, r);
+  for (const [m, p, r, key] of targets) writeReplacement(state, m, p, r, key);
   tidyExtensions(state);
   if (options.format === 'glb') {
     // The new buffer goes straight into the GLB's BIN chunk, never joined on its own first.

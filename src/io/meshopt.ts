@@ -1,7 +1,7 @@
 /**
  * Decoding of meshopt-compressed buffer views (EXT_meshopt_compression and its Khronos
- * successor KHR_meshopt_compression) into plain bytes, so the rest of the reader and the
- * writer see an uncompressed file.
+ * successor KHR_meshopt_compression) into plain bytes, so the rest of the reader sees an
+ * uncompressed file, and the encoders the writer uses to store views compressed again.
  * Based on: EXT_meshopt_compression extension specification (buffer view extension object:
  * buffer, byteOffset, byteLength, byteStride, count, mode, filter; fallback buffers) and
  * KHR_meshopt_compression (same layout, adds the COLOR filter). The bitstream decoder is the
@@ -9,6 +9,7 @@
  * module embeds the WebAssembly, so nothing is fetched at run time), loaded only when a file
  * has compressed views.
  */
+import type { MeshoptViewRecord } from '../mesh/asset.js';
 import { TanframeError } from '../mesh/errors.js';
 import { chargeBudget, isIndex, type DecodeBudget } from './gltfAccessor.js';
 
@@ -113,12 +114,17 @@ function checkCompressedView(json: any, i: number, buffers: Uint8Array[]): Compr
   };
 }
 
+/** A compressed view as the input stored it (the Asset's record of it). */
+export type MeshoptView = MeshoptViewRecord;
+
 /** Result of decodeMeshoptViews. */
 export interface MeshoptResult {
   /** The buffers with every compressed view's destination filled with its decoded bytes. */
   buffers: Uint8Array[];
   /** Names of the meshopt extensions that were decoded (in a fixed order). */
   decoded: string[];
+  /** Every compressed view, in view order. */
+  views: MeshoptView[];
 }
 
 /**
@@ -140,7 +146,7 @@ export async function decodeMeshoptViews(json: any, buffers: Uint8Array[], empty
       throw new TanframeError('bad-gltf', `bufferView ${i} reads fallback buffer ${views[i].buffer}, which has no data, without meshopt compression`);
     }
   }
-  if (work.length === 0) return { buffers, decoded: [] };
+  if (work.length === 0) return { buffers, decoded: [], views: [] };
   const decode = await loadDecoder();
   const out = buffers.slice();
   const copied = new Set<number>();
@@ -160,5 +166,36 @@ export async function decodeMeshoptViews(json: any, buffers: Uint8Array[], empty
     }
   }
   const names = new Set(work.map((c) => c.name));
-  return { buffers: out, decoded: MESHOPT_EXTENSIONS.filter((n) => names.has(n)) };
+  const kept = work.map((c) => ({ view: c.view, name: c.name, source: c.source, byteStride: c.byteStride, count: c.count, mode: c.mode, filter: c.filter }));
+  return { buffers: out, decoded: MESHOPT_EXTENSIONS.filter((n) => names.has(n)), views: kept };
+}
+
+/** The meshopt encoders the writer uses (synchronous once loaded). */
+export interface MeshoptEncoders {
+  /** A buffer view's bytes as a meshopt stream of `mode` (bitstream version 0, which both extensions read). */
+  encode(bytes: Uint8Array, count: number, byteStride: number, mode: 'ATTRIBUTES' | 'TRIANGLES'): Uint8Array;
+  /**
+   * Unit vectors (4 floats per element: xyz and a fourth value kept as it is, the tangent's w)
+   * through the OCTAHEDRAL filter: `stride` 4 (8-bit) or 8 (16-bit) bytes per element, `bits` of precision.
+   */
+  octahedral(values: Float32Array, count: number, stride: 4 | 8, bits: number): Uint8Array;
+}
+
+let encoderPromise: Promise<MeshoptEncoders> | null = null;
+
+/**
+ * Loads the `meshoptimizer` package's encoder (its public `meshoptimizer/encoder` entry:
+ * encodeGltfBuffer, which runs encodeVertexBuffer / encodeIndexBuffer, and encodeFilterOct).
+ * Source: EXT_meshopt_compression specification (ATTRIBUTES and TRIANGLES streams, OCTAHEDRAL filter).
+ */
+export function loadMeshoptEncoder(): Promise<MeshoptEncoders> {
+  encoderPromise ??= (async () => {
+    const { MeshoptEncoder } = await import('meshoptimizer/encoder');
+    await MeshoptEncoder.ready;
+    return {
+      encode: (bytes, count, byteStride, mode) => MeshoptEncoder.encodeGltfBuffer(bytes, count, byteStride, mode, 0),
+      octahedral: (values, count, stride, bits) => MeshoptEncoder.encodeFilterOct(values, count, stride, bits),
+    };
+  })();
+  return encoderPromise;
 }

@@ -22,7 +22,7 @@ import { buildUvPicture, hasFindings } from './pictures.js';
 import { tangentNeedOf } from './material.js';
 import { morphTangentDelta, type MorphBase } from './morphTangents.js';
 import type { ProcessOptions } from './options.js';
-import { encodeTangents } from './tangentEncoding.js';
+import { encodeTangents, tangentTypeFor } from './tangentEncoding.js';
 import { Arena, threadArena } from '../mesh/arena.js';
 import { applyUvTransform, changesFrames, type UvTransform } from '../mesh/uvTransform.js';
 import { componentHalfStep, tangentValidityTolerances, unitLengthTolerance, uvOverlapAbsolute } from '../mesh/tolerances.js';
@@ -231,7 +231,8 @@ export function solvePrimitive(
     attributes[name] = gatherAttribute(p.attributes[name], source);
   }
   if (report.normalsGenerated) attributes.NORMAL = floatAttribute(gatherFloats(normals, 3, frames.sourceVertex), 3);
-  const tangent = encodeTangents(frames.tangents, options.tangentType);
+  const normalOut = report.normalsGenerated ? undefined : normalAttr;
+  const tangent = encodeTangents(frames.tangents, tangentTypeFor(normalOut, options.tangentType, options.tangentTypeFromInput !== false, options.compression ?? 'keep'));
   attributes.TANGENT = tangent;
   // Morph targets: split like the base; TANGENT deltas from the morphed shapes where the target
   // moves normals; a target without NORMAL deltas gets none (a TANGENT delta it had described

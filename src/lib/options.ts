@@ -28,6 +28,10 @@ export type GateName = (typeof GATE_NAMES)[number];
  */
 export type GateLimit = { count: number } | { percent: number };
 
+/** The `--compression` choices. */
+export const COMPRESSION_MODES = ['keep', 'none', 'draco', 'meshopt'] as const;
+export type CompressionMode = (typeof COMPRESSION_MODES)[number];
+
 /** How one file is processed. */
 export interface ProcessOptions {
   method: FrameMethod;
@@ -39,6 +43,19 @@ export interface ProcessOptions {
   normals: 'keep' | 'flat' | 'smooth';
   smoothAngle: number;
   tangentType: 'float' | 'snorm16' | 'snorm8';
+  /**
+   * True when no TANGENT type was asked for (`--tangent-type` absent): with `compression`
+   * 'keep', a primitive whose NORMAL is a normalized BYTE or SHORT (KHR_mesh_quantization)
+   * then gets TANGENT of the same type instead of `tangentType`.
+   */
+  tangentTypeFromInput: boolean;
+  /**
+   * How baked primitives are stored (`--compression`, DESIGN.md): 'keep' as they came in
+   * (Draco as Draco, meshopt views as meshopt, quantized as quantized), 'none' decoded and
+   * plain, 'draco' / 'meshopt' every baked primitive compressed that way. Primitives that are
+   * not baked keep their bytes in every mode but 'none'.
+   */
+  compression: CompressionMode;
   failOn: GateName[];
   /**
    * Per gate, how much a file may have before the gate trips; a gate not named here takes
@@ -63,6 +80,8 @@ export function defaultProcessOptions(): ProcessOptions {
     normals: 'keep',
     smoothAngle: DEFAULT_SMOOTH_ANGLE_DEG,
     tangentType: 'float',
+    tangentTypeFromInput: true,
+    compression: 'keep',
     failOn: [],
     limits: {},
     tolerance: DEFAULT_TANGENT_MISMATCH_DEG,

@@ -3,6 +3,7 @@
  * Every failure becomes a `failed` file report with a stable code; nothing is written for a
  * file that fails.
  */
+import { stat } from 'node:fs/promises';
 import * as path from 'node:path';
 import type { Asset } from '../mesh/asset.js';
 import { Arena, threadArena } from '../mesh/arena.js';
@@ -16,7 +17,8 @@ import { readObj, readObjBytes } from '../io/objRead.js';
 import { memoryResources, type AssetResources } from '../io/resources.js';
 import type { FileReport } from '../report/types.js';
 import type { UvPicture } from '../report/uvPicture.js';
-import { unchangedOutputs } from './assetFiles.js';
+import { referencedFiles, unchangedOutputs } from './assetFiles.js';
+import { planCompression, type PrimitiveCompression } from './compression.js';
 import { recordParts, type RecordParts } from './runState.js';
 import { hashWithStamp } from './stampCache.js';
 import { solveAsset } from './bakeAsset.js';
@@ -133,6 +135,45 @@ function oneLine(s: string): string {
   return quoteText(line.replace(/\s*[\r\n]+\s*/g, ' ').trim(), MAX_MESSAGE_LENGTH);
 }
 
+/** Extension names of the kinds of compression. */
+const EXTENSION_OF: Record<string, string> = { draco: 'KHR_draco_mesh_compression', meshopt: 'EXT_meshopt_compression' };
+
+/**
+ * The notes a bake adds about compression: what was decoded and written plain (with
+ * --compression none, saying so), and what the output compresses that the input did not.
+ */
+function compressionNotes(asset: Asset, primitives: PrimitiveCompression[], mode: string): string[] {
+  const notes: string[] = [];
+  const outKinds = new Set(primitives.map((c) => c.out));
+  for (const ext of asset.decompressed ?? []) {
+    const kind = ext === 'KHR_draco_mesh_compression' ? 'draco' : 'meshopt';
+    if (mode === 'none') notes.push(`decompressed ${ext} (written uncompressed: --compression none)`);
+    else if (!outKinds.has(kind)) notes.push(mode === 'keep' ? `decompressed ${ext} (written uncompressed)` : `decompressed ${ext}`);
+  }
+  const inKinds = new Set(primitives.map((c) => c.in));
+  for (const kind of ['draco', 'meshopt']) {
+    if (outKinds.has(kind as PrimitiveCompression['out']) && !inKinds.has(kind as PrimitiveCompression['in'])) notes.push(`baked primitives compressed with ${EXTENSION_OF[kind]} (--compression ${mode})`);
+  }
+  return notes;
+}
+
+/** Bytes of the input file and the external buffer files it names (present on disk). */
+async function inputGeometryBytes(asset: Asset, input: string): Promise<number> {
+  let total = (await stat(input)).size;
+  for (const ref of referencedFiles(asset, input)) {
+    if (ref.kind !== 'buffer') continue;
+    total += await stat(ref.path).then((s) => s.size, () => 0);
+  }
+  return total;
+}
+
+/** Bytes of the output file and its buffer files (.bin) among the files planned. */
+function outputGeometryBytes(files: { path: string; bytes: Uint8Array }[], out: string): number {
+  let total = 0;
+  for (const f of files) if (path.resolve(f.path) === path.resolve(out) || f.path.toLowerCase().endsWith('.bin')) total += f.bytes.byteLength;
+  return total;
+}
+
 /**
  * Processes one file and returns its report (never throws for bad input; programming errors
  * surface as code 'internal').
@@ -165,9 +206,7 @@ export async function processFileOutcome(job: FileJob, batchOptions: ProcessOpti
     const inputHash = job.record && job.output && !job.dryRun ? await hashWithStamp(job.input) : null;
     const asset = await readAsset(job.input, { maxTriangles: options.maxTriangles });
     report.warnings = capWarnings(asset.warnings).map((w) => quoteText(w, MAX_MESSAGE_LENGTH));
-    for (const ext of asset.decompressed ?? []) {
-      report.notes.push(job.command === 'bake' ? `decompressed ${ext} (written uncompressed)` : `decompressed ${ext}`);
-    }
+    if (job.command === 'audit') for (const ext of asset.decompressed ?? []) report.notes.push(`decompressed ${ext}`);
     const solved = solveAsset(asset, options, !!job.pictures);
     // The scratch of ordinary primitives stays for the next file; a huge one's is let go
     // before encoding, so it does not add to the file's peak.
@@ -183,8 +222,16 @@ export async function processFileOutcome(job: FileJob, batchOptions: ProcessOpti
       // A copy keeps the input's image URIs: when the plan renamed one, the file is encoded.
       const renamed = Object.keys(w?.imageUris ?? {}).length > 0;
       const unchanged = await unchangedOutputs(asset, job.input, out, format, solved.replacements.size > 0 || renamed, w?.files);
+      const mode = options.compression ?? 'keep';
+      const plan = await planCompression(asset, unchanged ? new Map() : solved.replacements, unchanged ? 'keep' : mode, options.tangentTypeFromInput !== false);
+      plan.primitives.forEach((c, i) => { if (report.primitives[i]) report.primitives[i].compression = c; });
       if (unchanged) report.notes = [unchanged.length === 0 ? 'nothing to bake: left as it was' : 'nothing to bake: written as the input\'s bytes'];
-      const planned = unchanged ?? encodeGltf(asset, solved.replacements, { format, outPath: out, imageUris: w?.imageUris, embedBuffers: w?.embedBuffers && asset.container === 'gltf' });
+      else report.notes.push(...compressionNotes(asset, plan.primitives, mode));
+      const planned = unchanged ?? encodeGltf(asset, solved.replacements, {
+        format, outPath: out, imageUris: w?.imageUris, embedBuffers: w?.embedBuffers && asset.container === 'gltf', compression: plan.write,
+      });
+      report.bytesIn = await inputGeometryBytes(asset, job.input);
+      report.bytesOut = unchanged && unchanged.length === 0 ? report.bytesIn : outputGeometryBytes(planned, out);
       const files = await guardOutputs(planned, out, job.input, asset, w);
       // In place with nothing to bake, nothing is written (and nothing the file names is removed).
       if (!job.dryRun && !(unchanged && unchanged.length === 0)) {

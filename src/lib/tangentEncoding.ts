@@ -24,3 +24,14 @@ export function encodeTangents(tangents: Float32Array, type: TangentType): Attri
   }
   return { array: out, itemSize: 4, type: 'VEC4', componentType: type === 'snorm16' ? SHORT : BYTE, normalized: true };
 }
+
+/**
+ * The TANGENT type a baked primitive gets: `--tangent-type` when given; otherwise, with
+ * 'keep', the type of a NORMAL stored as normalized BYTE or SHORT (KHR_mesh_quantization), else float.
+ */
+export function tangentTypeFor(normal: AttributeData | undefined, given: TangentType, fromInput: boolean, mode: 'keep' | 'none' | 'draco' | 'meshopt'): TangentType {
+  if (!fromInput || mode !== 'keep' || !normal || !normal.normalized) return given;
+  if (normal.componentType === BYTE) return 'snorm8';
+  if (normal.componentType === SHORT) return 'snorm16';
+  return given;
+}

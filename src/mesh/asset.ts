@@ -93,6 +93,24 @@ export interface Asset {
    * EXT_meshopt_compression, KHR_meshopt_compression); absent or empty when none.
    */
   decompressed?: string[];
+  /** The meshopt-compressed buffer views as the input stored them (see MeshoptViewRecord); absent or empty when none. */
+  meshoptViews?: MeshoptViewRecord[];
+}
+
+/** A meshopt-compressed buffer view as read: enough to write it again byte for byte. */
+export interface MeshoptViewRecord {
+  /** Index of the buffer view. */
+  view: number;
+  /** Extension name (EXT_meshopt_compression or KHR_meshopt_compression). */
+  name: string;
+  /** The compressed stream (a view of the input's buffer). */
+  source: Uint8Array;
+  byteStride: number;
+  count: number;
+  /** ATTRIBUTES, TRIANGLES or INDICES. */
+  mode: string;
+  /** NONE, OCTAHEDRAL, QUATERNION, EXPONENTIAL or COLOR. */
+  filter: string;
 }
 
 /** New geometry for one baked primitive: the writer stores it in place of the original. */

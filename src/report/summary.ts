@@ -154,6 +154,22 @@ export function skippedLine(f: FileReport): string | null {
   return `${total} primitive${total === 1 ? '' : 's'} skipped (${list})`;
 }
 
+/** Size change beyond which the summary shows it (a share of bytesIn): our choice. */
+export const SIZE_CHANGE_SHOWN = 0.1;
+
+function kilobytes(bytes: number): string {
+  return bytes < 10240 ? `${(bytes / 1024).toFixed(1)} KB` : `${n(Math.round(bytes / 1024))} KB`;
+}
+
+/** "size 14.2 KB -> 27.5 KB (+94%)" when a bake changed the file's size by more than SIZE_CHANGE_SHOWN, else null. */
+export function sizeChangeText(f: FileReport): string | null {
+  if (typeof f.bytesIn !== 'number' || typeof f.bytesOut !== 'number' || f.bytesIn <= 0) return null;
+  const change = f.bytesOut / f.bytesIn - 1;
+  if (Math.abs(change) <= SIZE_CHANGE_SHOWN) return null;
+  const percent = Math.round(change * 100);
+  return `size ${kilobytes(f.bytesIn)} -> ${kilobytes(f.bytesOut)} (${percent > 0 ? '+' : ''}${percent}%)`;
+}
+
 function fileBlock(f: FileReport, style: SummaryStyle): string[] {
   const input = cleanText(f.input);
   const target = f.output ? ` -> ${cleanText(f.output)}` : '';
@@ -185,6 +201,8 @@ function fileBlock(f: FileReport, style: SummaryStyle): string[] {
   if (skipped) lines.push(`         ${skipped}`);
   const notes = notesText(f);
   if (notes) lines.push(`         notes: ${notes}`);
+  const size = sizeChangeText(f);
+  if (size) lines.push(`         ${size}`);
   for (const w of f.warnings) lines.push(`         warning: ${cleanText(w)}`);
   for (const note of f.notes ?? []) lines.push(`         note: ${cleanText(note)}`);
   return lines;
@@ -200,7 +218,8 @@ function cleanLine(f: FileReport, style: SummaryStyle): string {
   const skipped = skippedLine(f);
   const waived = (f.waived ?? []).map((w) => `, waived ${w.gate} (${cleanText(w.reason)})`).join('');
   const warnings = warningTotal(f.warnings);
-  const extra = `${layout ? `; notes: ${layout}` : ''}${skipped ? `; ${skipped}` : ''}${waived}` +
+  const size = sizeChangeText(f);
+  const extra = `${layout ? `; notes: ${layout}` : ''}${skipped ? `; ${skipped}` : ''}${size ? `; ${size}` : ''}${waived}` +
     `${warnings ? `, ${n(warnings)} warning${warnings === 1 ? '' : 's'}` : ''}${notes}`;
   return `${paint(style.color, '32', 'ok       ')}${cleanText(f.input)}${target}  (${done.length} of ${f.primitives.length} primitives, ${n(tri)} triangles, no findings${extra})`;
 }

@@ -72,6 +72,8 @@ export interface PrimitiveReport {
   normalsGenerated: 'flat' | 'smooth' | null;
   /** Output vertices whose tangent came from the documented fallback. */
   fallbackTangents: number;
+  /** bake: how the primitive's geometry was stored in the input and is in the output (`--compression`). */
+  compression?: { in: 'draco' | 'meshopt' | 'quantized' | 'none'; out: 'draco' | 'meshopt' | 'quantized' | 'none' };
 }
 
 /** One input file's outcome. */
@@ -94,9 +96,15 @@ export interface FileReport {
   warnings: string[];
   /**
    * What the run did to the file beyond baking, one line each: e.g. "decompressed
-   * KHR_draco_mesh_compression" (the output is written uncompressed).
+   * KHR_draco_mesh_compression" (audit), "... (written uncompressed: --compression none)" (bake).
    */
   notes: string[];
+  /**
+   * bake: bytes of the input's geometry files (the file and its external buffers) and of the
+   * output's (the file and its .bin; images beside a .gltf are not counted).
+   */
+  bytesIn?: number;
+  bytesOut?: number;
   /** Wall time spent on this file (kept apart so the rest of the report is reproducible). */
   seconds: number;
 }

@@ -147,6 +147,24 @@ describe('cost grows linearly with the input, whatever its structure', () => {
     expectLinear('Draco counts (audit)', costs[0], costs[1]);
   });
 
+  it('a Draco primitive baked with --compression keep: encoded again in linear time and memory, output Draco-sized', async () => {
+    const costs: Cost[] = [];
+    const ratios: number[] = [];
+    for (const scale of [1, 4]) {
+      const file = await writeCase('draco-grid', scale, 'glb');
+      const out = path.join(root, `draco-grid-x${scale}.out.glb`);
+      const c = measure(['bake', file, '-o', out, ...RUN]);
+      expect(c.errors).toEqual([null]);
+      expect(JSON.parse(c.stdout).files[0].primitives[0].compression).toEqual({ in: 'draco', out: 'draco' });
+      costs.push(c);
+      ratios.push(fs.statSync(out).size / fs.statSync(file).size);
+    }
+    expectLinear('Draco re-encoding (bake)', costs[0], costs[1]);
+    // The output grows with the input: the added tangents, not a decoded copy (about 10x).
+    expect(ratios[1]).toBeLessThan(1.5 * ratios[0]);
+    expect(ratios[1]).toBeLessThan(4);
+  });
+
   it('JSON of many small objects: linear, within the documented multiple, and refused when denser than the budget', async () => {
     const costs: Cost[] = [];
     const sizes: number[] = [];

@@ -249,6 +249,7 @@ export async function buildCase(name, scale, size = 1) {
     case 'shared-morphs': return sharedMorphs(Math.round(40 * Math.sqrt(scale * size)), Math.round(100 * scale * size));
     case 'json-objects': return manySmallObjects(Math.round(100_000 * scale * size));
     case 'draco-counts': return dracoCounts(Math.round(100 * Math.sqrt(scale * size)), 1);
+    case 'draco-grid': return dracoCounts(Math.round(100 * Math.sqrt(scale * size)), null);
     default: throw new Error(`unknown case ${name}`);
   }
 }

@@ -149,15 +149,22 @@ describe('KHR_draco_mesh_compression', () => {
     });
   }
 
-  it('the file report and the printed summary note the decompression', async () => {
+  it('with --compression none the file report and the printed summary note the decompression; the default keeps Draco without a note', async () => {
     const { json, bin } = await dracoGltf('sequential');
     const d = dir();
     const input = await writeGlb(d, 'd', json, bin);
-    const bake = await runCli(['bake', input, '-o', path.join(d, 'out.glb'), '--all-primitives', '--report', path.join(d, 'r.json')], d);
+    const bake = await runCli(['bake', input, '-o', path.join(d, 'out.glb'), '--all-primitives', '--compression', 'none', '--report', path.join(d, 'r.json')], d);
     expect(bake.code).toBe(0);
-    expect(bake.stdout).toContain('decompressed KHR_draco_mesh_compression (written uncompressed)');
+    expect(bake.stdout).toContain('decompressed KHR_draco_mesh_compression (written uncompressed: --compression none)');
     const report = JSON.parse(readFileSync(path.join(d, 'r.json'), 'utf8'));
-    expect(report.files[0].notes).toEqual(['decompressed KHR_draco_mesh_compression (written uncompressed)']);
+    expect(report.files[0].notes).toEqual(['decompressed KHR_draco_mesh_compression (written uncompressed: --compression none)']);
+    expect(report.files[0].primitives[0].compression).toEqual({ in: 'draco', out: 'none' });
+    expect(report.options.compression).toBe('none');
+    const kept = await runCli(['bake', input, '-o', path.join(d, 'kept.glb'), '--all-primitives', '--json'], d);
+    expect(kept.code).toBe(0);
+    const keptFile = JSON.parse(kept.stdout).files[0];
+    expect(keptFile.notes).toEqual([]);
+    expect(keptFile.primitives[0].compression).toEqual({ in: 'draco', out: 'draco' });
     const audit = await runCli(['audit', input, '--json'], d);
     expect(JSON.parse(audit.stdout).files[0].notes).toEqual(['decompressed KHR_draco_mesh_compression']);
     // A plain file has no notes.

@@ -139,7 +139,9 @@ function filesUnder(dir: string): string[] {
   return out;
 }
 
-describe.skipIf(!present)('bake fidelity on every glTF sample (--all-primitives)', () => {
+// With --compression none every output is decoded and plain, so each corner can be compared
+// exactly; the default (keep, compressed as it came in) is checked in test/lib/compression.test.ts.
+describe.skipIf(!present)('bake fidelity on every glTF sample (--all-primitives --compression none)', () => {
   let tmp = '';
   const rows: string[] = [];
   let files: string[] = [];
@@ -160,7 +162,7 @@ describe.skipIf(!present)('bake fidelity on every glTF sample (--all-primitives)
     tmp = await mkdtemp(path.join(tmpdir(), 'tanframe-fidelity-'));
     files = sampleFiles(samples);
     const started = performance.now();
-    const r = await runCli(['bake', samples, '-o', path.join(tmp, 'a'), '--all-primitives', '--jobs', '1', '--report', path.join(tmp, 'a.json'), '--quiet'], repoRoot);
+    const r = await runCli(['bake', samples, '-o', path.join(tmp, 'a'), '--all-primitives', '--compression', 'none', '--jobs', '1', '--report', path.join(tmp, 'a.json'), '--quiet'], repoRoot);
     bakeSeconds = (performance.now() - started) / 1000;
     expect(r.stderr).toBe('');
     report = JSON.parse(readFileSync(path.join(tmp, 'a.json'), 'utf8'));
@@ -257,7 +259,7 @@ describe.skipIf(!present)('bake fidelity on every glTF sample (--all-primitives)
   });
 
   it('bakes to identical bytes in a second run with --jobs 2', async () => {
-    const r = await runCli(['bake', samples, '-o', path.join(tmp, 'b'), '--all-primitives', '--jobs', '2', '--quiet'], repoRoot);
+    const r = await runCli(['bake', samples, '-o', path.join(tmp, 'b'), '--all-primitives', '--compression', 'none', '--jobs', '2', '--quiet'], repoRoot);
     expect(r.stderr).toBe('');
     const a = filesUnder(path.join(tmp, 'a')).map((f) => path.relative(path.join(tmp, 'a'), f));
     const b = filesUnder(path.join(tmp, 'b')).map((f) => path.relative(path.join(tmp, 'b'), f));
