@@ -10,6 +10,7 @@ import {
   SLOT_OVERLAP_BOX, SLOT_OVERLAP_CELLS, SLOT_OVERLAP_CLASS, SLOT_OVERLAP_CURSOR, SLOT_OVERLAP_ENTRIES, SLOT_OVERLAP_FLAGS,
   SLOT_OVERLAP_HASH, SLOT_OVERLAP_LIVE, SLOT_OVERLAP_ORDER, SLOT_OVERLAP_RANGE, SLOT_OVERLAP_TABLE, SLOT_OVERLAP_USABLE,
   SLOT_SHELL_AREA, SLOT_SHELL_HASH_A, SLOT_SHELL_HASH_B, SLOT_SHELL_OF, SLOT_SHELL_PARENT, SLOT_SHELL_POINTS, SLOT_SHELL_SEEN,
+  SLOT_SHELL_USABLE,
   threadArena, type Arena,
 } from '../mesh/arena.js';
 import { assert } from '../mesh/errors.js';
@@ -124,8 +125,9 @@ export function findUvOverlaps(
   // the grid; pairs within a class are intentional stacking, and every copy takes its class's
   // verdict at the end. This keeps thousands of stacked copies from filling one cell.
   const classOf = stackedClasses(arena, indices, uvs, usable, triangleCount, usableCount);
-  // Shells and their keys (UV point hash and area), before copies leave the grid.
-  const shell = shellKeys(arena, indices, uvs, usable, triangleCount);
+  // Shells and their keys (UV point hash and area) over the usable triangles, copies included:
+  // made the first time an overlapping pair needs them (a layout without overlaps never does).
+  const shell: LazyShells = { keys: null, arena, indices, uvs, usable, classOf, triangleCount };
   let copies = 0;
   for (let t = 0; t < triangleCount; t++) {
     if (usable[t] && classOf[t] !== t) {
@@ -284,6 +286,28 @@ export interface UvLayoutOptions {
   touching?: number;
 }
 
+/** The shell keys of one findUvOverlaps call, made on first use (shellsOf). */
+interface LazyShells {
+  keys: ShellKeys | null;
+  arena: Arena;
+  indices: Uint32Array;
+  uvs: Float32Array;
+  /** Usable triangles with the exact copies taken out; a copy t has classOf[t] !== t. */
+  usable: Uint8Array;
+  classOf: Uint32Array;
+  triangleCount: number;
+}
+
+/** The shell keys, made the first time they are asked for, over the usable triangles with their copies. */
+function shellsOf(l: LazyShells): ShellKeys {
+  if (!l.keys) {
+    const before = l.arena.u8(SLOT_SHELL_USABLE, l.triangleCount);
+    for (let t = 0; t < l.triangleCount; t++) before[t] = l.usable[t] | (l.classOf[t] !== t ? 1 : 0);
+    l.keys = shellKeys(l.arena, l.indices, l.uvs, before, l.triangleCount);
+  }
+  return l.keys;
+}
+
 /** Per triangle its shell, and per shell two hashes of its UV points and its UV area. */
 interface ShellKeys {
   shellOf: Uint32Array;
@@ -370,7 +394,7 @@ function sameShellKey(k: ShellKeys, a: number, b: number): boolean {
  */
 function testPair(
   a: number, b: number, flags: Uint8Array, indices: Uint32Array, uvs: Float32Array,
-  touching: number, shell: ShellKeys, stacked: Uint8Array | null,
+  touching: number, shell: LazyShells, stacked: Uint8Array | null,
 ): number {
   const a0 = indices[a * 3] * 2, a1 = indices[a * 3 + 1] * 2, a2 = indices[a * 3 + 2] * 2;
   const au0 = uvs[a0], av0 = uvs[a0 + 1], au1 = uvs[a1], av1 = uvs[a1 + 1], au2 = uvs[a2], av2 = uvs[a2 + 1];
@@ -401,7 +425,7 @@ function testPair(
   }
   if (trianglesOverlap(au0, av0, au1, av1, au2, av2, bu0, bv0, bu1, bv1, bu2, bv2, touching)) {
     // Two shells with the same UV points and area laid on one another: stacking, not overlap.
-    if (sameShellKey(shell, a, b)) {
+    if (sameShellKey(shellsOf(shell), a, b)) {
       if (stacked) { stacked[a] = 1; stacked[b] = 1; }
       return 1;
     }

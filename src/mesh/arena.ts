@@ -63,6 +63,7 @@ export const SLOT_SHELL_HASH_A = 13;
 export const SLOT_SHELL_HASH_B = 14;
 export const SLOT_SHELL_POINTS = 15;
 export const SLOT_SHELL_SEEN = 16;
+export const SLOT_SHELL_USABLE = 12;
 export const SLOT_OVERLAP_LIVE = 17;
 export const SLOT_OVERLAP_FLAGS = 18;
 export const SLOT_STACKED = 19;
