@@ -195,6 +195,16 @@ if (!process.argv.includes('--no-convert')) {
   results.convertMap = { size: Number(size), exit: code };
 }
 
+// 6. render: one 512 x 512 view of a 100k-triangle model (its own script).
+if (!process.argv.includes('--no-render')) {
+  console.log('\nrender (bench/render.js):');
+  const code = await new Promise((resolve) => {
+    const p = spawn(process.execPath, ['--expose-gc', path.join(here, 'render.js'), '--runs', quick ? '3' : '7'], { cwd: repo, stdio: 'inherit' });
+    p.on('close', resolve);
+  });
+  results.render = { exit: code };
+}
+
 // 6. The targets (issue "Speed, round 2"), each with its measured value and PASS / MISS.
 const targets = [];
 const target = (name, value, pass, shown) => targets.push({ name, value, pass, shown });

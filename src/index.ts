@@ -10,7 +10,7 @@ export { TanframeError, type ErrorCode } from './mesh/errors.js';
 export type { Asset, AttributeData, ComponentArray, ExternalImage, MeshoptViewRecord, PrimitiveData, PrimitiveReplacement } from './mesh/asset.js';
 export type { UvTransform } from './mesh/uvTransform.js';
 export { readAsset, readAssetBytes, processFile, processFileOutcome, outputFormat, type FileJob, type FileOutcome } from './lib/processFile.js';
-export { solveAsset, solvePrimitive, type AssetSolve } from './lib/bakeAsset.js';
+export { solveAsset, solvePrimitive, type AssetSolve, type SolvedSurface } from './lib/bakeAsset.js';
 export { createCompactScratch, type CompactScratch } from './mesh/compact.js';
 export { defaultProcessOptions, GATE_NAMES, COMPRESSION_MODES, type CompressionMode, type GateLimit, type GateName, type ProcessOptions } from './lib/options.js';
 export { planCompression, compressionIn, DRACO_DEFAULT_BITS, type CompressionKind, type CompressionPlan, type PrimitiveCompression } from './lib/compression.js';
@@ -41,3 +41,9 @@ export {
   convertNormalMap, flipGreen, type ConvertMapOptions, type ConvertMapStats, type FrameSet, type MapPart, type MapSpace, type GreenDirection,
 } from './imaging/convert.js';
 export { mapPartsForAsset, primitiveFrameSet, type MapParts, type MapPartsRequest, type MapPrimitiveInfo, type PrimitiveRef } from './lib/mapFrames.js';
+export {
+  renderSheet, countFindings, sceneBounds, VIEW_NAMES, MODE_NAMES, FINDING_KINDS,
+  type RenderScene, type RenderPrimitive, type RenderInstance, type RenderMaterial, type RenderImage, type RenderTextureRef,
+  type RenderedSheet, type SheetOptions, type ViewName, type ModeName,
+} from './render/index.js';
+export { buildRenderScene, renderAssetPng, defaultRenderOptions, type BuiltScene, type RenderAssetOptions, type RenderedAsset } from './lib/renderAsset.js';

@@ -1,6 +1,6 @@
 /**
  * The commands' registrations: names, arguments and options, each action loading its command's
- * module (bake.ts, audit.ts, convert-map, report) with import() when it runs. So
+ * module (bake.ts, audit.ts, convert-map, report, render) with import() when it runs. So
  * `tanframe --version`, `--help` and a usage error load only commander and these option
  * parsers, and a command loads what it needs and nothing of the others (no PNG codec for a
  * bake, no mesh reader for `report`).
@@ -10,6 +10,8 @@ import { TanframeError } from '../mesh/errors.js';
 import { MAX_PADDING } from '../imaging/limits.js';
 import type { PrimitiveRef } from '../lib/mapFrames.js';
 import { COMPRESSION_MODES, STATE_FILE_NAME } from '../lib/options.js';
+import { defaultRenderOptions } from '../lib/renderOptions.js';
+import { MODE_NAMES, VIEW_NAMES } from '../render/names.js';
 import { addSharedOptions, annotateOption, type CliIo } from './options.js';
 
 /** Registers `bake` on `program`; `done` receives the exit status. */
@@ -109,5 +111,52 @@ export function registerReport(program: Command, io: CliIo, done: (code: number)
     .option('--quiet', 'print nothing but errors (no summary)', false)
     .action(async (files: string[], o: Record<string, any>) => {
       done(await (await import('./report.js')).runReport(files, o, io));
+    });
+}
+
+/** Smallest and largest --size. Our choice: legends need 16 px; 4096 keeps one view's samples within 256 MB. */
+export const MIN_RENDER_SIZE = 16;
+export const MAX_RENDER_SIZE = 4096;
+
+function listArg<T extends string>(names: readonly T[], what: string) {
+  return (value: string): T[] => {
+    const items = value.split(',').map((s) => s.trim()).filter(Boolean);
+    if (items.length === 0) throw new InvalidArgumentError(`expected a comma list of ${what}: ${names.join(', ')}`);
+    for (const i of items) if (!(names as readonly string[]).includes(i)) throw new InvalidArgumentError(`unknown ${what.replace(/s$/, '')} '${i}' (expected ${names.join(', ')})`);
+    return [...new Set(items)] as T[];
+  };
+}
+
+function sizeArg(value: string): number {
+  if (!/^\d+$/.test(value) || Number(value) < MIN_RENDER_SIZE || Number(value) > MAX_RENDER_SIZE) {
+    throw new InvalidArgumentError(`expected an integer in [${MIN_RENDER_SIZE}, ${MAX_RENDER_SIZE}]`);
+  }
+  return Number(value);
+}
+
+function lightArg(value: string): [number, number] {
+  const m = /^\s*(-?\d+(?:\.\d+)?)\s*,\s*(-?\d+(?:\.\d+)?)\s*$/.exec(value);
+  if (!m || Math.abs(Number(m[2])) > 90) throw new InvalidArgumentError('expected <azimuth>,<elevation> in degrees, elevation in [-90, 90] (e.g. 30,40)');
+  return [Number(m[1]), Number(m[2])];
+}
+
+/** Registers `render` on `program`; `done` receives the exit status. */
+export function registerRender(program: Command, io: CliIo, done: (code: number) => void): void {
+  const d = defaultRenderOptions();
+  program
+    .command('render')
+    .description('draw the model on the CPU into one PNG sheet: shaded with the baked frames, tangent mismatch, findings')
+    .argument('<input>', 'mesh file (.glb .gltf .obj)')
+    .requiredOption('-o, --out <file.png>', 'the PNG sheet to write')
+    .option('--views <list>', `comma list of ${VIEW_NAMES.join(', ')}`, listArg(VIEW_NAMES, 'views'), d.views)
+    .option('--modes <list>', `comma list of ${MODE_NAMES.join(', ')}`, listArg(MODE_NAMES, 'modes'), d.modes)
+    .option('--size <px>', 'pixels per side of one view', sizeArg, d.size)
+    .option('--light <azimuth>,<elevation>', 'light direction in degrees, view space (azimuth from +Z toward +X, elevation above the horizontal)', lightArg, d.light)
+    .addOption(new Option('--method <method>', 'frames to bake and draw').choices(['mikktspace', 'lengyel']).default(d.method))
+    .option('--uv <n>', 'TEXCOORD set to derive frames from (default: the one the normal texture samples, else 0)', uvArg)
+    .option('--quiet', 'print nothing but errors', false)
+    .option('--debug', 'show stack traces of internal errors', false)
+    .action(async (input: string, o: Record<string, any>) => {
+      done(await (await import('./render.js')).runRender(input, o, io));
     });
 }

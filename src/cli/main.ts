@@ -6,7 +6,7 @@
 import { Command, CommanderError } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
 import { cleanText } from '../mesh/text.js';
-import { registerAudit, registerBake, registerConvertMap, registerReport } from './commands.js';
+import { registerAudit, registerBake, registerConvertMap, registerRender, registerReport } from './commands.js';
 import { toolVersion, type CliIo } from './options.js';
 
 /** The real process streams and environment. */
@@ -36,6 +36,7 @@ export function buildProgram(io: CliIo, done: (code: number) => void): Command {
   registerAudit(program, io, done);
   registerConvertMap(program, io, done);
   registerReport(program, io, done);
+  registerRender(program, io, done);
   for (const c of program.commands) c.exitOverride().configureOutput({ writeOut: io.stdout, writeErr: io.stderr });
   return program;
 }

@@ -33,7 +33,8 @@ export interface BadNormals {
  * in src/mesh/tolerances.ts; default: float's UNIT_LENGTH_TOLERANCE). `positionHalfStep` is
  * the rounding of the positions' encoding (componentHalfStep; 0 for float): a triangle whose
  * face normal is within what that rounding can make of it takes no part in the flipped vote.
- * Returns the counts, in vertices.
+ * Returns the counts, in vertices. When `marks` is given (length >= vertexCount), marks[v] is
+ * set to 1 for each bad vertex and 0 otherwise (pictures colour the triangles that use them).
  * Preconditions: indices hold 3 * triangleCount entries, each < vertexCount; positions and
  * normals hold 3 floats per vertex.
  */
@@ -45,7 +46,9 @@ export function findBadNormals(
   vertexCount: number,
   unitTolerance: number = UNIT_LENGTH_TOLERANCE,
   positionHalfStep = 0,
+  marks: Uint8Array | null = null,
 ): BadNormals {
+  assert(!marks || marks.length >= vertexCount, 'marks must hold one entry per vertex');
   assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
   assert(positions.length >= vertexCount * 3, 'positions must hold 3 floats per vertex');
   assert(normals.length >= vertexCount * 3, 'normals must hold 3 floats per vertex');
@@ -79,9 +82,11 @@ export function findBadNormals(
   for (let v = 0; v < vertexCount; v++) {
     const nx = normals[v * 3], ny = normals[v * 3 + 1], nz = normals[v * 3 + 2];
     const len = Math.sqrt(nx * nx + ny * ny + nz * nz);
+    if (marks) marks[v] = 0;
     if (len <= ZERO_LENGTH) {
       zero++;
       count++;
+      if (marks) marks[v] = 1;
       continue;
     }
     let bad = false;
@@ -93,7 +98,10 @@ export function findBadNormals(
       flipped++;
       bad = true;
     }
-    if (bad) count++;
+    if (bad) {
+      count++;
+      if (marks) marks[v] = 1;
+    }
   }
   return { count, zero, nonUnit, flipped };
 }

@@ -30,3 +30,14 @@ export function findingFromMarks(marks: Uint8Array, triangleCount: number): Find
   }
   return { count, triangles };
 }
+
+/**
+ * Bits naming the kinds of finding a triangle can carry, for per-triangle marks that pictures
+ * colour (one bit per kind, OR-ed together).
+ */
+export const FINDING_DEGENERATE_UV = 1;
+export const FINDING_DEGENERATE_GEOMETRY = 2;
+export const FINDING_INVALID_VALUES = 4;
+export const FINDING_BAD_NORMALS = 8;
+export const FINDING_UV_OVERLAP = 16;
+export const FINDING_TANGENT_MISMATCH = 32;

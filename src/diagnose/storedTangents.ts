@@ -124,6 +124,8 @@ export function isStoredTangentSetValid(
  * p95 is the nearest-rank 95th percentile of the sorted corner angles (float64). `mismatched`
  * counts the compared corners with angle > toleranceDeg or a sign mismatch. With nothing
  * compared the three angles are 0.
+ * When `cornerMarks` is given (length >= computedIndices.length), cornerMarks[c] is set to 1 for
+ * each mismatched corner and 0 otherwise.
  * Preconditions: stored holds 4 floats and normals (if given) 3 floats per input vertex;
  * computed holds 4 floats per output vertex; computedIndices < sourceVertex.length;
  * sourceVertex entries < vertexCount; undefinedCorners (if given) holds one entry per corner.
@@ -138,7 +140,10 @@ export function compareStoredTangents(
   vertexCount: number,
   toleranceDeg: number = DEFAULT_TANGENT_MISMATCH_DEG,
   tol: TangentValidityTolerances = FLOAT_TANGENT_VALIDITY,
+  cornerMarks: Uint8Array | null = null,
 ): StoredTangentComparison {
+  assert(!cornerMarks || cornerMarks.length >= computedIndices.length, 'cornerMarks must hold one entry per corner');
+  if (cornerMarks) cornerMarks.fill(0, 0, computedIndices.length);
   assert(computed.length >= sourceVertex.length * 4, 'computed tangents must hold 4 floats per output vertex');
   assert(stored.length >= vertexCount * 4, 'stored tangents must hold 4 floats per vertex');
   assert(!normals || normals.length >= vertexCount * 3, 'normals must hold 3 floats per vertex');
@@ -169,7 +174,10 @@ export function compareStoredTangents(
     if (angle > max) max = angle;
     const signDiffers = (sw < 0) !== (cw < 0);
     if (signDiffers) signMismatch++;
-    if (signDiffers || angle > toleranceDeg) mismatched++;
+    if (signDiffers || angle > toleranceDeg) {
+      mismatched++;
+      if (cornerMarks) cornerMarks[c] = 1;
+    }
   }
   let p95 = 0;
   if (compared > 0) {

@@ -15,6 +15,9 @@ import { generateNormals } from '../mesh/normals.js';
 import { expandToTriangleList, isTriangleMode } from '../mesh/triangulate.js';
 import { computeFrames } from '../frames/computeFrames.js';
 import { countMirrorSeamSplits, markMirroredTriangles } from '../diagnose/index.js';
+import {
+  FINDING_BAD_NORMALS, FINDING_DEGENERATE_GEOMETRY, FINDING_DEGENERATE_UV, FINDING_INVALID_VALUES, FINDING_TANGENT_MISMATCH, FINDING_UV_OVERLAP,
+} from '../diagnose/finding.js';
 import type { PrimitiveReport } from '../report/types.js';
 import type { UvPicture } from '../report/uvPicture.js';
 import { diagnosePrimitive } from './diagnosePrimitive.js';
@@ -103,13 +106,23 @@ function targetFloats(a: AttributeData | undefined, k: number, genSource: Uint32
   return genSource ? gatherFloats(f, k, genSource) : f;
 }
 
+/** What a picture of the model needs beyond the replacement geometry (solvePrimitive with `surface`). */
+export interface SolvedSurface {
+  /** The file's stored TANGENT at each output vertex of the replacement (4 floats), or null when it has none (or normals were generated). */
+  storedTangents: Float32Array | null;
+  /** Per triangle of the replacement's indices (the input's triangle order), the FINDING_* bits (src/diagnose/finding.ts) of its findings. */
+  findings: Uint8Array;
+}
+
 /**
  * Solves one primitive. Returns its report, when its geometry changes the replacement, and
  * with `pictures` true and findings to show (hasFindings) its UV picture data (else null).
  * An indexed primitive is first compacted to the vertices its indices reference (original
  * order kept), so its cost and its output follow what it uses, not the size of a vertex
  * buffer it shares; `scratch` (reused across an asset's primitives) makes that linear.
- * Degenerate geometry never throws: it is counted in the report.
+ * Degenerate geometry never throws: it is counted in the report. With `surface` true a
+ * baked primitive also returns its SolvedSurface (stored tangents at the output vertices and
+ * per-triangle finding bits), for pictures of the model; else `surface` is null.
  */
 export function solvePrimitive(
   asset: Asset,
@@ -117,13 +130,14 @@ export function solvePrimitive(
   options: ProcessOptions,
   pictures = false,
   scratch: CompactScratch = createCompactScratch(),
-): { report: PrimitiveReport; replacement: PrimitiveReplacement | null; picture: UvPicture | null } {
+  surface = false,
+): { report: PrimitiveReport; replacement: PrimitiveReplacement | null; picture: UvPicture | null; surface: SolvedSurface | null } {
   let p = input;
   const report = emptyReport(p, options);
   const skip = (reason: string) => {
     report.skipReason = reason;
     report.verticesOut = report.verticesIn;
-    return { report, replacement: null, picture: null };
+    return { report, replacement: null, picture: null, surface: null };
   };
   const pos = p.attributes.POSITION;
   if (!pos) return skip('no-position');
@@ -182,7 +196,11 @@ export function solvePrimitive(
   report.fallbackTangents = frames.stats.fallbackTangents;
 
   const stored = p.attributes.TANGENT && report.normalsGenerated === null ? toFloat32(p.attributes.TANGENT) : null;
-  const marks = pictures ? { degenerateUv: new Uint8Array(triangleCount), overlap: new Uint8Array(triangleCount) } : null;
+  const marks = pictures || surface ? { degenerateUv: new Uint8Array(triangleCount), overlap: new Uint8Array(triangleCount) } : null;
+  const more = surface ? {
+    degenerateGeometry: new Uint8Array(triangleCount), invalidValues: new Uint8Array(triangleCount),
+    badNormals: new Uint8Array(triangleCount), tangentMismatch: new Uint8Array(triangleCount),
+  } : null;
   const verdict = diagnosePrimitive(report, {
     indices: tri,
     positions: inputPositions,
@@ -202,11 +220,21 @@ export function solvePrimitive(
     tangentValidity: p.attributes.TANGENT ? tangentValidityTolerances(p.attributes.TANGENT, normalAttr ?? null) : undefined,
     positionHalfStep: componentHalfStep(pos.componentType, pos.normalized),
     uvTouching: uvOverlapAbsolute(uvAttr.componentType, uvAttr.normalized),
-    marks,
+    marks: marks && more ? { ...marks, ...more } : marks,
   });
   threadArena().trim(Arena.KEEP_BYTES);
+  let solved: SolvedSurface | null = null;
+  if (marks && more) {
+    const findings = new Uint8Array(triangleCount);
+    for (let t = 0; t < triangleCount; t++) {
+      findings[t] = (marks.degenerateUv[t] ? FINDING_DEGENERATE_UV : 0) | (more.degenerateGeometry[t] ? FINDING_DEGENERATE_GEOMETRY : 0) |
+        (more.invalidValues[t] ? FINDING_INVALID_VALUES : 0) | (more.badNormals[t] ? FINDING_BAD_NORMALS : 0) |
+        (marks.overlap[t] ? FINDING_UV_OVERLAP : 0) | (more.tangentMismatch[t] ? FINDING_TANGENT_MISMATCH : 0);
+    }
+    solved = { storedTangents: stored ? gatherFloats(stored, 4, source) : null, findings };
+  }
   let picture: UvPicture | null = null;
-  if (marks && hasFindings(report)) {
+  if (pictures && marks && hasFindings(report)) {
     // Mirroring as src/frames counts it (glTF v downward, so vSign = -1; the default epsilon).
     const mirrored = new Uint8Array(triangleCount);
     markMirroredTriangles(mirrored, tri, inputUvs, triangleCount, -1);
@@ -221,7 +249,7 @@ export function solvePrimitive(
     report.verticesOut = vertexCount;
     report.splitVertices = 0;
     report.mirrorSeamSplits = 0;
-    return { report, replacement: null, picture };
+    return { report, replacement: null, picture, surface: null };
   }
 
   const attributes: Record<string, AttributeData> = {};
@@ -276,7 +304,7 @@ export function solvePrimitive(
     return out;
   });
   report.action = 'baked';
-  return { report, replacement: { attributes, indices: frames.indices, targets }, picture };
+  return { report, replacement: { attributes, indices: frames.indices, targets }, picture, surface: solved };
 }
 
 /**

@@ -15,7 +15,8 @@ export interface TangentNeed {
   transform: UvTransform | null;
 }
 
-function texCoordOf(info: any): number {
+/** The TEXCOORD set a textureInfo samples: KHR_texture_transform's texCoord override, else texCoord, else 0. */
+export function texCoordOf(info: any): number {
   const override = info?.extensions?.KHR_texture_transform?.texCoord;
   if (Number.isInteger(override) && override >= 0) return override;
   const t = info?.texCoord;

@@ -65,8 +65,8 @@ describe('runtime dependencies', () => {
   });
 
   it('dependenciesThatShapeOutputArePinnedExactly', () => {
-    // Decoders and PNG coding decide output bytes.
-    for (const name of ['draco3d', 'meshoptimizer', 'fast-png', 'fflate']) {
+    // Codecs, PNG coding and the renderer's matrix math decide output bytes.
+    for (const name of ['draco3d', 'meshoptimizer', 'fast-png', 'fflate', 'gl-matrix']) {
       expect(pkg.dependencies[name], name).toMatch(/^\d+\.\d+\.\d+$/);
     }
     // The OBJ cross-check parser is a test tool only.
