@@ -205,7 +205,7 @@ if (!process.argv.includes('--no-render')) {
   results.render = { exit: code };
 }
 
-// 6. The targets (issue "Speed, round 2"), each with its measured value and PASS / MISS.
+// 7. The targets (issue "Speed, round 2"), each with its measured value and PASS / MISS.
 const targets = [];
 const target = (name, value, pass, shown) => targets.push({ name, value, pass, shown });
 for (const kind of MESHES) {
