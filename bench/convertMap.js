@@ -8,7 +8,8 @@
 import * as fs from 'node:fs';
 import * as os from 'node:os';
 import * as path from 'node:path';
-import { convertNormalMap, decodePng, encodePng, mapPartsForAsset, readAsset, runCli } from '../dist/index.js';
+import { convertNormalMap, decodePng, encodePng, mapPartsForAsset, readAsset } from '../dist/index.js';
+import { main as runCli } from '../dist/cli/index.js';
 import { makeMesh } from './cases.js';
 import { writeMeshGlb } from './glb.js';
 

@@ -1,7 +1,6 @@
 /**
  * `tanframe audit`: inspect, report and gate; never writes meshes.
  */
-import { Command } from 'commander';
 import { expandInputs } from '../io/inputs.js';
 import type { FileJob } from '../lib/processFile.js';
 import { buildReport } from '../report/json.js';
@@ -11,19 +10,7 @@ import { runBatch } from './batch.js';
 import { namedWrites, writeReportFiles } from './outputs.js';
 import { planRun } from '../lib/writePlan.js';
 import { namedExplicitly, perFile, resolveSettings } from './config.js';
-import { addSharedOptions, checkOutputOptions, emitReport, exitStatus, shardOf, toolVersion, type CliIo } from './shared.js';
-
-/** Registers `audit` on `program`; `done` receives the exit status. */
-export function registerAudit(program: Command, io: CliIo, done: (code: number) => void): void {
-  const cmd = program
-    .command('audit')
-    .description('inspect meshes, report findings and fail the build on chosen gates (writes no meshes)')
-    .argument('<inputs...>', 'files (.glb .gltf .obj), folders (searched recursively) or glob patterns');
-  addSharedOptions(cmd);
-  cmd.action(async (inputs: string[], o: Record<string, any>) => {
-    done(await runAudit(inputs, o, io));
-  });
-}
+import { checkOutputOptions, emitReport, exitStatus, shardOf, toolVersion, type CliIo } from './shared.js';
 
 /** The `audit` command's body, callable in-process. Returns the exit status. */
 export async function runAudit(inputs: string[], given: Record<string, any>, io: CliIo): Promise<number> {

@@ -3,20 +3,19 @@
  */
 import * as fs from 'node:fs';
 import * as path from 'node:path';
-import { Command, Option } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
 import { displayPath, expandInputs } from '../io/inputs.js';
 import type { FileJob } from '../lib/processFile.js';
 import { buildReport } from '../report/json.js';
 import type { FileReport } from '../report/types.js';
 import type { InputFile } from '../io/inputs.js';
-import { COMPRESSION_MODES, type ProcessOptions } from '../lib/options.js';
 import { containerOf, outputRelativeName, outputTarget } from '../lib/outputNames.js';
 import { planRun, type PlannedMesh } from '../lib/writePlan.js';
 import { namedExplicitly, perFile, resolveSettings } from './config.js';
-import { addSharedOptions, checkOutputOptions, emitReport, exitStatus, shardOf, toolVersion, type CliIo } from './shared.js';
+import { checkOutputOptions, emitReport, exitStatus, shardOf, toolVersion, type CliIo } from './shared.js';
 import { cacheFolder, StampCache } from '../lib/stampCache.js';
-import { realOrSelf, RunState, STATE_FILE_NAME } from '../lib/runState.js';
+import { realOrSelf, RunState } from '../lib/runState.js';
+import { STATE_FILE_NAME, type ProcessOptions } from '../lib/options.js';
 import { runBatch } from './batch.js';
 import { namedWrites, writeReportFiles } from './outputs.js';
 
@@ -33,32 +32,6 @@ function shownOutput(f: InputFile, m: PlannedMesh, o: Record<string, any>): stri
 
 function failed(input: string, code: string, message: string): FileReport {
   return { input, output: null, status: 'failed', error: { code, message }, gates: [], primitives: [], warnings: [], notes: [], seconds: 0 };
-}
-
-/** Registers `bake` on `program`; `done` receives the exit status. */
-export function registerBake(program: Command, io: CliIo, done: (code: number) => void): void {
-  const cmd = program
-    .command('bake')
-    .description('compute tangent frames and write the meshes with a TANGENT attribute')
-    .argument('<inputs...>', 'files (.glb .gltf .obj), folders (searched recursively) or glob patterns')
-    .option('-o, --out <path>', 'output file (one input file) or folder (mirrors the input layout)')
-    .option('--in-place', 'replace each input by an atomic rename of a complete file', false)
-    .addOption(new Option('--format <format>', 'output container (default: the input\'s; GLB for OBJ)').choices(['glb', 'gltf']))
-    .option('--keep-existing', 'keep stored tangents that are valid', false)
-    .addOption(new Option('--normals <mode>', 'normals: keep the file\'s (missing ones are generated flat), or regenerate').choices(['keep', 'flat', 'smooth']).default('keep'))
-    .option('--smooth-angle <deg>', 'crease angle for --normals smooth', (v: string) => {
-      const x = Number(v);
-      if (!Number.isFinite(x) || x < 0 || x > 180) throw new TanframeError('usage', `--smooth-angle: expected degrees in [0, 180], got '${v}'`);
-      return x;
-    }, 60)
-    .addOption(new Option('--tangent-type <type>', 'TANGENT component type').choices(['float', 'snorm16', 'snorm8']))
-    .addOption(new Option('--compression <mode>', 'how baked primitives are stored: as they came in (Draco, meshopt, quantized), uncompressed, or compressed with Draco or meshopt').choices([...COMPRESSION_MODES]).default('keep'))
-    .option('--dry-run', 'do everything but write the meshes', false)
-    .option('--force', `bake every file, ignoring the state of earlier runs (${STATE_FILE_NAME})`, false);
-  addSharedOptions(cmd);
-  cmd.action(async (inputs: string[], o: Record<string, any>) => {
-    done(await runBake(inputs, o, io));
-  });
 }
 
 /** The `bake` command's body, callable in-process. Returns the exit status. */

@@ -40,7 +40,7 @@ export async function runBatch(
   plan: WritePlan | null = null,
   onOutcome?: (index: number, outcome: FileOutcome) => void,
 ): Promise<{ reports: FileReport[]; pictures: PictureOutputs; writeFailures: number }> {
-  const pictures = new PictureOutputs(o, io, undefined, plan);
+  const pictures = await new PictureOutputs(o, io, undefined, plan).ready();
   const views = pictures.views.wants();
   const withPictures = pictures.wanted || views ? jobs.map((j) => ({ ...j, pictures: pictures.wanted, views })) : jobs;
   const bar = progressWanted(!!io.stderrIsTTY, io.env, o) && jobs.length > 0

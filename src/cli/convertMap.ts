@@ -4,14 +4,13 @@
  * frames (the same solve as `bake`). PNG in and out, written atomically.
  */
 import * as path from 'node:path';
-import { Command, InvalidArgumentError, Option } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
 import { cleanText } from '../mesh/text.js';
 import type { FrameMethod } from '../mesh/types.js';
 import { readInputBytes, writeFilesAtomic } from '../io/files.js';
-import { convertNormalMap, flipGreen, MAX_PADDING, type GreenDirection, type MapSpace } from '../imaging/convert.js';
+import { convertNormalMap, flipGreen, type GreenDirection, type MapSpace } from '../imaging/convert.js';
 import { decodePng, encodePng, type PngImage } from '../imaging/png.js';
-import { mapPartsForAsset, type PrimitiveRef } from '../lib/mapFrames.js';
+import { mapPartsForAsset } from '../lib/mapFrames.js';
 import { readAsset } from '../lib/processFile.js';
 import { progressWanted } from './progress.js';
 import type { CliIo } from './shared.js';
@@ -21,52 +20,6 @@ export const PROGRESS_MIN_TEXELS = 2048 * 2048;
 
 /** Least time between two progress redraws, in ms. */
 const REDRAW_MS = 100;
-
-function paddingArg(value: string): number {
-  if (!/^\d+$/.test(value) || Number(value) > MAX_PADDING) throw new InvalidArgumentError(`expected an integer in [0, ${MAX_PADDING}]`);
-  return Number(value);
-}
-
-function uvArg(value: string): number {
-  if (!/^\d+$/.test(value)) throw new InvalidArgumentError('expected an integer >= 0');
-  return Number(value);
-}
-
-function primitiveArg(value: string, previous: PrimitiveRef[] | undefined): PrimitiveRef[] {
-  const list = previous ?? [];
-  for (const item of value.split(',').map((s) => s.trim()).filter(Boolean)) {
-    const m = /^(.+)\/(\d+)$/.exec(item);
-    if (!m) throw new InvalidArgumentError(`expected <mesh>/<primitive> (mesh index or name, primitive index), got '${item}'`);
-    list.push({ mesh: m[1], primitive: Number(m[2]) });
-  }
-  return list;
-}
-
-/** Registers `convert-map` on `program`; `done` receives the exit status. */
-export function registerConvertMap(program: Command, io: CliIo, done: (code: number) => void): void {
-  program
-    .command('convert-map')
-    .description('convert a normal map between tangent and object space, tangent methods and green conventions')
-    .option('--mesh <file>', 'the mesh the map belongs to (.glb .gltf .obj); not needed for a green flip')
-    .requiredOption('--in <png>', 'input normal map (PNG, 8 or 16 bit)')
-    .requiredOption('--out <png>', 'output normal map (PNG)')
-    .addOption(new Option('--from <space>', 'space of the input map').choices(['tangent', 'object']).makeOptionMandatory())
-    .addOption(new Option('--to <space>', 'space of the output map').choices(['tangent', 'object']).makeOptionMandatory())
-    .addOption(new Option('--from-method <method>', 'frames the tangent-space input was made with (default mikktspace)').choices(['mikktspace', 'lengyel']))
-    .addOption(new Option('--to-method <method>', 'frames of the tangent-space output (default mikktspace)').choices(['mikktspace', 'lengyel']))
-    .addOption(new Option('--in-green <dir>', 'input green channel: up (+Y, glTF / OpenGL) or down (-Y)').choices(['up', 'down']).default('up'))
-    .addOption(new Option('--out-green <dir>', 'output green channel: up (+Y, glTF / OpenGL) or down (-Y)').choices(['up', 'down']).default('up'))
-    .option('--uv <n>', 'TEXCOORD set (default: the one the normal texture samples, else 0)', uvArg)
-    .option('--mesh-primitive <mesh/prim>', 'convert over this primitive only (repeatable; mesh index or name); default: every primitive whose material uses this image, else all', primitiveArg)
-    .option('--padding <px>', 'edge dilation into empty texels, in texels', paddingArg, 8)
-    .addOption(new Option('--out-depth <bits>', 'output bits per sample (default: the input\'s)').choices(['8', '16']))
-    .option('--quiet', 'print nothing but errors', false)
-    .option('--no-progress', 'never show progress (shown only on a terminal, for large maps)')
-    .option('--debug', 'show stack traces of internal errors', false)
-    .action(async (o: Record<string, any>) => {
-      done(await runConvertMap(o, io));
-    });
-}
 
 /** Re-throws a TanframeError with the file it concerns in front of its message. */
 function inFile<T>(file: string, fn: () => T): T {

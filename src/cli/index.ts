@@ -4,5 +4,5 @@
  * calls process.exit. `bin/tanframe.js` is a launcher over it.
  */
 export { main } from './main.js';
-export type { CliIo } from './shared.js';
+export type { CliIo } from './options.js';
 export type { ProgressClock } from './progress.js';

@@ -6,12 +6,8 @@
 import { Command, CommanderError } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
 import { cleanText } from '../mesh/text.js';
-import { registerAudit } from './audit.js';
-import { registerBake } from './bake.js';
-import { registerConvertMap } from './convertMap.js';
-import { registerRender } from './render.js';
-import { registerReport } from './report.js';
-import { toolVersion, type CliIo } from './shared.js';
+import { registerAudit, registerBake, registerConvertMap, registerRender, registerReport } from './commands.js';
+import { toolVersion, type CliIo } from './options.js';
 
 /** The real process streams and environment. */
 export function processIo(): CliIo {

@@ -6,10 +6,8 @@ import * as path from 'node:path';
 import { writeFilesAtomic } from '../io/files.js';
 import { cleanText } from '../mesh/text.js';
 import type { RunRequest, WritePlan } from '../lib/writePlan.js';
-import { renderHtml, type HtmlPicture, type HtmlView } from '../report/html.js';
-import { renderJunit } from '../report/junit.js';
+import type { HtmlPicture, HtmlView } from '../report/html.js';
 import type { Report } from '../report/types.js';
-import { pictureFileName, renderUvMapSvg, viewFileName } from '../report/uvMapSvg.js';
 import type { ViewSheet } from '../lib/viewSheets.js';
 import type { UvPicture } from '../report/uvPicture.js';
 import type { CliIo } from './shared.js';
@@ -68,6 +66,8 @@ export class PictureOutputs {
   private written = 0;
   private failures = 0;
   private readonly option: string;
+  /** The SVG renderer, loaded by ready() (only a run that draws pictures loads it). */
+  private svg: typeof import('../report/uvMapSvg.js') | null = null;
 
   /**
    * `htmlBudget`: the page's budget of drawn triangles, `mapBudget` of embedded normal-map
@@ -89,8 +89,21 @@ export class PictureOutputs {
   /** The view sheets of --views (and their copies for --html). */
   readonly views: ViewOutputs;
 
-  /** Takes the pictures of one file (call in job order so names and the page are deterministic). */
+  /** Loads what drawing needs when pictures or view sheets are wanted; call before take(). Returns this. */
+  async ready(): Promise<this> {
+    if (this.wanted && !this.svg) this.svg = await import('../report/uvMapSvg.js');
+    await this.views.ready();
+    return this;
+  }
+
+  /**
+   * Takes the pictures of one file (call in job order so names and the page are deterministic).
+   * Precondition: ready() has resolved.
+   */
   take(pictures: UvPicture[]): void {
+    if (pictures.length === 0) return;
+    if (!this.svg) throw new Error('PictureOutputs.take before ready()');
+    const { pictureFileName, renderUvMapSvg } = this.svg;
     for (const p of pictures) {
       let svg: string | null = null;
       if (this.dir) {
@@ -182,9 +195,20 @@ export class ViewOutputs {
     return this.wanted ? { sheet: true, page: this.forHtml } : undefined;
   }
 
-  /** Takes one file's sheets (call in job order so names and the page are deterministic). */
+  /** The file-name helper, loaded by ready() (only a run with --views loads it). */
+  private names_: typeof import('../report/uvMapSvg.js') | null = null;
+
+  /** Loads what naming the sheets needs when --views is given; call before take(). Returns this. */
+  async ready(): Promise<this> {
+    if (this.wanted && !this.names_) this.names_ = await import('../report/uvMapSvg.js');
+    return this;
+  }
+
+  /** Takes one file's sheets (call in job order so names and the page are deterministic). Precondition: ready() has resolved. */
   take(v: ViewSheet | null): void {
     if (!v || !this.wanted) return;
+    if (!this.names_) throw new Error('ViewOutputs.take before ready()');
+    const { viewFileName } = this.names_;
     for (const note of v.notes) this.io.stderr(`tanframe: ${cleanText(v.input)}: --views: ${cleanText(note)}\n`);
     if (this.dir && v.sheet) {
       let name = viewFileName(v.input);
@@ -241,7 +265,8 @@ export async function writeNamedFile(option: string, file: string, text: string,
  */
 export async function writeReportFiles(report: Report, o: Record<string, any>, io: CliIo, pictures: PictureOutputs, planned?: Map<string, string>): Promise<number> {
   let failed = 0;
-  if (o.junit) failed += await writeNamedFile('--junit', o.junit, renderJunit(report), io, planned);
-  if (o.html) failed += await writeNamedFile('--html', o.html, renderHtml(report, pictures.html, pictures.views.html), io, planned);
+  // The renderers load only when their file is asked for.
+  if (o.junit) failed += await writeNamedFile('--junit', o.junit, (await import('../report/junit.js')).renderJunit(report), io, planned);
+  if (o.html) failed += await writeNamedFile('--html', o.html, (await import('../report/html.js')).renderHtml(report, pictures.html, pictures.views.html), io, planned);
   return failed;
 }

@@ -4,27 +4,10 @@
  */
 import * as fs from 'node:fs/promises';
 import * as path from 'node:path';
-import { Command } from 'commander';
 import { TanframeError } from '../mesh/errors.js';
 import { checkReportShape, mergeReports, type NamedReport } from '../lib/mergeReports.js';
 import { PictureOutputs, writeNamedFile, writeReportFiles } from './outputs.js';
-import { annotateOption, emitReport, exitStatus, toProcessOptions, type CliIo } from './shared.js';
-
-/** Registers `report` on `program`; `done` receives the exit status. */
-export function registerReport(program: Command, io: CliIo, done: (code: number) => void): void {
-  program
-    .command('report')
-    .description('merge JSON reports (the shards of one run): print the summary, write HTML, JUnit and JSON, exit as the whole run would have')
-    .argument('<reports...>', 'JSON reports written by bake or audit with --report')
-    .option('--html <file>', 'write one self-contained HTML page of the merged report')
-    .option('--junit <file>', 'write a JUnit XML file: one test case per input file')
-    .option('--json <file>', 'write the merged JSON report to this file')
-    .addOption(annotateOption())
-    .option('--quiet', 'print nothing but errors (no summary)', false)
-    .action(async (files: string[], o: Record<string, any>) => {
-      done(await runReport(files, o, io));
-    });
-}
+import { emitReport, exitStatus, toProcessOptions, type CliIo } from './shared.js';
 
 /** Reads one JSON report; an unreadable or malformed one is a usage error (exit 2) naming it. */
 async function readReport(file: string, io: CliIo): Promise<NamedReport> {

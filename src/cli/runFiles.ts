@@ -2,7 +2,7 @@
  * Runs a list of file jobs, in-process or on the worker pool, and collects their reports in
  * input order.
  */
-import { processFileOutcome, type FileJob, type FileOutcome } from '../lib/processFile.js';
+import type { FileJob, FileOutcome } from '../lib/processFile.js';
 import type { ProcessOptions } from '../lib/options.js';
 import type { FileReport } from '../report/types.js';
 import type { UvPicture } from '../report/uvPicture.js';
@@ -59,6 +59,8 @@ export async function runFiles(jobs: FileJob[], options: ProcessOptions, setting
   // Here only without a file timeout: a file that must be stoppable runs on a worker thread,
   // even when it is the only one.
   if (jobs.length === 0 || (timeoutMs <= 0 && (jobs.length === 1 || s.threads <= 1))) {
+    // Loaded here: a batch on worker threads never needs the readers on this thread.
+    const { processFileOutcome } = await import('../lib/processFile.js');
     for (let i = 0; i < jobs.length; i++) take(i, await processFileOutcome(jobs[i], options));
   } else {
     await runInWorkers(jobs, options, Math.max(1, s.threads), s.workerScript ?? defaultWorkerScript(), take, timeoutMs);

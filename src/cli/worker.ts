@@ -7,7 +7,6 @@ import { parentPort } from 'node:worker_threads';
 import { processFileOutcome, toReportError, type FileJob, type FileOutcome } from '../lib/processFile.js';
 import type { ProcessOptions } from '../lib/options.js';
 import { pictureBuffers } from '../report/uvPicture.js';
-import { viewBuffers } from '../lib/viewSheets.js';
 
 /** A message from the pool: process job `id`. */
 export interface WorkerRequest {
@@ -39,7 +38,9 @@ if (port) {
       };
     }
     const answer: WorkerAnswer = { id: msg.id, outcome };
-    port.postMessage(answer, [...pictureBuffers(outcome.pictures), ...viewBuffers(outcome.views)]);
+    // The view sheets' PNG bytes go along transferred too (each owns its ArrayBuffer).
+    const sheets = [outcome.views?.sheet, outcome.views?.page].filter((b): b is Uint8Array => !!b).map((b) => b.buffer as ArrayBuffer);
+    port.postMessage(answer, [...pictureBuffers(outcome.pictures), ...sheets]);
   });
   // Every module loaded: the pool may send jobs.
   port.postMessage({ ready: true });

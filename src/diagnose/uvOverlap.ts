@@ -6,6 +6,13 @@
  * "Real-Time Collision Detection" (2005), chapters on primitive tests and spatial
  * partitioning (cited from memory).
  */
+import {
+  SLOT_OVERLAP_BOX, SLOT_OVERLAP_CELLS, SLOT_OVERLAP_CLASS, SLOT_OVERLAP_CURSOR, SLOT_OVERLAP_ENTRIES, SLOT_OVERLAP_FLAGS,
+  SLOT_OVERLAP_HASH, SLOT_OVERLAP_LIVE, SLOT_OVERLAP_ORDER, SLOT_OVERLAP_RANGE, SLOT_OVERLAP_TABLE, SLOT_OVERLAP_USABLE,
+  SLOT_SHELL_AREA, SLOT_SHELL_HASH_A, SLOT_SHELL_HASH_B, SLOT_SHELL_OF, SLOT_SHELL_PARENT, SLOT_SHELL_POINTS, SLOT_SHELL_SEEN,
+  SLOT_SHELL_USABLE,
+  threadArena, type Arena,
+} from '../mesh/arena.js';
 import { assert } from '../mesh/errors.js';
 import { UV_DEGENERATE_RELATIVE, UV_OVERLAP_ABSOLUTE, UV_OVERLAP_RELATIVE, UV_SHELL_AREA_RELATIVE } from '../mesh/tolerances.js';
 import { findingFromMarks, type Finding } from './finding.js';
@@ -89,12 +96,13 @@ export function findUvOverlaps(
   assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
   assert(!marks || marks.length >= triangleCount, 'marks must hold one entry per triangle');
   assert(!stacked || stacked.length >= triangleCount, 'stacked must hold one entry per triangle');
-  const flags = marks ?? new Uint8Array(triangleCount);
-  if (marks) flags.fill(0, 0, triangleCount);
+  const arena = threadArena();
+  const flags = marks ?? arena.u8(SLOT_OVERLAP_FLAGS, triangleCount);
+  flags.fill(0, 0, triangleCount);
   if (stacked) stacked.fill(0, 0, triangleCount);
   // Per-triangle UV bounding boxes (exact: min/max of float32 values) and usability.
-  const box = new Float32Array(triangleCount * 4);
-  const usable = new Uint8Array(triangleCount);
+  const box = arena.f32(SLOT_OVERLAP_BOX, triangleCount * 4);
+  const usable = arena.u8(SLOT_OVERLAP_USABLE, triangleCount, 0);
   let usableCount = 0;
   for (let t = 0; t < triangleCount; t++) {
     const i0 = indices[t * 3] * 2, i1 = indices[t * 3 + 1] * 2, i2 = indices[t * 3 + 2] * 2;
@@ -116,9 +124,10 @@ export function findUvOverlaps(
   // coincide with an earlier usable triangle's joins that triangle's class and stays out of
   // the grid; pairs within a class are intentional stacking, and every copy takes its class's
   // verdict at the end. This keeps thousands of stacked copies from filling one cell.
-  const classOf = stackedClasses(indices, uvs, usable, triangleCount, usableCount);
-  // Shells and their keys (UV point hash and area), before copies leave the grid.
-  const shell = shellKeys(indices, uvs, usable, triangleCount);
+  const classOf = stackedClasses(arena, indices, uvs, usable, triangleCount, usableCount);
+  // Shells and their keys (UV point hash and area) over the usable triangles, copies included:
+  // made the first time an overlapping pair needs them (a layout without overlaps never does).
+  const shell: LazyShells = { keys: null, arena, indices, uvs, usable, classOf, triangleCount };
   let copies = 0;
   for (let t = 0; t < triangleCount; t++) {
     if (usable[t] && classOf[t] !== t) {
@@ -147,10 +156,11 @@ export function findUvOverlaps(
     sMinU[n] = box[t * 4]; sMinV[n] = box[t * 4 + 1]; sMaxU[n] = box[t * 4 + 2]; sMaxV[n] = box[t * 4 + 3];
     sExtent[n++] = w > h ? w : h;
   }
-  sMinU.sort(); sMinV.sort(); sMaxU.sort(); sMaxV.sort(); sExtent.sort();
+  // Order statistics by selection (linear) rather than sorting: the same values.
   const lowRank = Math.floor(TRIM * sampleCount), highRank = sampleCount - 1 - lowRank;
-  const minU = sMinU[lowRank], minV = sMinV[lowRank], maxU = sMaxU[highRank], maxV = sMaxV[highRank];
-  const clip = EXTENT_CLIP * sExtent[sampleCount >> 1];
+  const minU = selectRank(sMinU, lowRank), minV = selectRank(sMinV, lowRank);
+  const maxU = selectRank(sMaxU, highRank), maxV = selectRank(sMaxV, highRank);
+  const clip = EXTENT_CLIP * selectRank(sExtent, sampleCount >> 1);
   let extentSum = 0;
   for (let t = 0; t < triangleCount; t++) {
     if (!usable[t]) continue;
@@ -165,6 +175,10 @@ export function findUvOverlaps(
   const maxEntries = ENTRIES_PER_TRIANGLE * usableCount;
   let cell = extentSum / usableCount;
   let nu = 1, nv = 1, inv = 1, entryCount = 0;
+  // Per usable triangle its cell range (first and last cell along u, then along v), and per
+  // cell its entry count at cellStart[c + 1], both from the pass that sizes the grid.
+  const range = arena.u32(SLOT_OVERLAP_RANGE, triangleCount * 4);
+  let cellStart = arena.u32(SLOT_OVERLAP_CELLS, 0);
   for (;;) {
     nu = Math.max(1, Math.ceil(width / cell));
     nv = Math.max(1, Math.ceil(height / cell));
@@ -174,11 +188,14 @@ export function findUvOverlaps(
     }
     inv = 1 / cell;
     entryCount = 0;
+    cellStart = arena.u32(SLOT_OVERLAP_CELLS, nu * nv + 1, 0);
     for (let t = 0; t < triangleCount && entryCount <= maxEntries; t++) {
       if (!usable[t]) continue;
       const cu0 = cellOf(box[t * 4], minU, inv, nu), cu1 = cellOf(box[t * 4 + 2], minU, inv, nu);
       const cv0 = cellOf(box[t * 4 + 1], minV, inv, nv), cv1 = cellOf(box[t * 4 + 3], minV, inv, nv);
+      range[t * 4] = cu0; range[t * 4 + 1] = cu1; range[t * 4 + 2] = cv0; range[t * 4 + 3] = cv1;
       entryCount += (cu1 - cu0 + 1) * (cv1 - cv0 + 1);
+      for (let cv = cv0; cv <= cv1; cv++) for (let cu = cu0; cu <= cu1; cu++) cellStart[cv * nu + cu + 1]++;
     }
     // A single cell holds each usable triangle once, so this ends.
     if (entryCount <= maxEntries || (nu === 1 && nv === 1)) break;
@@ -186,34 +203,30 @@ export function findUvOverlaps(
   }
   const cellCount = nu * nv;
 
-  // Cell lists in compressed rows: count, prefix sums, fill.
-  const cellStart = new Uint32Array(cellCount + 1);
-  for (let t = 0; t < triangleCount; t++) {
-    if (!usable[t]) continue;
-    const cu0 = cellOf(box[t * 4], minU, inv, nu), cu1 = cellOf(box[t * 4 + 2], minU, inv, nu);
-    const cv0 = cellOf(box[t * 4 + 1], minV, inv, nv), cv1 = cellOf(box[t * 4 + 3], minV, inv, nv);
-    for (let cv = cv0; cv <= cv1; cv++) for (let cu = cu0; cu <= cu1; cu++) cellStart[cv * nu + cu + 1]++;
-  }
+  // Cell lists in compressed rows: prefix sums of the counts, fill.
   for (let c = 0; c < cellCount; c++) cellStart[c + 1] += cellStart[c];
-  const entries = new Uint32Array(cellStart[cellCount]);
-  const cursor = cellStart.slice(0, cellCount);
+  const entries = arena.u32(SLOT_OVERLAP_ENTRIES, cellStart[cellCount]);
+  const cursor = arena.u32(SLOT_OVERLAP_CURSOR, cellCount);
+  cursor.set(cellStart.subarray(0, cellCount));
   for (let t = 0; t < triangleCount; t++) {
     if (!usable[t]) continue;
-    const cu0 = cellOf(box[t * 4], minU, inv, nu), cu1 = cellOf(box[t * 4 + 2], minU, inv, nu);
-    const cv0 = cellOf(box[t * 4 + 1], minV, inv, nv), cv1 = cellOf(box[t * 4 + 3], minV, inv, nv);
+    const cu0 = range[t * 4], cu1 = range[t * 4 + 1], cv0 = range[t * 4 + 2], cv1 = range[t * 4 + 3];
     for (let cv = cv0; cv <= cv1; cv++) for (let cu = cu0; cu <= cu1; cu++) entries[cursor[cv * nu + cu]++] = t;
   }
 
   // Pairs within each cell; a pair is tested only in the cell of the lower-left corner of
-  // the intersection of its bounding boxes, so once over the whole grid. A pair of two
-  // triangles already known to overlap something teaches nothing, so for an already-marked
-  // triangle only the cell's still-unmarked later entries are visited: `live` holds them,
-  // compacted as they get marked. Near-stacked copies (offset by a little, so not exact copies)
-  // all mark each other in the first pass, and the cell then costs its length, not its square.
+  // the intersection of its bounding boxes, so once over the whole grid. That corner's cell
+  // is (max of the two first cells along u, max along v), as cellOf is monotonic, and a
+  // triangle's first cell is never past the cell it is met in, so the test is "one of the two
+  // starts here" on each axis. A pair of two triangles already known to overlap something
+  // teaches nothing, so for an already-marked triangle only the cell's still-unmarked later
+  // entries are visited: `live` holds them, compacted as they get marked. Near-stacked copies
+  // (offset by a little, so not exact copies) all mark each other in the first pass, and the
+  // cell then costs its length, not its square.
   let maxRow = 0;
   for (let c = 0; c < cellCount; c++) if (cellStart[c + 1] - cellStart[c] > maxRow) maxRow = cellStart[c + 1] - cellStart[c];
-  const live = new Uint32Array(maxRow);
-  const counts = new Float64Array(2); // exact tests, pairs visited
+  const live = arena.u32(SLOT_OVERLAP_LIVE, maxRow);
+  let exactTests = 0, cellPairs = 0;
   for (let c = 0; c < cellCount; c++) {
     const start = cellStart[c], end = cellStart[c + 1];
     if (end - start < 2) continue;
@@ -222,10 +235,17 @@ export function findUvOverlaps(
     for (let k = start; k < end; k++) live[liveN++] = k;
     for (let i = start; i < end - 1; i++) {
       const a = entries[i];
+      const aMinU = box[a * 4], aMinV = box[a * 4 + 1], aMaxU = box[a * 4 + 2], aMaxV = box[a * 4 + 3];
+      const aHereU = range[a * 4] === cu, aHereV = range[a * 4 + 2] === cv;
       let after = i; // entries at positions <= after have been paired with a
       if (flags[a] === 0) {
         for (let j = i + 1; j < end; j++) {
-          testPair(a, entries[j], flags, box, indices, uvs, minU, minV, inv, nu, nv, cu, cv, counts, touching, shell, stacked);
+          const b = entries[j];
+          cellPairs++;
+          // Boxes that only touch cannot overlap with positive area.
+          if (box[b * 4] >= aMaxU || aMinU >= box[b * 4 + 2] || box[b * 4 + 1] >= aMaxV || aMinV >= box[b * 4 + 3]) continue;
+          if (!((aHereU || range[b * 4] === cu) && (aHereV || range[b * 4 + 2] === cv))) continue;
+          exactTests += testPair(a, b, flags, indices, uvs, touching, shell, stacked);
           if (flags[a] !== 0) { after = j; break; }
         }
         if (flags[a] === 0) continue;
@@ -238,12 +258,15 @@ export function findUvOverlaps(
         const b = entries[pos];
         if (flags[b] !== 0) continue; // marked: dropped for good
         live[w++] = pos;
-        if (pos > after) testPair(a, b, flags, box, indices, uvs, minU, minV, inv, nu, nv, cu, cv, counts, touching, shell, stacked);
+        if (pos <= after) continue;
+        cellPairs++;
+        if (box[b * 4] >= aMaxU || aMinU >= box[b * 4 + 2] || box[b * 4 + 1] >= aMaxV || aMinV >= box[b * 4 + 3]) continue;
+        if (!((aHereU || range[b * 4] === cu) && (aHereV || range[b * 4 + 2] === cv))) continue;
+        exactTests += testPair(a, b, flags, indices, uvs, touching, shell, stacked);
       }
       liveN = w;
     }
   }
-  const exactTests = counts[0], cellPairs = counts[1];
   if (stats) { stats.cellsU = nu; stats.cellsV = nv; stats.cellPairs = cellPairs; stats.exactTests = exactTests; }
   if (copies > 0) {
     for (let t = 0; t < triangleCount; t++) {
@@ -263,6 +286,28 @@ export interface UvLayoutOptions {
   touching?: number;
 }
 
+/** The shell keys of one findUvOverlaps call, made on first use (shellsOf). */
+interface LazyShells {
+  keys: ShellKeys | null;
+  arena: Arena;
+  indices: Uint32Array;
+  uvs: Float32Array;
+  /** Usable triangles with the exact copies taken out; a copy t has classOf[t] !== t. */
+  usable: Uint8Array;
+  classOf: Uint32Array;
+  triangleCount: number;
+}
+
+/** The shell keys, made the first time they are asked for, over the usable triangles with their copies. */
+function shellsOf(l: LazyShells): ShellKeys {
+  if (!l.keys) {
+    const before = l.arena.u8(SLOT_SHELL_USABLE, l.triangleCount);
+    for (let t = 0; t < l.triangleCount; t++) before[t] = l.usable[t] | (l.classOf[t] !== t ? 1 : 0);
+    l.keys = shellKeys(l.arena, l.indices, l.uvs, before, l.triangleCount);
+  }
+  return l.keys;
+}
+
 /** Per triangle its shell, and per shell two hashes of its UV points and its UV area. */
 interface ShellKeys {
   shellOf: Uint32Array;
@@ -278,9 +323,9 @@ interface ShellKeys {
  * hashes (sums of per-vertex hashes of the UV bits) and the sum of |det| of its triangles, so
  * that two shells with the same UV points and area compare equal whatever their triangulation.
  */
-function shellKeys(indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, triangleCount: number): ShellKeys {
+function shellKeys(arena: Arena, indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, triangleCount: number): ShellKeys {
   const vertexCount = uvs.length >> 1;
-  const parent = new Uint32Array(vertexCount);
+  const parent = arena.u32(SLOT_SHELL_PARENT, vertexCount);
   for (let v = 0; v < vertexCount; v++) parent[v] = v;
   for (let t = 0; t < triangleCount; t++) {
     if (!usable[t]) continue;
@@ -290,10 +335,11 @@ function shellKeys(indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, 
       if (r !== r0) parent[r] = r0;
     }
   }
-  const shellOf = new Uint32Array(triangleCount).fill(0xffffffff);
-  const hashA = new Uint32Array(vertexCount), hashB = new Uint32Array(vertexCount), points = new Uint32Array(vertexCount);
-  const area = new Float64Array(vertexCount);
-  const seen = new Uint8Array(vertexCount);
+  const shellOf = arena.u32(SLOT_SHELL_OF, triangleCount, 0xffffffff);
+  const hashA = arena.u32(SLOT_SHELL_HASH_A, vertexCount, 0), hashB = arena.u32(SLOT_SHELL_HASH_B, vertexCount, 0);
+  const points = arena.u32(SLOT_SHELL_POINTS, vertexCount, 0);
+  const area = arena.f64(SLOT_SHELL_AREA, vertexCount, 0);
+  const seen = arena.u8(SLOT_SHELL_SEEN, vertexCount, 0);
   const bits = new Float32Array(2), words = new Uint32Array(bits.buffer);
   for (let t = 0; t < triangleCount; t++) {
     if (!usable[t]) continue;
@@ -341,43 +387,52 @@ function sameShellKey(k: ShellKeys, a: number, b: number): boolean {
 }
 
 /**
- * Tests one pair of grid triangles met in cell (cu, cv): skipped unless their boxes overlap,
- * this cell holds the lower-left corner of the boxes' intersection, and their UV points are
- * not the same three points; then the exact test, marking both when they overlap (or, when
- * they lie in two stacked shells, marking them stacked instead).
- * counts[0] += exact tests, counts[1] += pairs visited.
+ * Tests one pair of grid triangles whose boxes overlap and that are met in the cell of the
+ * lower-left corner of the boxes' intersection: skipped when their UV points are the same
+ * three points; else the exact test, marking both when they overlap (or, when they lie in two
+ * stacked shells, marking them stacked instead). Returns 1 when the exact test ran, else 0.
  */
 function testPair(
-  a: number, b: number, flags: Uint8Array, box: Float32Array, indices: Uint32Array, uvs: Float32Array,
-  minU: number, minV: number, inv: number, nu: number, nv: number, cu: number, cv: number, counts: Float64Array,
-  touching: number, shell: ShellKeys, stacked: Uint8Array | null,
-): void {
-  counts[1]++;
-  const aMinU = box[a * 4], aMinV = box[a * 4 + 1], aMaxU = box[a * 4 + 2], aMaxV = box[a * 4 + 3];
-  const bMinU = box[b * 4], bMinV = box[b * 4 + 1], bMaxU = box[b * 4 + 2], bMaxV = box[b * 4 + 3];
-  // Boxes that only touch cannot overlap with positive area.
-  if (bMinU >= aMaxU || aMinU >= bMaxU || bMinV >= aMaxV || aMinV >= bMaxV) return;
-  const ru = aMinU > bMinU ? aMinU : bMinU, rv = aMinV > bMinV ? aMinV : bMinV;
-  if (cellOf(ru, minU, inv, nu) !== cu || cellOf(rv, minV, inv, nv) !== cv) return;
+  a: number, b: number, flags: Uint8Array, indices: Uint32Array, uvs: Float32Array,
+  touching: number, shell: LazyShells, stacked: Uint8Array | null,
+): number {
   const a0 = indices[a * 3] * 2, a1 = indices[a * 3 + 1] * 2, a2 = indices[a * 3 + 2] * 2;
   const au0 = uvs[a0], av0 = uvs[a0 + 1], au1 = uvs[a1], av1 = uvs[a1 + 1], au2 = uvs[a2], av2 = uvs[a2 + 1];
   const b0 = indices[b * 3] * 2, b1 = indices[b * 3 + 1] * 2, b2 = indices[b * 3 + 2] * 2;
   const bu0 = uvs[b0], bv0 = uvs[b0 + 1], bu1 = uvs[b1], bv1 = uvs[b1 + 1], bu2 = uvs[b2], bv2 = uvs[b2 + 1];
-  if (
-    hasPoint(au0, av0, bu0, bv0, bu1, bv1, bu2, bv2) &&
-    hasPoint(au1, av1, bu0, bv0, bu1, bv1, bu2, bv2) &&
-    hasPoint(au2, av2, bu0, bv0, bu1, bv1, bu2, bv2)
-  ) return; // coincident UV triangles: intentional stacking / mirroring
-  counts[0]++;
+  const m0 = hasPoint(au0, av0, bu0, bv0, bu1, bv1, bu2, bv2);
+  const m1 = hasPoint(au1, av1, bu0, bv0, bu1, bv1, bu2, bv2);
+  const m2 = hasPoint(au2, av2, bu0, bv0, bu1, bv1, bu2, bv2);
+  if (m0 && m1 && m2) return 0; // coincident UV triangles: intentional stacking / mirroring
+  // Neighbours across a shared UV edge (the usual pair): when the third points lie on opposite
+  // sides of it, that edge's normal separates them with depth exactly 0 (shared points project
+  // to exactly 0 relative to the edge's start), which is what the full test would find on that
+  // axis, so the answer is the same without the other five axes.
+  if (m0 ? m1 || m2 : m1 && m2) {
+    // A's edge p -> q in A's order, r its third corner.
+    let pu = au0, pv = av0, qu = au1, qv = av1, ru = au2, rv = av2;
+    if (!m0) { pu = au1; pv = av1; qu = au2; qv = av2; ru = au0; rv = av0; }
+    else if (!m1) { pu = au2; pv = av2; qu = au0; qv = av0; ru = au1; rv = av1; }
+    // B's corner that is neither p nor q.
+    let xu = bu0, xv = bv0;
+    if ((bu0 === pu && bv0 === pv) || (bu0 === qu && bv0 === qv)) {
+      if ((bu1 === pu && bv1 === pv) || (bu1 === qu && bv1 === qv)) { xu = bu2; xv = bv2; } else { xu = bu1; xv = bv1; }
+    }
+    const eu = qu - pu, ev = qv - pv;
+    const dr = -ev * (ru - pu) + eu * (rv - pv);
+    const dx = -ev * (xu - pu) + eu * (xv - pv);
+    if ((dr > 0 && dx < 0) || (dr < 0 && dx > 0)) return 1;
+  }
   if (trianglesOverlap(au0, av0, au1, av1, au2, av2, bu0, bv0, bu1, bv1, bu2, bv2, touching)) {
     // Two shells with the same UV points and area laid on one another: stacking, not overlap.
-    if (sameShellKey(shell, a, b)) {
+    if (sameShellKey(shellsOf(shell), a, b)) {
       if (stacked) { stacked[a] = 1; stacked[b] = 1; }
-      return;
+      return 1;
     }
     flags[a] = 1;
     flags[b] = 1;
   }
+  return 1;
 }
 
 /** Writes the UV points of triangle t into out[0..5], sorted by u then v. */
@@ -390,18 +445,24 @@ function sortedPoints(out: Float64Array, indices: Uint32Array, uvs: Float32Array
   out[0] = uvs[a]; out[1] = uvs[a + 1]; out[2] = uvs[b]; out[3] = uvs[b + 1]; out[4] = uvs[c]; out[5] = uvs[c + 1];
 }
 
+/** log2 of the buckets the exact-copy search sorts triangles into by the top bits of their hash. */
+const COPY_BUCKET_BITS = 8;
+
 /**
  * For each usable triangle, the first usable triangle with the same three UV points (in any
  * order, compared as numbers so -0 equals 0); itself when it is the first. Other entries are
- * the triangle itself. Hash on the sorted points, open addressing.
+ * the triangle itself. Hash on the sorted points; triangles are first sorted into 256
+ * buckets by the hash's top bits (a counting sort that keeps triangle order), then each
+ * bucket is searched with its own small open-addressing table, which stays in cache where one
+ * table over the whole mesh would cost a cache and TLB miss per triangle. Equal points have
+ * equal hashes, so they meet in one bucket, in triangle order: the first is the lowest index.
  */
-function stackedClasses(indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, triangleCount: number, usableCount: number): Uint32Array {
-  const classOf = new Uint32Array(triangleCount);
+function stackedClasses(arena: Arena, indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, triangleCount: number, usableCount: number): Uint32Array {
+  const classOf = arena.u32(SLOT_OVERLAP_CLASS, triangleCount);
   for (let t = 0; t < triangleCount; t++) classOf[t] = t;
-  let size = 16;
-  while (size < usableCount * 2) size <<= 1;
-  const mask = size - 1;
-  const table = new Uint32Array(size).fill(0xffffffff);
+  const hashOf = arena.u32(SLOT_OVERLAP_HASH, triangleCount);
+  const bucketStart = new Uint32Array((1 << COPY_BUCKET_BITS) + 1);
+  const shift = 32 - COPY_BUCKET_BITS;
   const p = new Float64Array(6), q = new Float64Array(6);
   const bits = new Float32Array(1), word = new Uint32Array(bits.buffer);
   for (let t = 0; t < triangleCount; t++) {
@@ -413,16 +474,54 @@ function stackedClasses(indices: Uint32Array, uvs: Float32Array, usable: Uint8Ar
       h = Math.imul(h ^ word[0], 0x9e3779b1);
       h ^= h >>> 15;
     }
-    let slot = h & mask;
-    for (;;) {
-      const r = table[slot];
-      if (r === 0xffffffff) { table[slot] = t; break; }
-      sortedPoints(q, indices, uvs, r);
-      if (p[0] === q[0] && p[1] === q[1] && p[2] === q[2] && p[3] === q[3] && p[4] === q[4] && p[5] === q[5]) {
-        classOf[t] = r;
-        break;
+    // Final mix, so every bit (the bucket's top bits, the table's low bits) depends on every point.
+    h = Math.imul(h ^ (h >>> 16), 0x85ebca6b);
+    h = Math.imul(h ^ (h >>> 13), 0xc2b2ae35);
+    h = (h ^ (h >>> 16)) >>> 0;
+    hashOf[t] = h;
+    bucketStart[(h >>> shift) + 1]++;
+  }
+  let largest = 0;
+  for (let k = 0; k < 1 << COPY_BUCKET_BITS; k++) {
+    if (bucketStart[k + 1] > largest) largest = bucketStart[k + 1];
+    bucketStart[k + 1] += bucketStart[k];
+  }
+  // Bucketed triangles with their hashes side by side (read in order), and the table's slots
+  // as (triangle, hash) pairs, so a probe reads one place.
+  const order = arena.u32(SLOT_OVERLAP_ORDER, usableCount * 2);
+  const cursor = bucketStart.slice(0, 1 << COPY_BUCKET_BITS);
+  for (let t = 0; t < triangleCount; t++) {
+    if (!usable[t]) continue;
+    const h = hashOf[t];
+    const o = cursor[h >>> shift]++ * 2;
+    order[o] = t; order[o + 1] = h;
+  }
+  let size = 16;
+  while (size < largest * 2) size <<= 1;
+  const table = arena.u32(SLOT_OVERLAP_TABLE, size * 2);
+  for (let k = 0; k < 1 << COPY_BUCKET_BITS; k++) {
+    const s0 = bucketStart[k], s1 = bucketStart[k + 1];
+    if (s1 - s0 < 2) continue;
+    let tableSize = 16;
+    while (tableSize < (s1 - s0) * 2) tableSize <<= 1;
+    const mask = tableSize - 1;
+    table.fill(0xffffffff, 0, tableSize * 2);
+    for (let i = s0; i < s1; i++) {
+      const t = order[i * 2], h = order[i * 2 + 1];
+      let slot = h & mask;
+      for (;;) {
+        const r = table[slot * 2];
+        if (r === 0xffffffff) { table[slot * 2] = t; table[slot * 2 + 1] = h; break; }
+        if (table[slot * 2 + 1] === h) {
+          sortedPoints(p, indices, uvs, t);
+          sortedPoints(q, indices, uvs, r);
+          if (p[0] === q[0] && p[1] === q[1] && p[2] === q[2] && p[3] === q[3] && p[4] === q[4] && p[5] === q[5]) {
+            classOf[t] = r;
+            break;
+          }
+        }
+        slot = (slot + 1) & mask;
       }
-      slot = (slot + 1) & mask;
     }
   }
   return classOf;
@@ -482,6 +581,33 @@ function hasPoint(
   u0: number, v0: number, u1: number, v1: number, u2: number, v2: number,
 ): boolean {
   return (u === u0 && v === v0) || (u === u1 && v === v1) || (u === u2 && v === v2);
+}
+
+/**
+ * The value of rank k (0-based) of `a`, as a[k] would be after sorting; reorders `a`.
+ * Quickselect with the median of three as pivot (Hoare partition): linear on average, and the
+ * median-of-three pivot keeps sorted and reversed samples linear too.
+ * Preconditions: 0 <= k < a.length; no NaN.
+ */
+function selectRank(a: Float64Array, k: number): number {
+  let lo = 0, hi = a.length - 1;
+  while (hi > lo) {
+    const mid = (lo + hi) >>> 1;
+    let x = a[lo], y = a[mid], z = a[hi];
+    if (y < x) { const s = x; x = y; y = s; }
+    if (z < y) { y = z; if (y < x) y = x; }
+    const pivot = y;
+    let i = lo, j = hi;
+    while (i <= j) {
+      while (a[i] < pivot) i++;
+      while (a[j] > pivot) j--;
+      if (i <= j) { const s = a[i]; a[i] = a[j]; a[j] = s; i++; j--; }
+    }
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else return a[k];
+  }
+  return a[k];
 }
 
 /** Grid cell of coordinate x along one axis: floor((x - origin) * inv), clamped to [0, n - 1]. */

@@ -2,6 +2,7 @@
  * Based on: the library contract in DESIGN.md; dispatches to the MikkTSpace method (Mikkelsen
  * 2008) or Lengyel's method (2001) and re-indexes so vertices split only where frames differ.
  */
+import { SLOT_CORNER_FRAME, SLOT_LENGYEL_UNDEFINED, threadArena } from '../mesh/arena.js';
 import { assert } from '../mesh/errors.js';
 import type { FrameInput, FrameOptions, FrameResult } from '../mesh/types.js';
 import { computeLengyelTangents } from './lengyel.js';
@@ -57,12 +58,13 @@ export function computeFrames(input: FrameInput, options: FrameOptions = {}): Fr
 
   if (method === 'lengyel') {
     const tangents = new Float32Array(vertexCount * 4);
-    const undefinedVertex = new Uint8Array(vertexCount);
+    const undefinedVertex = threadArena().u8(SLOT_LENGYEL_UNDEFINED, vertexCount);
     const s = computeLengyelTangents(tangents, undefinedVertex, indices, positions, normals, uvs, vSign, weight, triangleCount, vertexCount);
     const sourceVertex = new Uint32Array(vertexCount);
     for (let v = 0; v < vertexCount; v++) sourceVertex[v] = v;
     const undefinedCorners = new Uint8Array(indices.length);
-    for (let c = 0; c < indices.length; c++) undefinedCorners[c] = undefinedVertex[indices[c]];
+    // Every corner of a vertex that took the fallback (none, usually: the array stays zero).
+    if (s.fallbackTangents > 0) for (let c = 0; c < indices.length; c++) undefinedCorners[c] = undefinedVertex[indices[c]];
     return {
       tangents,
       indices: indices.slice(),
@@ -76,7 +78,7 @@ export function computeFrames(input: FrameInput, options: FrameOptions = {}): Fr
       },
     };
   }
-  const cornerFrame = new Uint32Array(triangleCount * 3);
+  const cornerFrame = threadArena().u32(SLOT_CORNER_FRAME, triangleCount * 3);
   const undefinedCorners = new Uint8Array(triangleCount * 3);
   const s = computeMikktspaceFrames(cornerFrame, undefinedCorners, indices, positions, normals, uvs, faces, vSign, triangleCount, vertexCount);
   const split = splitByCornerFrames(cornerFrame, s.frames, indices, normals, vertexCount);

@@ -5,6 +5,7 @@
  */
 import type { TangentWeight } from '../mesh/types.js';
 import { UV_DEGENERATE_RELATIVE, ZERO_LENGTH } from '../mesh/tolerances.js';
+import { SLOT_LENGYEL_SUMS, threadArena } from '../mesh/arena.js';
 import { writeFallbackTangent } from './fallback.js';
 
 /** Counts a `lengyel` solve reports. */
@@ -38,7 +39,7 @@ export function computeLengyelTangents(
   triangleCount: number,
   vertexCount: number,
 ): LengyelStats {
-  const tan = new Float64Array(vertexCount * 6); // T xyz, B xyz per vertex
+  const tan = threadArena().f64(SLOT_LENGYEL_SUMS, vertexCount * 6, 0); // T xyz, B xyz per vertex
   const useDerivative = weight === 'derivative';
   const useAngle = weight === 'angle';
   const useArea = weight === 'area';

@@ -9,6 +9,10 @@
  * quad orientation forcing) follow our memory of the published reference implementation.
  */
 import { MIKK_NOT_ZERO, PROJECTED_ZERO, UV_DEGENERATE_RELATIVE } from '../mesh/tolerances.js';
+import {
+  SLOT_ADJ_EDGES, SLOT_ADJ_FILL, SLOT_ADJ_START, SLOT_ADJ_TARGETS, SLOT_CONTRIB, SLOT_CORNER_VERTEX, SLOT_FIRST_GOOD, SLOT_FRAMES, SLOT_NEIGHBOUR,
+  SLOT_TRIANGLE_FLAGS, SLOT_WELD_REP, threadArena, type Arena,
+} from '../mesh/arena.js';
 import { weldVertices } from '../mesh/weld.js';
 import { writeFallbackTangent } from './fallback.js';
 
@@ -19,7 +23,10 @@ const DEGENERATE = 4;
 
 /** What a `mikktspace` solve returns besides the corner-to-frame map. */
 export interface MikktspaceResult {
-  /** 4 floats per frame: xyz unit, w = +1 | -1 (length 4 * frameCount). */
+  /**
+   * 4 floats per frame: xyz unit, w = +1 | -1 (length 4 * frameCount). Scratch of this
+   * thread's arena (SLOT_FRAMES): valid until the next solve on this thread.
+   */
   frames: Float32Array;
   frameCount: number;
   degenerateUvTriangles: number;
@@ -36,13 +43,9 @@ interface FrameStore {
   count: number;
 }
 
-/** Appends room for one frame and returns its id. */
-function newFrame(store: FrameStore): number {
-  if ((store.count + 1) * 4 > store.data.length) {
-    const grown = new Float32Array(store.data.length * 2);
-    grown.set(store.data);
-    store.data = grown;
-  }
+/** Appends room for one frame (the store lives in the arena's SLOT_FRAMES) and returns its id. */
+function newFrame(store: FrameStore, arena: Arena): number {
+  if ((store.count + 1) * 4 > store.data.length) store.data = arena.growF32(SLOT_FRAMES, store.data, store.data.length * 2, 0);
   return store.count++;
 }
 
@@ -74,20 +77,23 @@ export function computeMikktspaceFrames(
   vertexCount: number,
 ): MikktspaceResult {
   const cornerCount = triangleCount * 3;
+  const arena = threadArena();
   // 1. Welding: connectivity comes from welded indices.
-  const rep = new Uint32Array(vertexCount);
+  const rep = arena.u32(SLOT_WELD_REP, vertexCount);
   const weldedVertices = weldVertices(rep, positions, normals, uvs, vertexCount);
-  const wi = new Uint32Array(cornerCount);
-  for (let c = 0; c < cornerCount; c++) wi[c] = rep[indices[c]];
+  const wi = arena.u32(SLOT_CORNER_VERTEX, cornerCount);
 
   // 2. Per-triangle derivatives and flags.
-  const flags = new Uint8Array(triangleCount);
+  const flags = arena.u8(SLOT_TRIANGLE_FLAGS, triangleCount);
   // Per corner: the triangle's derivative projected on the corner's tangent plane, normalised
-  // and weighted by the projected corner angle (zero for triangles that contribute nothing).
-  const contrib = new Float32Array(cornerCount * 3);
+  // and weighted by the projected corner angle (zero for triangles that contribute nothing;
+  // every entry is written below, so the arena's old contents never show).
+  const contrib = arena.f32(SLOT_CONTRIB, cornerCount * 3);
   let degenerateUv = 0, mirrored = 0, degenerateTriangles = 0;
   for (let t = 0; t < triangleCount; t++) {
-    const a = wi[t * 3], b = wi[t * 3 + 1], c = wi[t * 3 + 2];
+    // The welded corners, written here (one pass over the corners, not two).
+    const a = rep[indices[t * 3]], b = rep[indices[t * 3 + 1]], c = rep[indices[t * 3 + 2]];
+    wi[t * 3] = a; wi[t * 3 + 1] = b; wi[t * 3 + 2] = c;
     let f = GROUP_WITH_ANY;
     const u0 = uvs[a * 2], v0 = uvs[a * 2 + 1];
     const t21x = uvs[b * 2] - u0, t21y = vSign * (uvs[b * 2 + 1] - v0);
@@ -99,6 +105,7 @@ export function computeMikktspaceFrames(
     if (a === b || a === c || b === c) {
       flags[t] = f | DEGENERATE;
       degenerateTriangles++;
+      contrib.fill(0, t * 9, t * 9 + 9);
       continue;
     }
     const x0 = positions[a * 3], y0 = positions[a * 3 + 1], z0 = positions[a * 3 + 2];
@@ -151,6 +158,8 @@ export function computeMikktspaceFrames(
         const o = (t * 3 + k) * 3;
         contrib[o] = angle * px; contrib[o + 1] = angle * py; contrib[o + 2] = angle * pz;
       }
+    } else {
+      contrib.fill(0, t * 9, t * 9 + 9);
     }
   }
 
@@ -177,13 +186,13 @@ export function computeMikktspaceFrames(
 
   // 3. Edge adjacency over welded indices: edge i of t runs corner i -> corner i+1 and pairs
   //    with the first later triangle holding the opposite directed edge.
-  const neighbour = buildNeighbours(wi, flags, triangleCount, vertexCount);
+  const neighbour = buildNeighbours(arena, wi, flags, triangleCount, vertexCount);
 
   // 4-6. Groups at each welded vertex, evaluated as soon as they are complete.
   const cornerGroup = cornerFrame;
   cornerGroup.fill(NONE, 0, cornerCount);
   undefinedCorner.fill(0, 0, cornerCount);
-  const store: FrameStore = { data: new Float32Array(4 * Math.max(16, vertexCount + (vertexCount >>> 3))), count: 0 };
+  const store: FrameStore = { data: arena.f32(SLOT_FRAMES, 4 * Math.max(16, vertexCount + (vertexCount >>> 3))), count: 0 };
   let stack = new Uint32Array(1024);
   let members = new Uint32Array(64);
   let assigned = 0;
@@ -192,7 +201,7 @@ export function computeMikktspaceFrames(
     if (flags[f] & GROUP_WITH_ANY) continue;
     for (let i = 0; i < 3; i++) {
       if (cornerGroup[f * 3 + i] !== NONE) continue;
-      const g = newFrame(store);
+      const g = newFrame(store, arena);
       const vrep = wi[f * 3 + i];
       const orient = flags[f] & ORIENT_PRESERVING;
       cornerGroup[f * 3 + i] = g;
@@ -246,14 +255,14 @@ export function computeMikktspaceFrames(
   // Corners of non-degenerate triangles that joined no group (isolated "group with any"),
   // then degenerate triangles; both passes are skipped when there is nothing to do.
   if (!(assigned === (triangleCount - degenerateTriangles) * 3 && degenerateTriangles === 0)) {
-    const firstGood = new Uint32Array(vertexCount).fill(NONE);
+    const firstGood = arena.u32(SLOT_FIRST_GOOD, vertexCount, NONE);
     for (let t = 0; t < triangleCount; t++) {
       if (flags[t] & DEGENERATE) continue;
       for (let i = 0; i < 3; i++) {
         const c = t * 3 + i;
         if (cornerGroup[c] === NONE) {
           const v = wi[c];
-          const g = newFrame(store);
+          const g = newFrame(store, arena);
           writeFallbackTangent(store.data, g * 4, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
           cornerGroup[c] = g;
           undefinedCorner[c] = 1;
@@ -273,7 +282,7 @@ export function computeMikktspaceFrames(
           undefinedCorner[c] = undefinedCorner[src];
         } else {
           const v = wi[c];
-          const g = newFrame(store);
+          const g = newFrame(store, arena);
           writeFallbackTangent(store.data, g * 4, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
           cornerGroup[c] = g;
           undefinedCorner[c] = 1;
@@ -314,19 +323,29 @@ function nextCorner(c: number): number {
  * corner c to the next corner), the neighbouring triangle or NONE. Degenerate triangles take
  * no part. Outgoing edges are kept as compressed sparse rows per welded vertex.
  */
-function buildNeighbours(wi: Uint32Array, flags: Uint8Array, triangleCount: number, vertexCount: number): Uint32Array {
+function buildNeighbours(arena: Arena, wi: Uint32Array, flags: Uint8Array, triangleCount: number, vertexCount: number): Uint32Array {
   const cornerCount = triangleCount * 3;
-  const start = new Uint32Array(vertexCount + 1);
+  const start = arena.u32(SLOT_ADJ_START, vertexCount + 1, 0);
   for (let t = 0; t < triangleCount; t++) {
     if (flags[t] & DEGENERATE) continue;
     start[wi[t * 3] + 1]++; start[wi[t * 3 + 1] + 1]++; start[wi[t * 3 + 2] + 1]++;
   }
   for (let v = 0; v < vertexCount; v++) start[v + 1] += start[v];
-  const fill = start.slice(0, vertexCount);
-  const edges = new Uint32Array(start[vertexCount]);
+  const fill = arena.u32(SLOT_ADJ_FILL, vertexCount);
+  fill.set(start.subarray(0, vertexCount));
+  // Per row entry: the corner, and beside it the edge's target vertex, so a row is searched
+  // without loading the corners' triangles.
+  const edges = arena.u32(SLOT_ADJ_EDGES, start[vertexCount]);
+  const targets = arena.u32(SLOT_ADJ_TARGETS, start[vertexCount]);
   for (let t = 0; t < triangleCount; t++) {
     if (flags[t] & DEGENERATE) continue;
-    for (let i = 0; i < 3; i++) edges[fill[wi[t * 3 + i]]++] = t * 3 + i;
+    const v0 = wi[t * 3], v1 = wi[t * 3 + 1], v2 = wi[t * 3 + 2];
+    let k = fill[v0]++;
+    edges[k] = t * 3; targets[k] = v1;
+    k = fill[v1]++;
+    edges[k] = t * 3 + 1; targets[k] = v2;
+    k = fill[v2]++;
+    edges[k] = t * 3 + 2; targets[k] = v0;
   }
   // Rows longer than LONG_ROW (a vertex shared by many triangles, as at the centre of a
   // large fan) are sorted by target vertex, then corner, and searched by bisection, so no
@@ -337,34 +356,36 @@ function buildNeighbours(wi: Uint32Array, flags: Uint8Array, triangleCount: numb
     const row = Array.from(edges.subarray(s0, s1));
     row.sort((x, y) => wi[nextCorner(x)] - wi[nextCorner(y)] || x - y);
     edges.set(row, s0);
+    for (let k = s0; k < s1; k++) targets[k] = wi[nextCorner(edges[k])];
   }
-  const neighbour = new Uint32Array(cornerCount).fill(NONE);
+  const neighbour = arena.u32(SLOT_NEIGHBOUR, cornerCount, NONE);
   for (let t = 0; t < triangleCount; t++) {
     if (flags[t] & DEGENERATE) continue;
+    // Corners of later triangles start here (a corner e belongs to a triangle after t iff e >= later).
+    const later = t * 3 + 3;
     for (let i = 0; i < 3; i++) {
       const c = t * 3 + i;
       if (neighbour[c] !== NONE) continue;
-      const a = wi[c], b = wi[t * 3 + (i < 2 ? i + 1 : 0)];
+      const a = wi[c], b = wi[i < 2 ? c + 1 : c - 2];
       const end = start[b + 1];
       let k = start[b];
-      if (end - k > LONG_ROW) {
+      const sorted = end - k > LONG_ROW;
+      if (sorted) {
         // First entry whose target is >= a.
         let hi = end;
         while (k < hi) {
           const mid = (k + hi) >>> 1;
-          if (wi[nextCorner(edges[mid])] < a) k = mid + 1; else hi = mid;
+          if (targets[mid] < a) k = mid + 1; else hi = mid;
         }
       }
       for (; k < end; k++) {
-        const e = edges[k];
-        const u = (e / 3) | 0;
-        const target = wi[e - u * 3 < 2 ? e + 1 : e - 2];
-        if (target !== a) {
-          if (end - start[b] > LONG_ROW) break; // sorted row: past the run of target a
+        if (targets[k] !== a) {
+          if (sorted) break; // sorted row: past the run of target a
           continue;
         }
-        if (u <= t || neighbour[e] !== NONE) continue;
-        neighbour[c] = u;
+        const e = edges[k];
+        if (e < later || neighbour[e] !== NONE) continue;
+        neighbour[c] = (e / 3) | 0;
         neighbour[e] = t;
         break;
       }

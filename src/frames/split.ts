@@ -3,6 +3,7 @@
  * only where the frames of its corners differ). Frames compare bit for bit after rounding to
  * float32, so the output is a pure function of the input.
  */
+import { SLOT_SPLIT_FRAME_OF, SLOT_SPLIT_HASHED, SLOT_SPLIT_SOURCE, threadArena } from '../mesh/arena.js';
 import { writeFallbackTangent } from './fallback.js';
 
 const NONE = 0xffffffff;
@@ -14,14 +15,6 @@ export interface SplitResult {
   sourceVertex: Uint32Array;
   /** Vertices not used by any triangle (they keep the fallback frame). */
   unusedVertices: number;
-}
-
-/** A copy of `a` in a longer array, the new tail filled with `fill`. */
-function grown(a: Uint32Array<ArrayBuffer>, length: number, fill: number): Uint32Array<ArrayBuffer> {
-  const b = new Uint32Array(length);
-  if (fill !== 0) b.fill(fill, a.length);
-  b.set(a);
-  return b;
 }
 
 /**
@@ -95,11 +88,12 @@ export function splitByCornerFrames(
   const bits = new Uint32Array(frames.buffer, frames.byteOffset, frames.length);
   let capacity = vertexCount + Math.min(cornerCount, Math.max(1024, vertexCount >>> 3));
   // Per output vertex: its frame id and its source vertex.
-  let frameOf = new Uint32Array(capacity).fill(NONE);
-  let source = new Uint32Array(capacity);
+  const arena = threadArena();
+  let frameOf = arena.u32(SLOT_SPLIT_FRAME_OF, capacity, NONE);
+  let source = arena.u32(SLOT_SPLIT_SOURCE, capacity);
   // Variants beyond a vertex's first, by (source, frame bits); allocated on the first split.
   let variants: VariantTable | null = null;
-  const hashed = new Uint8Array(vertexCount);
+  const hashed = arena.u8(SLOT_SPLIT_HASHED, vertexCount, 0);
   const outIndices = new Uint32Array(cornerCount);
   let count = vertexCount;
   for (let v = 0; v < vertexCount; v++) source[v] = v;
@@ -127,8 +121,8 @@ export function splitByCornerFrames(
     if (o === NONE) {
       if (count === capacity) {
         capacity = Math.min(vertexCount + cornerCount, capacity * 2);
-        frameOf = grown(frameOf, capacity, NONE);
-        source = grown(source, capacity, 0);
+        frameOf = arena.growU32(SLOT_SPLIT_FRAME_OF, frameOf, capacity, NONE);
+        source = arena.growU32(SLOT_SPLIT_SOURCE, source, capacity, 0);
       }
       o = count++;
       source[o] = v;

@@ -26,6 +26,7 @@ import { TanframeError, assert } from '../mesh/errors.js';
 import { TEXEL_FRAME_MIN_DET, TEXEL_ZERO_LENGTH } from '../mesh/tolerances.js';
 import { uvTransformMatrix, type UvTransform } from '../mesh/uvTransform.js';
 import type { PngImage } from './png.js';
+import { MAX_PADDING } from './limits.js';
 import { RASTER_DEGENERATE, RASTER_OK, createSpanBuffer, rasterWork, rasterizeTriangle, type SpanBuffer } from './rasterize.js';
 
 /** The space a normal map is expressed in. */
@@ -99,8 +100,7 @@ export const RASTER_WORK_PER_TEXEL = 16;
 /** Texel steps every triangle may take on top of RASTER_WORK_PER_TEXEL (a few rows of a thin sliver). */
 export const RASTER_WORK_PER_TRIANGLE = 64;
 
-/** Largest accepted `padding`. */
-export const MAX_PADDING = 250;
+export { MAX_PADDING };
 
 const STATE_EMPTY = 0;
 const STATE_COVERED = 1;

@@ -135,10 +135,20 @@ export function parseGlb(bytes: Uint8Array): GlbContents {
  * file would exceed the 4 GiB GLB limit.
  */
 export function assembleGlb(json: object, bin: Uint8Array | null): Uint8Array {
+  const length = bin === null ? 0 : bin.byteLength;
+  return assembleGlbWith(json, length, (out, at) => { if (bin) out.set(bin, at); });
+}
+
+/**
+ * Same as assembleGlb for a BIN chunk of `binLength` bytes that `writeBin(out, at)` writes
+ * into the finished file at offset `at` (the file is zero-filled first), so a buffer made of
+ * parts is placed once, straight into the file, instead of being joined and then copied.
+ */
+export function assembleGlbWith(json: object, binLength: number, writeBin: (out: Uint8Array, at: number) => void): Uint8Array {
   const jsonBytes = new TextEncoder().encode(JSON.stringify(json));
   const jsonPadded = jsonBytes.byteLength + ((4 - (jsonBytes.byteLength % 4)) % 4);
-  const hasBin = bin !== null && bin.byteLength > 0;
-  const binPadded = hasBin ? bin.byteLength + ((4 - (bin.byteLength % 4)) % 4) : 0;
+  const hasBin = binLength > 0;
+  const binPadded = hasBin ? binLength + ((4 - (binLength % 4)) % 4) : 0;
   const total = HEADER_BYTES + CHUNK_HEADER_BYTES + jsonPadded + (hasBin ? CHUNK_HEADER_BYTES + binPadded : 0);
   if (total > MAX_GLB_BYTES) throw new TanframeError('too-large', 'the output exceeds the 4 GiB GLB size limit');
   const out = new Uint8Array(total); // zero-filled: the BIN chunk's padding
@@ -154,7 +164,7 @@ export function assembleGlb(json: object, bin: Uint8Array | null): Uint8Array {
     const at = 20 + jsonPadded;
     view.setUint32(at, binPadded, true);
     view.setUint32(at + 4, CHUNK_BIN, true);
-    out.set(bin, at + CHUNK_HEADER_BYTES);
+    writeBin(out, at + CHUNK_HEADER_BYTES);
   }
   return out;
 }

@@ -36,7 +36,7 @@ import {
 import { toFloat32 } from '../mesh/decode.js';
 import { TanframeError, assert } from '../mesh/errors.js';
 import type { OutputFile } from './files.js';
-import { assembleGlb } from './glb.js';
+import { assembleGlbWith } from './glb.js';
 import { TYPE_COMPONENTS, elementLayout, packedElementBytes } from './gltfAccessor.js';
 import { accessorRefs, bufferViewRefs, keepReferenced } from './gltfRefs.js';
 import { needsQuantization } from './gltfSemantics.js';
@@ -156,8 +156,13 @@ class BinBuilder {
   /** The whole buffer, zero-padded to a multiple of 4. */
   finish(): Uint8Array {
     const out = new Uint8Array(align4(this.length));
-    for (const p of this.parts) out.set(p.bytes, p.offset);
+    this.writeInto(out, 0);
     return out;
+  }
+
+  /** Writes the parts into `out` from offset `at` (the padding between them is left as it is: zero in a fresh array). */
+  writeInto(out: Uint8Array, at: number): void {
+    for (const p of this.parts) out.set(p.bytes, at + p.offset);
   }
 }
 
@@ -733,11 +738,13 @@ export function encodeGltf(asset: Asset, replacements: Map<number, PrimitiveRepl
   const imageFiles = placeImages(state, options.format, outDir, options.imageUris ?? {});
   for (const [m, p, r, key] of targets) writeReplacement(state, m, p, r, key);
   tidyExtensions(state);
-  const bin = state.bin.finish();
   if (options.format === 'glb') {
-    finishLists(state, bin.byteLength, null);
-    return [{ path: options.outPath, bytes: assembleGlb(json, bin) }, ...imageFiles];
+    // The new buffer goes straight into the GLB's BIN chunk, never joined on its own first.
+    const binLength = align4(state.bin.length);
+    finishLists(state, binLength, null);
+    return [{ path: options.outPath, bytes: assembleGlbWith(json, binLength, (out, at) => state.bin.writeInto(out, at)) }, ...imageFiles];
   }
+  const bin = state.bin.finish();
   if (options.embedBuffers) {
     finishLists(state, bin.byteLength, `data:application/octet-stream;base64,${Buffer.from(bin.buffer, bin.byteOffset, bin.byteLength).toString('base64')}`);
     return [{ path: options.outPath, bytes: new TextEncoder().encode(`${JSON.stringify(json, null, 2)}\n`) }, ...imageFiles];

@@ -27,6 +27,7 @@ import { tangentNeedOf } from './material.js';
 import { morphTangentDelta, type MorphBase } from './morphTangents.js';
 import type { ProcessOptions } from './options.js';
 import { encodeTangents, tangentTypeFor } from './tangentEncoding.js';
+import { Arena, threadArena } from '../mesh/arena.js';
 import { applyUvTransform, changesFrames, type UvTransform } from '../mesh/uvTransform.js';
 import { componentHalfStep, tangentValidityTolerances, unitLengthTolerance, uvOverlapAbsolute } from '../mesh/tolerances.js';
 
@@ -185,6 +186,9 @@ export function solvePrimitive(
     { positions, normals, uvs: transformedUvs(uvs, transform), indices, faces: p.faces },
     { method: options.method, weight: options.weight, uvOrigin: 'top-left' },
   );
+  // A huge primitive's solve scratch is let go before the diagnostics make theirs (an ordinary
+  // one's stays in the arena for the diagnostics and the next primitive).
+  threadArena().trim(Arena.KEEP_BYTES);
   const source = genSource ? composeSource(genSource, frames.sourceVertex) : frames.sourceVertex;
   report.verticesOut = source.length;
   report.splitVertices = genSource ? frames.stats.splitVertices : source.length - vertexCount;
@@ -221,6 +225,7 @@ export function solvePrimitive(
     faceLines: p.faceLines ?? null,
     vertexNumbers: p.compactedFrom ?? null,
   });
+  threadArena().trim(Arena.KEEP_BYTES);
   let solved: SolvedSurface | null = null;
   if (marks && more) {
     const findings = new Uint8Array(triangleCount);

@@ -15,6 +15,7 @@ import {
   vertexPositions,
 } from '../diagnose/index.js';
 import { findingFromMarks, type Finding } from '../diagnose/finding.js';
+import { SLOT_STACKED, threadArena } from '../mesh/arena.js';
 import { FLOAT_TANGENT_VALIDITY, UNIT_LENGTH_TOLERANCE, type TangentValidityTolerances } from '../mesh/tolerances.js';
 import type { PrimitiveReport, TriangleFinding, VertexFindingReport } from '../report/types.js';
 
@@ -110,7 +111,7 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
   if (normals) findBadNormals(indices, positions, normals, triangleCount, vertexCount, unitTolerance, input.positionHalfStep ?? 0, badNormal);
   report.badNormals = vertexFinding(badNormal);
   if (marks?.badNormals) trianglesOfVertices(marks.badNormals, indices, badNormal, triangleCount);
-  const stacked = new Uint8Array(triangleCount);
+  const stacked = threadArena().u8(SLOT_STACKED, triangleCount);
   report.uvOverlap = located(findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null, null, { stacked, touching: input.uvTouching }));
   report.stackedShells = findingFromMarks(stacked, triangleCount);
   let valid = false;

@@ -5,6 +5,9 @@ import type { FrameMethod, TangentWeight } from '../mesh/types.js';
 import { DEFAULT_MAX_TRIANGLES } from '../io/limits.js';
 import { DEFAULT_SMOOTH_ANGLE_DEG, DEFAULT_TANGENT_MISMATCH_DEG, UV_DEGENERATE_RELATIVE } from '../mesh/tolerances.js';
 
+/** The state file's name, in the output folder (src/lib/runState.ts reads and writes it). */
+export const STATE_FILE_NAME = '.tanframe-state.json';
+
 /** Gate names `--fail-on` accepts (DESIGN.md). */
 export const GATE_NAMES = [
   'degenerate-uv',

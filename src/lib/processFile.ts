@@ -6,6 +6,7 @@
 import { stat } from 'node:fs/promises';
 import * as path from 'node:path';
 import type { Asset } from '../mesh/asset.js';
+import { Arena, threadArena } from '../mesh/arena.js';
 import { assert, TanframeError } from '../mesh/errors.js';
 import { writeFilesAtomic } from '../io/files.js';
 import { readGltf, readGltfBytes } from '../io/gltfRead.js';
@@ -17,7 +18,7 @@ import { memoryResources, type AssetResources } from '../io/resources.js';
 import type { FileReport } from '../report/types.js';
 import type { UvPicture } from '../report/uvPicture.js';
 import { hasFindings } from './pictures.js';
-import { renderViewSheets, type ViewSheet, type ViewWants } from './viewSheets.js';
+import type { ViewSheet, ViewWants } from './viewSheets.js';
 import type { JpegDecode } from './pictureBackground.js';
 import { referencedFiles, unchangedOutputs } from './assetFiles.js';
 import { planCompression, type PrimitiveCompression } from './compression.js';
@@ -217,12 +218,17 @@ export async function processFileOutcome(job: FileJob, batchOptions: ProcessOpti
     // JPEG normal maps behind UV pictures: the decoder is loaded only when pictures are wanted.
     const jpeg = job.pictures ? ((await import('jpeg-js')).default.decode as unknown as JpegDecode) : null;
     const solved = solveAsset(asset, options, !!job.pictures, jpeg);
+    // The scratch of ordinary primitives stays for the next file; a huge one's is let go
+    // before encoding, so it does not add to the file's peak.
+    threadArena().trim(Arena.KEEP_BYTES);
     report.primitives = solved.primitives;
     pictures = solved.pictures;
     for (const p of pictures) p.input = job.displayInput;
     applyGates(report, options, job.waivers ?? []);
     if (job.views && (job.views.sheet || job.views.page) && report.primitives.some((p) => p.action !== 'skipped' && hasFindings(p))) {
       try {
+        // The renderer loads only when a file has sheets to draw.
+        const { renderViewSheets } = await import('./viewSheets.js');
         views = await renderViewSheets(asset, options, job.views);
       } catch (err) {
         // A sheet that cannot be drawn is told beside the others; the file's report stands.

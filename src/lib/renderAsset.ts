@@ -20,26 +20,11 @@ import {
   type ModeName, type RenderImage, type RenderMaterial, type RenderPrimitive, type RenderScene, type RenderTextureRef, type ViewName,
 } from '../render/index.js';
 import { solvePrimitive } from './bakeAsset.js';
+import type { RenderAssetOptions } from './renderOptions.js';
 import { texCoordOf } from './material.js';
 import { defaultProcessOptions, type ProcessOptions } from './options.js';
 
-/** What to render. */
-export interface RenderAssetOptions {
-  views: ViewName[];
-  modes: ModeName[];
-  /** Pixels per side of one view. */
-  size: number;
-  /** Light azimuth and elevation in degrees. */
-  light: [number, number];
-  method: FrameMethod;
-  /** TEXCOORD set the frames derive from; null for the normal texture's set (else 0). */
-  uv: number | null;
-}
-
-/** The defaults of DESIGN.md: front, right, back, left; every mode; 512 px; light 30,40; mikktspace. */
-export function defaultRenderOptions(): RenderAssetOptions {
-  return { views: ['front', 'right', 'back', 'left'], modes: ['shaded', 'mismatch', 'findings'], size: 512, light: [30, 40], method: 'mikktspace', uv: null };
-}
+export { defaultRenderOptions, type RenderAssetOptions } from './renderOptions.js';
 
 /** A scene ready to render, with the legend lines and notes for the user. */
 export interface BuiltScene {

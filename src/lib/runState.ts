@@ -50,11 +50,10 @@ import { TanframeError } from '../mesh/errors.js';
 import { writeFilesAtomic, type OutputFile } from '../io/files.js';
 import type { FileReport } from '../report/types.js';
 import { referencedFiles } from './assetFiles.js';
-import type { ProcessOptions } from './options.js';
+import { STATE_FILE_NAME, type ProcessOptions } from './options.js';
 import { hashWithStamp, ownStamp, StampCache, type Stamp } from './stampCache.js';
 
-/** The state file's name, in the output folder. */
-export const STATE_FILE_NAME = '.tanframe-state.json';
+export { STATE_FILE_NAME };
 
 /** The state file's schema tag. */
 export const STATE_SCHEMA = 'tanframe-state/1';

@@ -82,11 +82,3 @@ export async function renderViewSheets(asset: Asset, options: ProcessOptions, wa
 function own(bytes: Uint8Array): Uint8Array {
   return bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength ? bytes : bytes.slice();
 }
-
-/** The ArrayBuffers of `v`, for a transfer list between threads. */
-export function viewBuffers(v: ViewSheet | null | undefined): ArrayBuffer[] {
-  const out: ArrayBuffer[] = [];
-  if (v?.sheet) out.push(v.sheet.buffer as ArrayBuffer);
-  if (v?.page) out.push(v.page.buffer as ArrayBuffer);
-  return out;
-}

@@ -63,7 +63,16 @@ export function compactIndices(scratch: CompactScratch, indices: Uint32Array, ve
     }
   }
   if (k === vertexCount) return null;
-  const vertices = seen.slice(0, k).sort();
+  // The referenced vertices in ascending order: by a walk over the stamps when that is no
+  // dearer than sorting them (k log k >= vertexCount, a primitive using most of its buffer),
+  // else by sorting, so a small primitive of a huge shared buffer never pays for the buffer.
+  let vertices: Uint32Array;
+  if (k * Math.log2(k + 1) >= vertexCount) {
+    vertices = new Uint32Array(k);
+    for (let v = 0, j = 0; v < vertexCount; v++) if (stamp[v] === gen) vertices[j++] = v;
+  } else {
+    vertices = seen.slice(0, k).sort();
+  }
   const map = scratch.map;
   for (let i = 0; i < k; i++) map[vertices[i]] = i;
   const out = new Uint32Array(n);

@@ -4,10 +4,14 @@
  * mat3(cos r, -sin r, 0, sin r, cos r, 0, 0, 0, 1) (column-major), so
  *   u' =  cos(r) * sx * u + sin(r) * sy * v + ox
  *   v' = -sin(r) * sx * u + cos(r) * sy * v + oy
- * The 3 x 3 matrix is composed with gl-matrix (`mat3`, column-major like GLSL) over plain
- * float64 arrays; the extension's rotation by r is gl-matrix's counter-clockwise rotation by -r.
+ * The 3 x 3 matrix T * R * S is composed here in float64, column-major like GLSL (the
+ * extension's rotation by r is a counter-clockwise rotation by -r), by the same products a
+ * general 3 x 3 library makes (translation, then rotate, then scale; every product written
+ * out, the ones with 0 and 1 included, so the rounding is that of the general products).
  */
-import { mat3 } from 'gl-matrix';
+
+/** A column-major 3 x 3 matrix (9 numbers). */
+export type Mat3 = [number, number, number, number, number, number, number, number, number];
 
 /** A KHR_texture_transform: offset, rotation (radians), scale; defaults 0, 0, 1. */
 export interface UvTransform {
@@ -46,15 +50,19 @@ export function changesFrames(t: UvTransform | null): boolean {
 }
 
 /**
- * The transform as a column-major 3 x 3 matrix T * R * S (float64; gl-matrix's own
- * arrays would be float32): uv' = (m[0] u + m[3] v + m[6], m[1] u + m[4] v + m[7]).
+ * The transform as a column-major 3 x 3 matrix T * R * S (float64):
+ * uv' = (m[0] u + m[3] v + m[6], m[1] u + m[4] v + m[7]).
  */
-export function uvTransformMatrix(t: UvTransform): mat3 {
-  const m: mat3 = [1, 0, 0, 0, 1, 0, 0, 0, 1];
-  mat3.fromTranslation(m, t.offset);
-  mat3.rotate(m, m, -t.rotation);
-  mat3.scale(m, m, t.scale);
-  return m;
+export function uvTransformMatrix(t: UvTransform): Mat3 {
+  // T: the translation by the offset.
+  const a00 = 1, a01 = 0, a02 = 0, a10 = 0, a11 = 1, a12 = 0, a20 = t.offset[0], a21 = t.offset[1], a22 = 1;
+  // T * R(-rotation).
+  const s = Math.sin(-t.rotation), c = Math.cos(-t.rotation);
+  const r00 = c * a00 + s * a10, r01 = c * a01 + s * a11, r02 = c * a02 + s * a12;
+  const r10 = c * a10 - s * a00, r11 = c * a11 - s * a01, r12 = c * a12 - s * a02;
+  // (T * R) * S(scale).
+  const x = t.scale[0], y = t.scale[1];
+  return [x * r00, x * r01, x * r02, y * r10, y * r11, y * r12, a20, a21, a22];
 }
 
 /**

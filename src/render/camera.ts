@@ -5,10 +5,10 @@
  * `mat4.ortho`, OpenGL conventions: view space looks down -Z, NDC in [-1, 1]).
  */
 import { mat4, vec3 } from 'gl-matrix';
+import { VIEW_NAMES, type ViewName } from './names.js';
 
 /** View names (DESIGN.md). */
-export const VIEW_NAMES = ['front', 'back', 'left', 'right', 'top', 'bottom', 'iso'] as const;
-export type ViewName = (typeof VIEW_NAMES)[number];
+export { VIEW_NAMES, type ViewName };
 
 /** Direction from the scene centre to the camera, and the camera's up, per view. */
 const VIEWS: Record<ViewName, { eye: [number, number, number]; up: [number, number, number] }> = {

@@ -9,14 +9,14 @@
  * World-space vertex data per instance, then one shading pass over the visible samples of a view.
  */
 import { mat3, mat4 } from 'gl-matrix';
+import { MODE_NAMES, type ModeName } from './names.js';
 import { FINDING_KINDS, NEUTRAL_GREY, findingColour, mismatchColourLinear } from './palette.js';
 import type { VisibilityBuffer } from './rasterize.js';
 import { type RenderInstance, type RenderScene, defaultMaterial } from './scene.js';
 import { sampleTexture, srgbToLinear } from './texture.js';
 
 /** Picture modes (DESIGN.md). */
-export const MODE_NAMES = ['shaded', 'mismatch', 'findings'] as const;
-export type ModeName = (typeof MODE_NAMES)[number];
+export { MODE_NAMES, type ModeName };
 
 /** One instance's vertex data in world space (view independent). */
 export interface PreparedInstance {

@@ -31,7 +31,7 @@ describe('PictureOutputs', () => {
   it('keepsNamesUniqueAndThePageWithinItsBudget', async () => {
     const io = { stdout: () => {}, stderr: () => {}, cwd: tmp, isTTY: false, env: {} };
     const o = { uvMaps: 'maps', html: 'page.html' };
-    const out = new PictureOutputs(o, io, 5);
+    const out = await new PictureOutputs(o, io, 5).ready();
     // 'a/b.glb' and 'a_b.glb' flatten to the same name: the second gets a suffix.
     out.take([picture('a/b.glb', 3)]);
     out.take([picture('a_b.glb', 2)]);

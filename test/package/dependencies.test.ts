@@ -65,7 +65,7 @@ describe('runtime dependencies', () => {
   });
 
   it('dependenciesThatShapeOutputArePinnedExactly', () => {
-    // Decoders, PNG coding and the texture-transform matrix math decide output bytes.
+    // Codecs, PNG coding and the renderer's matrix math decide output bytes.
     for (const name of ['draco3d', 'meshoptimizer', 'fast-png', 'fflate', 'gl-matrix']) {
       expect(pkg.dependencies[name], name).toMatch(/^\d+\.\d+\.\d+$/);
     }
