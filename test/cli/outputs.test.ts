@@ -61,7 +61,7 @@ describe('PictureOutputs', () => {
 
   it('embedsNormalMapsInThePageWithinTheirByteBudget', async () => {
     const io = { stdout: () => {}, stderr: () => {}, cwd: tmp, isTTY: false, env: {} };
-    const out = new PictureOutputs({ uvMaps: 'maps-bg', html: 'page.html' }, io, 1000, null, 250);
+    const out = await new PictureOutputs({ uvMaps: 'maps-bg', html: 'page.html' }, io, 1000, null, 250).ready();
     const withMap = (input: string) => ({
       ...picture(input, 1),
       background: { png: new Uint8Array(100).fill(7), width: 2, height: 2, wrapS: 'repeat' as const, wrapT: 'repeat' as const, transform: null },

@@ -116,7 +116,7 @@ describe('--views', () => {
     const n = ok.page!.length;
     const stderr: string[] = [];
     const io = { stdout: () => {}, stderr: (s: string) => stderr.push(s), cwd: tmp, isTTY: false, env: {} };
-    const out = new ViewOutputs({ views: 'budget-views', html: 'x.html' }, io, null, Math.floor(1.5 * n));
+    const out = await new ViewOutputs({ views: 'budget-views', html: 'x.html' }, io, null, Math.floor(1.5 * n)).ready();
     out.take({ ...ok, input: 'a.glb' });
     out.take({ ...ok, input: 'b.glb' });
     out.take({ ...v, input: 'c.glb', notes: ['note of c'] });
