@@ -11,7 +11,7 @@ export type { Asset, AttributeData, ComponentArray, ExternalImage, MeshoptViewRe
 export type { UvTransform } from './mesh/uvTransform.js';
 export { readAsset, readAssetBytes, processFile, processFileOutcome, outputFormat, type FileJob, type FileOutcome } from './lib/processFile.js';
 export { solveAsset, solvePrimitive, type AssetSolve, type SolvedSurface } from './lib/bakeAsset.js';
-export { normalMapBackground, type BackgroundCache, type BackgroundResult, type JpegDecode } from './lib/pictureBackground.js';
+export { attachBackgrounds, normalMapBackground, type BackgroundCache, type BackgroundResult, type JpegDecode } from './lib/pictureBackground.js';
 export { renderViewSheets, type ViewSheet, type ViewWants } from './lib/viewSheets.js';
 export { createCompactScratch, type CompactScratch } from './mesh/compact.js';
 export { defaultProcessOptions, GATE_NAMES, COMPRESSION_MODES, type CompressionMode, type GateLimit, type GateName, type ProcessOptions } from './lib/options.js';

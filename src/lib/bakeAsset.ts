@@ -21,7 +21,6 @@ import {
 import type { PrimitiveReport } from '../report/types.js';
 import type { UvPicture } from '../report/uvPicture.js';
 import { diagnosePrimitive } from './diagnosePrimitive.js';
-import { normalMapBackground, type BackgroundCache, type JpegDecode } from './pictureBackground.js';
 import { buildUvPicture, hasFindings } from './pictures.js';
 import { tangentNeedOf } from './material.js';
 import { morphTangentDelta, type MorphBase } from './morphTangents.js';
@@ -315,13 +314,12 @@ export function solvePrimitive(
  * for primitives whose geometry changes and, with `pictures` true, the UV picture data of
  * the primitives with findings.
  */
-export function solveAsset(asset: Asset, options: ProcessOptions, pictures = false, jpeg: JpegDecode | null = null): AssetSolve {
+export function solveAsset(asset: Asset, options: ProcessOptions, pictures = false): AssetSolve {
   const primitives: PrimitiveReport[] = [];
   const replacements = new Map<number, PrimitiveReplacement>();
   const shown: UvPicture[] = [];
   const solved = new Map<string, { report: PrimitiveReport; replacement: PrimitiveReplacement | null }>();
   const scratch = createCompactScratch();
-  const backgrounds: BackgroundCache = new Map();
   for (let i = 0; i < asset.primitives.length; i++) {
     const p = asset.primitives[i];
     const key = shareKey(asset, p, options);
@@ -335,12 +333,7 @@ export function solveAsset(asset: Asset, options: ProcessOptions, pictures = fal
     primitives.push(r.report);
     const replacement = earlier ? earlier.replacement : r.replacement;
     if (replacement) replacements.set(i, replacement);
-    if (r.picture) {
-      const b = normalMapBackground(asset, p.material, r.picture.uvSet, backgrounds, jpeg);
-      r.picture.background = b.background;
-      r.picture.backgroundNote = b.note;
-      shown.push(r.picture);
-    }
+    if (r.picture) shown.push(r.picture);
     if (key !== null && !earlier) solved.set(key, { report: r.report, replacement: r.replacement });
   }
   return { primitives, replacements, pictures: shown };

@@ -10,7 +10,7 @@ import { decodePng, detectImageKind, encodePng } from '../imaging/png.js';
 import { resolveResourceUri } from '../io/uri.js';
 import type { Asset } from '../mesh/asset.js';
 import { uvTransformMatrix, uvTransformOf } from '../mesh/uvTransform.js';
-import type { PictureBackground } from '../report/uvPicture.js';
+import type { PictureBackground, UvPicture } from '../report/uvPicture.js';
 
 /**
  * Longest side, in pixels, of the normal map drawn behind a UV picture. A choice of ours:
@@ -141,4 +141,20 @@ export function normalMapBackground(asset: Asset, material: number | null, uvSet
     },
     note: null,
   };
+}
+
+/**
+ * Sets each picture's `background` and `backgroundNote` from the normal map of its
+ * primitive's material (normalMapBackground; pictures are matched to asset.primitives by mesh
+ * and primitive index), decoding each image once. `jpeg` decodes JPEG maps (null: they get a note).
+ */
+export function attachBackgrounds(asset: Asset, pictures: UvPicture[], jpeg: JpegDecode | null): void {
+  const cache: BackgroundCache = new Map();
+  const material = new Map<string, number | null>();
+  for (const p of asset.primitives) material.set(`${p.mesh}/${p.primitive}`, p.material);
+  for (const pic of pictures) {
+    const b = normalMapBackground(asset, material.get(`${pic.mesh}/${pic.primitive}`) ?? null, pic.uvSet, cache, jpeg);
+    pic.background = b.background;
+    pic.backgroundNote = b.note;
+  }
 }

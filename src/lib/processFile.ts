@@ -215,15 +215,19 @@ export async function processFileOutcome(job: FileJob, batchOptions: ProcessOpti
     const asset = await readAsset(job.input, { maxTriangles: options.maxTriangles });
     report.warnings = capWarnings(asset.warnings).map((w) => quoteText(w, MAX_MESSAGE_LENGTH));
     if (job.command === 'audit') for (const ext of asset.decompressed ?? []) report.notes.push(`decompressed ${ext}`);
-    // JPEG normal maps behind UV pictures: the decoder is loaded only when pictures are wanted.
-    const jpeg = job.pictures ? ((await import('jpeg-js')).default.decode as unknown as JpegDecode) : null;
-    const solved = solveAsset(asset, options, !!job.pictures, jpeg);
+    const solved = solveAsset(asset, options, !!job.pictures);
     // The scratch of ordinary primitives stays for the next file; a huge one's is let go
     // before encoding, so it does not add to the file's peak.
     threadArena().trim(Arena.KEEP_BYTES);
     report.primitives = solved.primitives;
     pictures = solved.pictures;
     for (const p of pictures) p.input = job.displayInput;
+    if (pictures.length > 0) {
+      // The normal maps behind the pictures: PNG and JPEG decoders load only when there are pictures.
+      const { attachBackgrounds } = await import('./pictureBackground.js');
+      const jpeg = (await import('jpeg-js')).default.decode as unknown as JpegDecode;
+      attachBackgrounds(asset, pictures, jpeg);
+    }
     applyGates(report, options, job.waivers ?? []);
     if (job.views && (job.views.sheet || job.views.page) && report.primitives.some((p) => p.action !== 'skipped' && hasFindings(p))) {
       try {
