@@ -19,7 +19,7 @@
  * ignores it with the state. Nothing here runs at import time.
  */
 import { createHash } from 'node:crypto';
-import { createReadStream } from 'node:fs';
+import * as fs from 'node:fs';
 import * as fsp from 'node:fs/promises';
 import * as path from 'node:path';
 import { writeFilesAtomic } from '../io/files.js';
@@ -46,9 +46,18 @@ export interface Stamp {
   own?: boolean;
 }
 
-/** A file's stat in stamp fields, or null when it is not a regular file. */
-export async function statStamp(file: string): Promise<Omit<Stamp, 'sha256' | 'atNs'> | null> {
-  const st = await fsp.stat(file, { bigint: true }).catch(() => null);
+/**
+ * A file's stat in stamp fields, or null when it is not a regular file. Synchronous on
+ * purpose: one stat system call costs microseconds, a round trip through the thread pool more
+ * than that (a rerun stats every file it once wrote or read).
+ */
+export function statStamp(file: string): Omit<Stamp, 'sha256' | 'atNs'> | null {
+  let st: fs.BigIntStats | undefined;
+  try {
+    st = fs.statSync(file, { bigint: true, throwIfNoEntry: false });
+  } catch {
+    return null;
+  }
   if (!st?.isFile()) return null;
   return { dev: String(st.dev), ino: String(st.ino), size: String(st.size), mtimeNs: String(st.mtimeNs), ctimeNs: String(st.ctimeNs) };
 }
@@ -73,7 +82,7 @@ export function stampTrusted(s: Stamp): boolean {
 function hashStream(file: string): Promise<string | null> {
   return new Promise((resolve) => {
     const hash = createHash('sha256');
-    const stream = createReadStream(file, { highWaterMark: 1 << 20 });
+    const stream = fs.createReadStream(file, { highWaterMark: 1 << 20 });
     stream.on('data', (chunk) => hash.update(chunk));
     stream.on('error', () => resolve(null));
     stream.on('end', () => resolve(hash.digest('hex')));
@@ -86,18 +95,18 @@ function hashStream(file: string): Promise<string | null> {
  * what was read). Null hash for a file that is absent or not a readable regular file.
  */
 export async function hashWithStamp(file: string): Promise<{ sha256: string | null; stamp: Stamp | null }> {
-  const before = await statStamp(file);
+  const before = statStamp(file);
   if (!before) return { sha256: null, stamp: null };
   const at = nowNs();
   const sha256 = await hashStream(file);
   if (sha256 === null) return { sha256: null, stamp: null };
-  const after = await statStamp(file);
+  const after = statStamp(file);
   return { sha256, stamp: after && sameStat(before, after) ? { ...before, atNs: String(at), sha256 } : null };
 }
 
 /** Stamp of a file the tool has just written with bytes of hash `sha256` (null when it is not there). */
 export async function ownStamp(file: string, sha256: string): Promise<Stamp | null> {
-  const st = await statStamp(file);
+  const st = statStamp(file);
   return st ? { ...st, atNs: String(nowNs()), sha256, own: true } : null;
 }
 
@@ -153,7 +162,7 @@ export class StampCache {
     const abs = path.resolve(file);
     const s = this.known.get(abs);
     if (s && stampTrusted(s)) {
-      const now = await statStamp(abs);
+      const now = statStamp(abs);
       if (now && sameStat(now, s)) {
         this.keep(abs, s);
         return s.sha256;

@@ -27,6 +27,9 @@ import { readRegularFile } from '../io/files.js';
 import { BUFFER_HASH_DIGITS, sniffImageType } from '../io/gltfWrite.js';
 import { isInside, realPathOfNearestExisting, uriToRelativePath } from '../io/uri.js';
 
+/** Inputs whose references are listed at once while planning. Our choice. */
+const LISTS_AT_ONCE = 4;
+
 /** Extensions a report, JUnit or HTML file never has: naming one is a mistake (often a shell-expanded `*.glb`). */
 const NOT_A_REPORT = ['.glb', '.gltf', '.obj', '.mtl', '.bin'];
 
@@ -45,6 +48,8 @@ export class WritePlan {
   private readonly reads = new Map<string, { shown: string; owners: Set<string> }>();
   private readonly writes = new Map<string, string>();
   private readonly foldsCase = new Map<string, boolean>();
+  /** Keys computed while planning (resolved path -> key); null once settled. */
+  private keys: Map<string, string> | null = new Map();
 
   constructor(private readonly cwd: string) {}
 
@@ -56,13 +61,26 @@ export class WritePlan {
 
   /** The path's identity: its real path (through the deepest existing folder), case folded where the file system ignores case. */
   key(abs: string): string {
+    const resolved = path.resolve(abs);
+    const known = this.keys?.get(resolved);
+    if (known !== undefined) return known;
     let real: string;
     try {
-      real = realPathOfNearestExisting(path.resolve(abs));
+      real = realPathOfNearestExisting(resolved);
     } catch {
-      real = path.resolve(abs);
+      real = resolved;
     }
-    return this.ignoresCase(real) ? real.toLowerCase() : real;
+    const k = this.ignoresCase(real) ? real.toLowerCase() : real;
+    this.keys?.set(resolved, k);
+    return k;
+  }
+
+  /**
+   * Ends the planning: keys are remembered while the plan is made (nothing is written then),
+   * and computed afresh for the late checks right before a write.
+   */
+  settle(): void {
+    this.keys = null;
   }
 
   /** Records a file the run reads; `owner` is the input it belongs to (itself for an input). */
@@ -345,11 +363,20 @@ export async function planRun(req: RunRequest): Promise<RunPlan> {
   const hashOf = async (file: string) => (await hash(file))?.slice(0, NAME_HASH_DIGITS) ?? null;
   const refs = new Map<string, AssetReferences | null>();
   for (const input of req.inputs) plan.read(input, input);
-  for (const input of req.inputs) {
-    const r = await listAssetReferences(input);
-    refs.set(input, r);
-    for (const f of r?.files ?? []) plan.read(f.path, input);
-  }
+  // Listed a few at a time (one file's read overlaps another's parse), recorded in input order.
+  const listed: (AssetReferences | null)[] = new Array(req.inputs.length).fill(null);
+  let next = 0;
+  const lister = async () => {
+    while (next < req.inputs.length) {
+      const i = next++;
+      listed[i] = await listAssetReferences(req.inputs[i]);
+    }
+  };
+  await Promise.all(Array.from({ length: Math.min(LISTS_AT_ONCE, req.inputs.length) }, lister));
+  req.inputs.forEach((input, i) => {
+    refs.set(input, listed[i]);
+    for (const f of listed[i]?.files ?? []) plan.read(f.path, input);
+  });
 
   const jobs: (JobWrites | { refused: string })[] = [];
   const images: { job: number; uri: string; source: string; target: string; outDir: string; root: string }[] = [];
@@ -485,5 +512,6 @@ export async function planRun(req: RunRequest): Promise<RunPlan> {
       job.removeAfter.push(img);
     }
   }
+  plan.settle();
   return { plan, jobs, files };
 }
