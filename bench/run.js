@@ -10,6 +10,7 @@ import * as path from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { computeFrames } from '../dist/index.js';
 import { makeMesh } from './cases.js';
+import { measureThreadScaling } from './scaling.js';
 import { writeMeshGlb } from './glb.js';
 import { prepareThree, runThree } from './threeTangents.js';
 
@@ -166,6 +167,9 @@ try {
     results.batch[b.name] = { files: b.files, triangles: b.tris, jobs1Ms: median(j1), jobs2Ms: median(j2), speedup: median(j1) / median(j2) };
     console.log(`batch of ${b.name} GLBs: --jobs 1 ${(median(j1) / 1000).toFixed(2)} s, --jobs 2 ${(median(j2) / 1000).toFixed(2)} s, speedup ${(median(j1) / median(j2)).toFixed(2)}x`);
   }
+  // What two threads can gain here at all, by kind of work (bench/scaling.js): the ceiling of the batch ratios.
+  results.threadScaling = await measureThreadScaling();
+  console.log(`two threads side by side on this machine: ${Object.entries(results.threadScaling).map(([k, v]) => `${k} ${v.scaling.toFixed(2)}x`).join(', ')} (2.00x = perfect)`);
 
   // Start-up: an empty Node process, `tanframe --version`, and a bake of one triangle, whole
   //    process each, interleaved, median of 11.
