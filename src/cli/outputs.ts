@@ -48,6 +48,48 @@ export const HTML_PICTURE_TRIANGLES = 1_000_000;
 export const HTML_MAP_BYTES = 8 * 2 ** 20;
 
 /**
+ * The files of one picture folder option (--uv-maps, --views): unique names in the folder, each
+ * file through the plan's late guard and written atomically, failures counted with one line
+ * per run for a folder that cannot be made or written at all, one per file otherwise.
+ */
+class FolderWrites {
+  private readonly names = new Set<string>();
+  private readonly writes: Promise<void>[] = [];
+  written = 0;
+  failures = 0;
+
+  constructor(private readonly io: CliIo, private readonly option: string, private readonly plan: WritePlan | null) {}
+
+  /** `name`, or `<stem>~2<ext>`, `~3`, ... when an earlier file of the run took it. */
+  unique(name: string): string {
+    const dot = name.lastIndexOf('.');
+    let chosen = name;
+    for (let k = 2; this.names.has(chosen); k++) chosen = `${name.slice(0, dot)}~${k}${name.slice(dot)}`;
+    this.names.add(chosen);
+    return chosen;
+  }
+
+  /** Queues the write of `bytes` to `file`. */
+  write(file: string, bytes: Uint8Array): void {
+    this.writes.push((async () => {
+      try {
+        const target = this.plan ? this.plan.check(file, `${this.option}: ${this.plan.shown(file)}`) : file;
+        await writeFilesAtomic([{ path: target, bytes }]);
+        this.written++;
+      } catch (err) {
+        this.failures++;
+        if (this.failures === 1 || !/cannot write/.test(String((err as Error)?.message))) writeFailure(this.io, this.option, err);
+      }
+    })());
+  }
+
+  /** Waits for every queued write. */
+  async settle(): Promise<void> {
+    await Promise.all(this.writes);
+  }
+}
+
+/**
  * Receives the pictures of each file as the batch goes (in job order): writes each one as an
  * SVG file under --uv-maps and keeps the SVG text for --html within HTML_PICTURE_TRIANGLES.
  * Pictures are not kept beyond that, so memory stays bounded by the page budget.
@@ -61,11 +103,7 @@ export class PictureOutputs {
   private readonly forHtml: boolean;
   private htmlTriangles = 0;
   private htmlMapBytes = 0;
-  private readonly names = new Set<string>();
-  private readonly writes: Promise<void>[] = [];
-  private written = 0;
-  private failures = 0;
-  private readonly option: string;
+  private readonly files: FolderWrites;
   /** The SVG renderer, loaded by ready() (only a run that draws pictures loads it). */
   private svg: typeof import('../report/uvMapSvg.js') | null = null;
 
@@ -77,9 +115,9 @@ export class PictureOutputs {
    */
   constructor(
     o: Record<string, any>, private readonly io: CliIo, private readonly htmlBudget: number = HTML_PICTURE_TRIANGLES,
-    private readonly plan: WritePlan | null = null, private readonly mapBudget: number = HTML_MAP_BYTES,
+    plan: WritePlan | null = null, private readonly mapBudget: number = HTML_MAP_BYTES,
   ) {
-    this.option = `--uv-maps ${o.uvMaps}`;
+    this.files = new FolderWrites(io, `--uv-maps ${o.uvMaps}`, plan);
     this.dir = o.uvMaps ? path.resolve(io.cwd, o.uvMaps) : null;
     this.forHtml = !!o.html;
     this.wanted = this.dir !== null || this.forHtml;
@@ -108,22 +146,7 @@ export class PictureOutputs {
       let svg: string | null = null;
       if (this.dir) {
         svg = renderUvMapSvg(p);
-        let name = pictureFileName(p.input, p.mesh, p.primitive);
-        for (let k = 2; this.names.has(name); k++) name = pictureFileName(p.input, p.mesh, p.primitive).replace(/\.svg$/, `~${k}.svg`);
-        this.names.add(name);
-        const file = path.join(this.dir, name);
-        const bytes = new TextEncoder().encode(svg);
-        this.writes.push((async () => {
-          try {
-            const target = this.plan ? this.plan.check(file, `${this.option}: ${this.plan.shown(file)}`) : file;
-            await writeFilesAtomic([{ path: target, bytes }]);
-            this.written++;
-          } catch (err) {
-            this.failures++;
-            // One line per run for a folder that cannot be made or written at all; one per picture otherwise.
-            if (this.failures === 1 || !/cannot write/.test(String((err as Error)?.message))) writeFailure(this.io, this.option, err);
-          }
-        })());
+        this.files.write(path.join(this.dir, this.files.unique(pictureFileName(p.input, p.mesh, p.primitive))), new TextEncoder().encode(svg));
       }
       if (!this.forHtml) continue;
       const drawn = p.flags.length;
@@ -150,9 +173,9 @@ export class PictureOutputs {
    * how many were written and how many failed.
    */
   async finish(): Promise<{ written: number; failed: number }> {
-    await Promise.all(this.writes);
+    await this.files.settle();
     const v = await this.views.finish();
-    return { written: this.written + v.written, failed: this.failures + v.failed };
+    return { written: this.files.written + v.written, failed: this.files.failures + v.failed };
   }
 }
 
@@ -176,16 +199,14 @@ export class ViewOutputs {
   private readonly dir: string | null;
   private readonly forHtml: boolean;
   private readonly option: string;
-  private readonly names = new Set<string>();
-  private readonly writes: Promise<void>[] = [];
+  private readonly files: FolderWrites;
   private pageBytes = 0;
-  private written = 0;
-  private failures = 0;
 
   /** `pageBudget`: the page's budget of sheet bytes (tests pass a small one); `plan`: the run's write plan. */
-  constructor(o: Record<string, any>, private readonly io: CliIo, private readonly plan: WritePlan | null = null, private readonly pageBudget: number = HTML_VIEW_BYTES) {
+  constructor(o: Record<string, any>, private readonly io: CliIo, plan: WritePlan | null = null, private readonly pageBudget: number = HTML_VIEW_BYTES) {
     this.dir = o.views ? path.resolve(io.cwd, o.views) : null;
     this.option = `--views ${o.views}`;
+    this.files = new FolderWrites(io, this.option, plan);
     this.wanted = this.dir !== null;
     this.forHtml = this.wanted && !!o.html;
   }
@@ -211,21 +232,7 @@ export class ViewOutputs {
     const { viewFileName } = this.names_;
     for (const note of v.notes) this.io.stderr(`tanframe: ${cleanText(v.input)}: --views: ${cleanText(note)}\n`);
     if (this.dir && v.sheet) {
-      let name = viewFileName(v.input);
-      for (let k = 2; this.names.has(name); k++) name = viewFileName(v.input).replace(/\.png$/, `~${k}.png`);
-      this.names.add(name);
-      const file = path.join(this.dir, name);
-      const bytes = v.sheet;
-      this.writes.push((async () => {
-        try {
-          const target = this.plan ? this.plan.check(file, `${this.option}: ${this.plan.shown(file)}`) : file;
-          await writeFilesAtomic([{ path: target, bytes }]);
-          this.written++;
-        } catch (err) {
-          this.failures++;
-          if (this.failures === 1 || !/cannot write/.test(String((err as Error)?.message))) writeFailure(this.io, this.option, err);
-        }
-      })());
+      this.files.write(path.join(this.dir, this.files.unique(viewFileName(v.input))), v.sheet);
     }
     if (!this.forHtml) return;
     if (!v.page) {
@@ -240,8 +247,8 @@ export class ViewOutputs {
 
   /** Waits for the PNG files; returns how many were written and how many failed. */
   async finish(): Promise<{ written: number; failed: number }> {
-    await Promise.all(this.writes);
-    return { written: this.written, failed: this.failures };
+    await this.files.settle();
+    return { written: this.files.written, failed: this.files.failures };
   }
 }
 
