@@ -58,7 +58,8 @@ export async function runFiles(jobs: FileJob[], options: ProcessOptions, setting
   const timeoutMs = s.fileTimeoutMs ?? 0;
   // Here only without a file timeout: a file that must be stoppable runs on a worker thread,
   // even when it is the only one.
-  if (jobs.length === 0 || (timeoutMs <= 0 && (jobs.length === 1 || s.threads <= 1))) {
+  if (jobs.length === 0) return reports; // nothing to run (a rerun with every file up-to-date): no reader is loaded
+  if (timeoutMs <= 0 && (jobs.length === 1 || s.threads <= 1)) {
     // Loaded here: a batch on worker threads never needs the readers on this thread.
     const { processFileOutcome } = await import('../lib/processFile.js');
     for (let i = 0; i < jobs.length; i++) take(i, await processFileOutcome(jobs[i], options));

@@ -6,7 +6,10 @@
  * Based on: bash glob rules as the `braces` (brace expansion) and picomatch (`?`, classes,
  * `**`, extglobs) packages implement them.
  */
-import * as fs from 'node:fs/promises';
+// Synchronous calls on purpose: a walk makes one call per folder and file, and each costs
+// microseconds, while a round trip through the thread pool costs more (a rerun of a large tree
+// walks it all before it finds that nothing changed).
+import * as fs from 'node:fs';
 import * as path from 'node:path';
 import braces from 'braces';
 import picomatch from 'picomatch';
@@ -119,11 +122,20 @@ export function globDepth(glob: string): number {
   return glob.includes('**') ? Infinity : glob.split('/').length;
 }
 
+/** The real path of `p`, or `p` itself when it cannot be resolved. */
+function realOr(p: string): string {
+  try {
+    return fs.realpathSync.native(p);
+  } catch {
+    return p;
+  }
+}
+
 async function walk(dir: string, visited: Set<string>, out: string[], rules: WalkRules, base: string, depth = Infinity): Promise<void> {
   const root = dir === base;
   let real: string;
   try {
-    real = await fs.realpath(dir);
+    real = fs.realpathSync.native(dir);
   } catch {
     return;
   }
@@ -131,7 +143,7 @@ async function walk(dir: string, visited: Set<string>, out: string[], rules: Wal
   visited.add(real);
   let entries;
   try {
-    entries = await fs.readdir(dir, { withFileTypes: true });
+    entries = fs.readdirSync(dir, { withFileTypes: true });
   } catch {
     return;
   }
@@ -143,7 +155,7 @@ async function walk(dir: string, visited: Set<string>, out: string[], rules: Wal
     let isFile = e.isFile();
     if (e.isSymbolicLink()) {
       try {
-        const st = await fs.stat(p);
+        const st = fs.statSync(p);
         isDir = st.isDirectory();
         isFile = st.isFile();
       } catch {
@@ -202,7 +214,7 @@ export async function expandInputs(inputs: string[], cwd: string, discovery: Dis
   const skip = new Set<string>();
   for (const folder of discovery.skipFolders ?? []) {
     const abs = path.resolve(cwd, folder);
-    skip.add(await fs.realpath(abs).catch(() => abs));
+    skip.add(realOr(abs));
   }
   const rules: WalkRules = { excluded: excluder(discovery.exclude ?? [], cwd), skip };
   // Files named one by one: their layout is kept relative to their common folder (below).
@@ -210,7 +222,7 @@ export async function expandInputs(inputs: string[], cwd: string, discovery: Dis
   const add = async (abs: string, relative: string, display: string, isNamed = false) => {
     let key = abs;
     try {
-      key = await fs.realpath(abs);
+      key = fs.realpathSync.native(abs);
     } catch {
       /* keep the path itself */
     }
@@ -224,7 +236,7 @@ export async function expandInputs(inputs: string[], cwd: string, discovery: Dis
     const abs = path.resolve(cwd, input);
     let st = null;
     try {
-      st = await fs.stat(abs);
+      st = fs.statSync(abs);
     } catch {
       st = null;
     }

@@ -121,7 +121,7 @@ export function realPathOfNearestExisting(p: string): string {
   const tail: string[] = [];
   for (;;) {
     try {
-      return path.join(fs.realpathSync(head), ...tail);
+      return path.join(fs.realpathSync.native(head), ...tail);
     } catch (err) {
       const code = (err as NodeJS.ErrnoException).code;
       if (code !== 'ENOENT' && code !== 'ENOTDIR') throw err;
