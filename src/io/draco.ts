@@ -194,6 +194,34 @@ function decodeGeometry(draco: DracoDecoderModule, decoder: any, buffer: any): a
 }
 
 /**
+ * Decodes `stream` and hands the decoder's geometry to `read`, destroying the decoder's
+ * objects afterwards whatever happens. `skipTransforms` leaves the attribute transforms in
+ * place (the quantization and octahedron transforms then report their bits). Throws
+ * 'bad-draco' when the stream does not decode.
+ */
+async function withDecodedGeometry<T>(stream: Uint8Array, where: string, skipTransforms: boolean, read: (draco: any, decoder: any, geometry: any) => T): Promise<T> {
+  const draco = await loadModule();
+  const decoder = new draco.Decoder();
+  const buffer = new draco.DecoderBuffer();
+  let geometry: any = null;
+  try {
+    buffer.Init(new Int8Array(stream.buffer, stream.byteOffset, stream.byteLength), stream.byteLength);
+    if (skipTransforms) for (const t of [draco.POSITION, draco.NORMAL, draco.COLOR, draco.TEX_COORD, draco.GENERIC]) decoder.SkipAttributeTransform(t);
+    try {
+      geometry = decodeGeometry(draco, decoder, buffer);
+    } catch {
+      // The decoder's own message is not quoted: it may carry bytes of the stream.
+      throw new TanframeError('bad-draco', `${where}: the KHR_draco_mesh_compression data does not decode`);
+    }
+    return read(draco, decoder, geometry);
+  } finally {
+    if (geometry) draco.destroy(geometry);
+    draco.destroy(buffer);
+    draco.destroy(decoder);
+  }
+}
+
+/**
  * Decodes one Draco stream. `attributeIds` is the extension's map semantic -> Draco unique id.
  * Returns the attributes found (values as decoded: quantized streams come back dequantized),
  * the triangle list and the vertex count. Throws 'bad-draco' when the stream does not decode
@@ -201,18 +229,7 @@ function decodeGeometry(draco: DracoDecoderModule, decoder: any, buffer: any): a
  * decoder allocates what the header declares.
  */
 export async function decodeDracoPrimitive(stream: Uint8Array, attributeIds: Record<string, number>, where: string): Promise<DracoMesh> {
-  const draco = await loadModule();
-  const decoder = new draco.Decoder();
-  const buffer = new draco.DecoderBuffer();
-  let geometry: any = null;
-  try {
-    buffer.Init(new Int8Array(stream.buffer, stream.byteOffset, stream.byteLength), stream.byteLength);
-    try {
-      geometry = decodeGeometry(draco, decoder, buffer);
-    } catch {
-      // The decoder's own message is not quoted: it may carry bytes of the stream.
-      throw new TanframeError('bad-draco', `${where}: the KHR_draco_mesh_compression data does not decode`);
-    }
+  return withDecodedGeometry(stream, where, false, (draco, decoder, geometry) => {
     const vertexCount: number = geometry.num_points();
     const attributes: Record<string, DracoAttribute> = {};
     for (const semantic of Object.keys(attributeIds)) {
@@ -245,11 +262,7 @@ export async function decodeDracoPrimitive(stream: Uint8Array, attributeIds: Rec
       }
     }
     return { attributes, indices, vertexCount };
-  } finally {
-    if (geometry) draco.destroy(geometry);
-    draco.destroy(buffer);
-    draco.destroy(decoder);
-  }
+  });
 }
 
 /** How the input's Draco stream stored one attribute: quantization bits, or null for values stored as they are. */
@@ -275,18 +288,7 @@ export interface DracoStreamSettings {
  */
 export async function readDracoSettings(stream: Uint8Array, attributeIds: Record<string, number>, where: string): Promise<DracoStreamSettings> {
   const header = readDracoHeader(stream, where);
-  const draco = await loadModule();
-  const decoder = new draco.Decoder();
-  const buffer = new draco.DecoderBuffer();
-  let geometry: any = null;
-  try {
-    buffer.Init(new Int8Array(stream.buffer, stream.byteOffset, stream.byteLength), stream.byteLength);
-    for (const t of [draco.POSITION, draco.NORMAL, draco.COLOR, draco.TEX_COORD, draco.GENERIC]) decoder.SkipAttributeTransform(t);
-    try {
-      geometry = decodeGeometry(draco, decoder, buffer);
-    } catch {
-      throw new TanframeError('bad-draco', `${where}: the KHR_draco_mesh_compression data does not decode`);
-    }
+  return withDecodedGeometry(stream, where, true, (draco, decoder, geometry) => {
     const attributes: Record<string, DracoAttributeSetting> = {};
     for (const semantic of Object.keys(attributeIds).sort()) {
       const attribute = decoder.GetAttributeByUniqueId(geometry, attributeIds[semantic]);
@@ -303,11 +305,7 @@ export async function readDracoSettings(stream: Uint8Array, attributeIds: Record
       }
     }
     return { method: header.method, attributes };
-  } finally {
-    if (geometry) draco.destroy(geometry);
-    draco.destroy(buffer);
-    draco.destroy(decoder);
-  }
+  });
 }
 
 /** One attribute to store in a Draco stream. */
