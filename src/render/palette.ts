@@ -66,22 +66,19 @@ function toLinear(c: number): number {
 export function mismatchColourLinear(out: Float64Array, angleDeg: number): void {
   let H = HEAT_LINEAR;
   if (!H) H = HEAT_LINEAR = HEAT.map((h) => [h[0], toLinear(h[1]), toLinear(h[2]), toLinear(h[3])]);
-  let k = 1;
-  while (k < H.length - 1 && angleDeg > H[k][0]) k++;
-  const a = H[k - 1], b = H[k];
-  let f = (angleDeg - a[0]) / (b[0] - a[0]);
-  if (!(f > 0)) f = 0;
-  if (f > 1) f = 1;
-  out[0] = a[1] + (b[1] - a[1]) * f;
-  out[1] = a[2] + (b[2] - a[2]) * f;
-  out[2] = a[3] + (b[3] - a[3]) * f;
+  interpolateStops(out, H, angleDeg);
 }
 
 /** Writes the heat-scale sRGB colour (0..1) of a mismatch angle in degrees into out[0..2]; beyond the last stop it stays at the top. */
 export function mismatchColour(out: Float64Array, angleDeg: number): void {
+  interpolateStops(out, HEAT, angleDeg);
+}
+
+/** Writes into out[0..2] the colour of `angleDeg` between the stops [angle, r, g, b] around it, held at the first and last stop. */
+function interpolateStops(out: Float64Array, stops: readonly (readonly number[])[], angleDeg: number): void {
   let k = 1;
-  while (k < HEAT.length - 1 && angleDeg > HEAT[k][0]) k++;
-  const a = HEAT[k - 1], b = HEAT[k];
+  while (k < stops.length - 1 && angleDeg > stops[k][0]) k++;
+  const a = stops[k - 1], b = stops[k];
   let f = (angleDeg - a[0]) / (b[0] - a[0]);
   if (!(f > 0)) f = 0;
   if (f > 1) f = 1;
