@@ -8,9 +8,10 @@
  */
 import {
   SLOT_OVERLAP_BOX, SLOT_OVERLAP_CELLS, SLOT_OVERLAP_CLASS, SLOT_OVERLAP_CURSOR, SLOT_OVERLAP_ENTRIES, SLOT_OVERLAP_FLAGS,
-  SLOT_OVERLAP_HASH, SLOT_OVERLAP_LIVE, SLOT_OVERLAP_ORDER, SLOT_OVERLAP_RANGE, SLOT_OVERLAP_TABLE, SLOT_OVERLAP_USABLE,
+  SLOT_OVERLAP_HASH, SLOT_OVERLAP_LIVE, SLOT_OVERLAP_ORDER, SLOT_OVERLAP_TABLE, SLOT_OVERLAP_USABLE,
   SLOT_SHELL_AREA, SLOT_SHELL_HASH_A, SLOT_SHELL_HASH_B, SLOT_SHELL_OF, SLOT_SHELL_PARENT, SLOT_SHELL_POINTS, SLOT_SHELL_SEEN,
-  SLOT_SHELL_USABLE,
+  SLOT_SHELL_USABLE, SLOT_OVERLAP_STARTS_U, SLOT_OVERLAP_STARTS_V,
+  SLOT_OVERLAP_STARTS_BOTH, SLOT_OVERLAP_POINT_HASH,
   threadArena, type Arena,
 } from '../mesh/arena.js';
 import { assert } from '../mesh/errors.js';
@@ -96,6 +97,7 @@ export function findUvOverlaps(
   assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
   assert(!marks || marks.length >= triangleCount, 'marks must hold one entry per triangle');
   assert(!stacked || stacked.length >= triangleCount, 'stacked must hold one entry per triangle');
+  assert(triangleCount <= TRIANGLE_BITS + 1, 'at most 2^30 triangles');
   const arena = threadArena();
   const flags = marks ?? arena.u8(SLOT_OVERLAP_FLAGS, triangleCount);
   flags.fill(0, 0, triangleCount);
@@ -149,9 +151,10 @@ export function findUvOverlaps(
   const sMinU = new Float64Array(sampleCount), sMinV = new Float64Array(sampleCount);
   const sMaxU = new Float64Array(sampleCount), sMaxV = new Float64Array(sampleCount);
   const sExtent = new Float64Array(sampleCount);
-  for (let t = 0, k = 0, n = 0; t < triangleCount; t++) {
+  for (let t = 0, skip = 0, n = 0; t < triangleCount; t++) {
     if (!usable[t]) continue;
-    if (k++ % stride !== 0) continue;
+    if (skip > 0) { skip--; continue; }
+    skip = stride - 1;
     const w = box[t * 4 + 2] - box[t * 4], h = box[t * 4 + 3] - box[t * 4 + 1];
     sMinU[n] = box[t * 4]; sMinV[n] = box[t * 4 + 1]; sMaxU[n] = box[t * 4 + 2]; sMaxV[n] = box[t * 4 + 3];
     sExtent[n++] = w > h ? w : h;
@@ -175,9 +178,7 @@ export function findUvOverlaps(
   const maxEntries = ENTRIES_PER_TRIANGLE * usableCount;
   let cell = extentSum / usableCount;
   let nu = 1, nv = 1, inv = 1, entryCount = 0;
-  // Per usable triangle its cell range (first and last cell along u, then along v), and per
-  // cell its entry count at cellStart[c + 1], both from the pass that sizes the grid.
-  const range = arena.u32(SLOT_OVERLAP_RANGE, triangleCount * 4);
+  // Per cell its entry count at cellStart[c + 1], from the pass that sizes the grid.
   let cellStart = arena.u32(SLOT_OVERLAP_CELLS, 0);
   for (;;) {
     nu = Math.max(1, Math.ceil(width / cell));
@@ -193,7 +194,6 @@ export function findUvOverlaps(
       if (!usable[t]) continue;
       const cu0 = cellOf(box[t * 4], minU, inv, nu), cu1 = cellOf(box[t * 4 + 2], minU, inv, nu);
       const cv0 = cellOf(box[t * 4 + 1], minV, inv, nv), cv1 = cellOf(box[t * 4 + 3], minV, inv, nv);
-      range[t * 4] = cu0; range[t * 4 + 1] = cu1; range[t * 4 + 2] = cv0; range[t * 4 + 3] = cv1;
       entryCount += (cu1 - cu0 + 1) * (cv1 - cv0 + 1);
       for (let cv = cv0; cv <= cv1; cv++) for (let cu = cu0; cu <= cu1; cu++) cellStart[cv * nu + cu + 1]++;
     }
@@ -203,70 +203,46 @@ export function findUvOverlaps(
   }
   const cellCount = nu * nv;
 
-  // Cell lists in compressed rows: prefix sums of the counts, fill.
+  // Cell lists in compressed rows: prefix sums of the counts, fill. Each entry carries its
+  // triangle, a copy of the triangle's box and where the triangle starts (bit 0: its first
+  // cell along u is this cell's column, bit 1: its first cell along v is this cell's row), so
+  // the pair search reads each cell's entries in one stream.
   for (let c = 0; c < cellCount; c++) cellStart[c + 1] += cellStart[c];
-  const entries = arena.u32(SLOT_OVERLAP_ENTRIES, cellStart[cellCount]);
+  const entryTotal = cellStart[cellCount];
+  const entries = arena.u32(SLOT_OVERLAP_ENTRIES, entryTotal);
   const cursor = arena.u32(SLOT_OVERLAP_CURSOR, cellCount);
   cursor.set(cellStart.subarray(0, cellCount));
   for (let t = 0; t < triangleCount; t++) {
     if (!usable[t]) continue;
-    const cu0 = range[t * 4], cu1 = range[t * 4 + 1], cv0 = range[t * 4 + 2], cv1 = range[t * 4 + 3];
-    for (let cv = cv0; cv <= cv1; cv++) for (let cu = cu0; cu <= cu1; cu++) entries[cursor[cv * nu + cu]++] = t;
+    const bu0 = box[t * 4], bv0 = box[t * 4 + 1], bu1 = box[t * 4 + 2], bv1 = box[t * 4 + 3];
+    const cu0 = cellOf(bu0, minU, inv, nu), cu1 = cellOf(bu1, minU, inv, nu);
+    const cv0 = cellOf(bv0, minV, inv, nv), cv1 = cellOf(bv1, minV, inv, nv);
+    for (let cv = cv0; cv <= cv1; cv++) {
+      for (let cu = cu0; cu <= cu1; cu++) {
+        const pos = cursor[cv * nu + cu]++;
+        entries[pos] = t + (cu === cu0 ? HERE_U : 0) + (cv === cv0 ? HERE_V : 0);
+      }
+    }
   }
 
   // Pairs within each cell; a pair is tested only in the cell of the lower-left corner of
   // the intersection of its bounding boxes, so once over the whole grid. That corner's cell
   // is (max of the two first cells along u, max along v), as cellOf is monotonic, and a
   // triangle's first cell is never past the cell it is met in, so the test is "one of the two
-  // starts here" on each axis. A pair of two triangles already known to overlap something
-  // teaches nothing, so for an already-marked triangle only the cell's still-unmarked later
-  // entries are visited: `live` holds them, compacted as they get marked. Near-stacked copies
-  // (offset by a little, so not exact copies) all mark each other in the first pass, and the
-  // cell then costs its length, not its square.
-  let maxRow = 0;
-  for (let c = 0; c < cellCount; c++) if (cellStart[c + 1] - cellStart[c] > maxRow) maxRow = cellStart[c + 1] - cellStart[c];
-  const live = arena.u32(SLOT_OVERLAP_LIVE, maxRow);
-  let exactTests = 0, cellPairs = 0;
-  for (let c = 0; c < cellCount; c++) {
-    const start = cellStart[c], end = cellStart[c + 1];
-    if (end - start < 2) continue;
-    const cu = c % nu, cv = (c - cu) / nu;
-    let liveN = 0;
-    for (let k = start; k < end; k++) live[liveN++] = k;
-    for (let i = start; i < end - 1; i++) {
-      const a = entries[i];
-      const aMinU = box[a * 4], aMinV = box[a * 4 + 1], aMaxU = box[a * 4 + 2], aMaxV = box[a * 4 + 3];
-      const aHereU = range[a * 4] === cu, aHereV = range[a * 4 + 2] === cv;
-      let after = i; // entries at positions <= after have been paired with a
-      if (flags[a] === 0) {
-        for (let j = i + 1; j < end; j++) {
-          const b = entries[j];
-          cellPairs++;
-          // Boxes that only touch cannot overlap with positive area.
-          if (box[b * 4] >= aMaxU || aMinU >= box[b * 4 + 2] || box[b * 4 + 1] >= aMaxV || aMinV >= box[b * 4 + 3]) continue;
-          if (!((aHereU || range[b * 4] === cu) && (aHereV || range[b * 4 + 2] === cv))) continue;
-          exactTests += testPair(a, b, flags, indices, uvs, touching, shell, stacked);
-          if (flags[a] !== 0) { after = j; break; }
-        }
-        if (flags[a] === 0) continue;
-      }
-      // a is marked: only unmarked later entries can still learn something.
-      let w = 0;
-      for (let r = 0; r < liveN; r++) {
-        const pos = live[r];
-        if (pos <= i) continue; // behind a: dropped for good
-        const b = entries[pos];
-        if (flags[b] !== 0) continue; // marked: dropped for good
-        live[w++] = pos;
-        if (pos <= after) continue;
-        cellPairs++;
-        if (box[b * 4] >= aMaxU || aMinU >= box[b * 4 + 2] || box[b * 4 + 1] >= aMaxV || aMinV >= box[b * 4 + 3]) continue;
-        if (!((aHereU || range[b * 4] === cu) && (aHereV || range[b * 4 + 2] === cv))) continue;
-        exactTests += testPair(a, b, flags, indices, uvs, touching, shell, stacked);
-      }
-      liveN = w;
-    }
-  }
+  // starts here" on each axis. Each cell first lists its entries that start in it along u,
+  // along v, and along both (in entry order), so an entry that starts here along u only walks
+  // the later entries starting here along v, one along v only those along u, one along
+  // neither those along both, and one along both all later entries: the pairs that fail the
+  // corner test are never visited. A pair of two triangles already known to overlap
+  // something teaches nothing, so for an already-marked triangle only the cell's
+  // still-unmarked later entries are visited: `live` holds them, compacted as they get
+  // marked. Near-stacked copies (offset by a little, so not exact copies) all mark each other
+  // in the first pass, and the cell then costs its length, not its square. Pairs are tested
+  // in the same order whichever way they are found (cells in order, then by first and by
+  // second entry), so which pairs are skipped, and so every mark, does not depend on how the
+  // candidates are enumerated.
+  const counts = pairsInCells(arena, cellStart, cellCount, entries, box, flags, indices, uvs, touching, shell, stacked);
+  const cellPairs = counts[0], exactTests = counts[1];
   if (stats) { stats.cellsU = nu; stats.cellsV = nv; stats.cellPairs = cellPairs; stats.exactTests = exactTests; }
   if (copies > 0) {
     for (let t = 0; t < triangleCount; t++) {
@@ -276,6 +252,96 @@ export function findUvOverlaps(
     }
   }
   return findingFromMarks(flags, triangleCount);
+}
+
+/** Bits above the triangle number in a cell entry: the triangle's first cell along u (HERE_U) and along v (HERE_V) is this cell. */
+const HERE_U = 0x40000000;
+const HERE_V = 0x80000000;
+/** The triangle number of a cell entry. */
+const TRIANGLE_BITS = 0x3fffffff;
+
+/**
+ * The pair search of findUvOverlaps over the filled cells (see there): tests each candidate
+ * pair once, in cell order, and marks `flags` (and `stacked`). Returns [pairs looked at, exact tests].
+ */
+function pairsInCells(
+  arena: Arena, cellStart: Uint32Array, cellCount: number, entries: Uint32Array, box: Float32Array,
+  flags: Uint8Array, indices: Uint32Array, uvs: Float32Array, touching: number, shell: LazyShells, stacked: Uint8Array | null,
+): [number, number] {
+  let maxRow = 0;
+  for (let c = 0; c < cellCount; c++) if (cellStart[c + 1] - cellStart[c] > maxRow) maxRow = cellStart[c + 1] - cellStart[c];
+  const live = arena.u32(SLOT_OVERLAP_LIVE, maxRow);
+  // Positions of the cell's entries that start here along u, along v, and along both.
+  const startsU = arena.u32(SLOT_OVERLAP_STARTS_U, maxRow);
+  const startsV = arena.u32(SLOT_OVERLAP_STARTS_V, maxRow);
+  const startsBoth = arena.u32(SLOT_OVERLAP_STARTS_BOTH, maxRow);
+  let exactTests = 0, cellPairs = 0;
+  for (let c = 0; c < cellCount; c++) {
+    const start = cellStart[c], end = cellStart[c + 1];
+    if (end - start < 2) continue;
+    let nU = 0, nV = 0, nBoth = 0;
+    for (let i = start; i < end; i++) {
+      const e = entries[i];
+      if (e & HERE_U) startsU[nU++] = i;
+      if (e >= HERE_V) { startsV[nV++] = i; if (e & HERE_U) startsBoth[nBoth++] = i; }
+    }
+    let liveN = -1; // live is made at the first marked entry (nothing is compacted before)
+    // First places in startsU / startsV / startsBoth past the current entry.
+    let pU = 0, pV = 0, pBoth = 0;
+    for (let i = start; i < end - 1; i++) {
+      if (pU < nU && startsU[pU] === i) pU++;
+      if (pV < nV && startsV[pV] === i) pV++;
+      if (pBoth < nBoth && startsBoth[pBoth] === i) pBoth++;
+      const ea = entries[i];
+      const a = ea & TRIANGLE_BITS;
+      const aHereU = (ea & HERE_U) !== 0, aHereV = ea >= HERE_V;
+      const aMinU = box[a * 4], aMinV = box[a * 4 + 1], aMaxU = box[a * 4 + 2], aMaxV = box[a * 4 + 3];
+      let after = i; // entries at positions <= after have been paired with a
+      if (flags[a] === 0) {
+        if (aHereU && aHereV) {
+          for (let j = i + 1; j < end; j++) {
+            cellPairs++;
+            const b = entries[j] & TRIANGLE_BITS;
+            // Boxes that only touch cannot overlap with positive area.
+            if (box[b * 4] >= aMaxU || aMinU >= box[b * 4 + 2] || box[b * 4 + 1] >= aMaxV || aMinV >= box[b * 4 + 3]) continue;
+            exactTests += testPair(a, b, flags, indices, uvs, touching, shell, stacked);
+            if (flags[a] !== 0) { after = j; break; }
+          }
+        } else {
+          // The later entries that start here along the axes a does not start on.
+          const list = aHereU ? startsV : aHereV ? startsU : startsBoth;
+          const listEnd = aHereU ? nV : aHereV ? nU : nBoth;
+          for (let p = aHereU ? pV : aHereV ? pU : pBoth; p < listEnd; p++) {
+            const j = list[p];
+            cellPairs++;
+            const b = entries[j] & TRIANGLE_BITS;
+            if (box[b * 4] >= aMaxU || aMinU >= box[b * 4 + 2] || box[b * 4 + 1] >= aMaxV || aMinV >= box[b * 4 + 3]) continue;
+            exactTests += testPair(a, b, flags, indices, uvs, touching, shell, stacked);
+            if (flags[a] !== 0) { after = j; break; }
+          }
+        }
+        if (flags[a] === 0) continue;
+      }
+      // a is marked: only unmarked later entries can still learn something.
+      if (liveN < 0) { liveN = 0; for (let q = start; q < end; q++) live[liveN++] = q; }
+      let w = 0;
+      for (let r = 0; r < liveN; r++) {
+        const j = live[r];
+        if (j <= i) continue; // behind a: dropped for good
+        const eb = entries[j];
+        const b = eb & TRIANGLE_BITS;
+        if (flags[b] !== 0) continue; // marked: dropped for good
+        live[w++] = j;
+        if (j <= after) continue;
+        cellPairs++;
+        if (box[b * 4] >= aMaxU || aMinU >= box[b * 4 + 2] || box[b * 4 + 1] >= aMaxV || aMinV >= box[b * 4 + 3]) continue;
+        if (!((aHereU || (eb & HERE_U) !== 0) && (aHereV || eb >= HERE_V))) continue;
+        exactTests += testPair(a, b, flags, indices, uvs, touching, shell, stacked);
+      }
+      liveN = w;
+    }
+  }
+  return [cellPairs, exactTests];
 }
 
 /** What findUvOverlaps may also do and know besides partial overlaps. */
@@ -464,20 +530,23 @@ function stackedClasses(arena: Arena, indices: Uint32Array, uvs: Float32Array, u
   const bucketStart = new Uint32Array((1 << COPY_BUCKET_BITS) + 1);
   const shift = 32 - COPY_BUCKET_BITS;
   const p = new Float64Array(6), q = new Float64Array(6);
-  const bits = new Float32Array(1), word = new Uint32Array(bits.buffer);
+  // Per vertex a hash of its UV bits (-0 as 0), per triangle a mix of the sum of its three
+  // vertices' hashes: the same three points give the same hash in any order.
+  const vertexCount = uvs.length >> 1;
+  const pointHash = arena.u32(SLOT_OVERLAP_POINT_HASH, vertexCount);
+  const words = new Uint32Array(uvs.buffer, uvs.byteOffset, vertexCount * 2);
+  for (let v = 0; v < vertexCount; v++) {
+    let x = words[v * 2], y = words[v * 2 + 1];
+    if (x === 0x80000000) x = 0; // -0 hashes as 0
+    if (y === 0x80000000) y = 0;
+    let h = Math.imul(x ^ 0x811c9dc5, 0x9e3779b1);
+    h = Math.imul(h ^ (h >>> 15) ^ y, 0x85ebca6b);
+    h = Math.imul(h ^ (h >>> 13), 0xc2b2ae35);
+    pointHash[v] = h ^ (h >>> 16);
+  }
   for (let t = 0; t < triangleCount; t++) {
     if (!usable[t]) continue;
-    sortedPoints(p, indices, uvs, t);
-    let h = 0x811c9dc5;
-    for (let k = 0; k < 6; k++) {
-      bits[0] = p[k] === 0 ? 0 : p[k]; // -0 hashes as 0
-      h = Math.imul(h ^ word[0], 0x9e3779b1);
-      h ^= h >>> 15;
-    }
-    // Final mix, so every bit (the bucket's top bits, the table's low bits) depends on every point.
-    h = Math.imul(h ^ (h >>> 16), 0x85ebca6b);
-    h = Math.imul(h ^ (h >>> 13), 0xc2b2ae35);
-    h = (h ^ (h >>> 16)) >>> 0;
+    let h = (pointHash[indices[t * 3]] + pointHash[indices[t * 3 + 1]] + pointHash[indices[t * 3 + 2]]) | 0;
     hashOf[t] = h;
     bucketStart[(h >>> shift) + 1]++;
   }
@@ -612,6 +681,7 @@ function selectRank(a: Float64Array, k: number): number {
 
 /** Grid cell of coordinate x along one axis: floor((x - origin) * inv), clamped to [0, n - 1]. */
 function cellOf(x: number, origin: number, inv: number, n: number): number {
-  const c = Math.floor((x - origin) * inv);
-  return c < 0 ? 0 : c >= n ? n - 1 : c;
+  const f = (x - origin) * inv;
+  // floor(f) < 0 exactly when f < 0 and floor(f) >= n exactly when f >= n; between, f | 0 is floor(f) (n <= 2^22).
+  return f < 0 ? 0 : f >= n ? n - 1 : f | 0;
 }

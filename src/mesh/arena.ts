@@ -43,7 +43,7 @@ export const SLOT_LENGYEL_SUMS = 4;
 export const SLOT_LENGYEL_UNDEFINED = 5;
 /**
  * Slots of the UV-overlap check. It runs after the solve, so it reuses the solve's slots, the
- * largest arrays on the largest slots (the cell ranges on the corner contributions, the boxes on
+ * largest arrays on the largest slots (the cell entries' boxes on the corner contributions, the boxes on
  * the welded corners, the cell entries on the edge rows).
  */
 export const SLOT_OVERLAP_RANGE = 20;
@@ -67,6 +67,12 @@ export const SLOT_SHELL_USABLE = 12;
 export const SLOT_OVERLAP_LIVE = 17;
 export const SLOT_OVERLAP_FLAGS = 18;
 export const SLOT_STACKED = 19;
+/** The UV-overlap check, per cell (one at a time): which of its entries start in it along u, along v, along both. */
+export const SLOT_OVERLAP_STARTS_U = 25;
+export const SLOT_OVERLAP_STARTS_V = 26;
+export const SLOT_OVERLAP_STARTS_BOTH = 27;
+/** The UV-overlap check's exact-copy search: per vertex a hash of its UV point. */
+export const SLOT_OVERLAP_POINT_HASH = 28;
 
 /** Smallest block a slot grows to, in bytes. */
 const MIN_BLOCK = 1 << 16;
