@@ -4,7 +4,8 @@
  * so the face normal from the winding is cross(p1 - p0, p2 - p0).
  */
 import { assert } from '../mesh/errors.js';
-import { UNIT_LENGTH_TOLERANCE, ZERO_LENGTH } from '../mesh/tolerances.js';
+import { GEOMETRY_DEGENERATE_RELATIVE, UNIT_LENGTH_TOLERANCE, ZERO_LENGTH } from '../mesh/tolerances.js';
+import { MAX_LISTED, type Finding } from './finding.js';
 
 /** What findBadNormals found, in vertices. */
 export interface BadNormals {
@@ -52,32 +53,47 @@ export function findBadNormals(
   assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
   assert(positions.length >= vertexCount * 3, 'positions must hold 3 floats per vertex');
   assert(normals.length >= vertexCount * 3, 'normals must hold 3 floats per vertex');
-  // Per vertex: corners with a usable face normal, and those among them facing away.
-  const votes = new Uint32Array(vertexCount);
-  const away = new Uint32Array(vertexCount);
+  const balance = new Int32Array(vertexCount);
   for (let t = 0; t < triangleCount; t++) {
     const i0 = indices[t * 3], i1 = indices[t * 3 + 1], i2 = indices[t * 3 + 2];
     const x0 = positions[i0 * 3], y0 = positions[i0 * 3 + 1], z0 = positions[i0 * 3 + 2];
     const e1x = positions[i1 * 3] - x0, e1y = positions[i1 * 3 + 1] - y0, e1z = positions[i1 * 3 + 2] - z0;
     const e2x = positions[i2 * 3] - x0, e2y = positions[i2 * 3 + 1] - y0, e2z = positions[i2 * 3 + 2] - z0;
-    const fx = e1y * e2z - e1z * e2y, fy = e1z * e2x - e1x * e2z, fz = e1x * e2y - e1y * e2x;
-    const f2 = fx * fx + fy * fy + fz * fz;
-    // Zero, NaN or infinite face normal: no direction to vote with.
-    if (!(f2 > 0) || f2 === Infinity) continue;
-    // Quantized positions: rounding each corner by up to sqrt(3) half steps moves the cross
-    // product by up to 2 * sqrt(3) * h * (|e1| + |e2|) (first order); a face normal shorter than
-    // that has no reliable direction and does not vote.
-    if (positionHalfStep > 0) {
-      const bound = 2 * Math.sqrt(3) * positionHalfStep * (Math.sqrt(e1x * e1x + e1y * e1y + e1z * e1z) + Math.sqrt(e2x * e2x + e2y * e2y + e2z * e2z));
-      if (f2 <= bound * bound) continue;
-    }
-    for (let k = 0; k < 3; k++) {
-      const v = indices[t * 3 + k];
-      votes[v]++;
-      const d = normals[v * 3] * fx + normals[v * 3 + 1] * fy + normals[v * 3 + 2] * fz;
-      if (d < 0) away[v]++;
-    }
+    voteFace(balance, indices, normals, t, e1x, e1y, e1z, e2x, e2y, e2z, positionHalfStep);
   }
+  return judgeNormals(balance, normals, vertexCount, unitTolerance, marks);
+}
+
+/**
+ * The flipped vote of triangle t (see findBadNormals), given its edges e1 = p1 - p0 and
+ * e2 = p2 - p0: adds 1 to balance[v] for each corner vertex v whose normal faces away from
+ * the face normal cross(e1, e2), and -1 for each that does not (away * 2 > votes exactly when
+ * the balance is positive); nothing when the face normal has no reliable direction.
+ */
+function voteFace(
+  balance: Int32Array, indices: Uint32Array, normals: Float32Array, t: number,
+  e1x: number, e1y: number, e1z: number, e2x: number, e2y: number, e2z: number, positionHalfStep: number,
+): void {
+  const fx = e1y * e2z - e1z * e2y, fy = e1z * e2x - e1x * e2z, fz = e1x * e2y - e1y * e2x;
+  const f2 = fx * fx + fy * fy + fz * fz;
+  // Zero, NaN or infinite face normal: no direction to vote with.
+  if (!(f2 > 0) || f2 === Infinity) return;
+  // Quantized positions: rounding each corner by up to sqrt(3) half steps moves the cross
+  // product by up to 2 * sqrt(3) * h * (|e1| + |e2|) (first order); a face normal shorter than
+  // that has no reliable direction and does not vote.
+  if (positionHalfStep > 0) {
+    const bound = 2 * Math.sqrt(3) * positionHalfStep * (Math.sqrt(e1x * e1x + e1y * e1y + e1z * e1z) + Math.sqrt(e2x * e2x + e2y * e2y + e2z * e2z));
+    if (f2 <= bound * bound) return;
+  }
+  for (let k = 0; k < 3; k++) {
+    const v = indices[t * 3 + k];
+    const d = normals[v * 3] * fx + normals[v * 3 + 1] * fy + normals[v * 3 + 2] * fz;
+    balance[v] += d < 0 ? 1 : -1;
+  }
+}
+
+/** The per-vertex verdicts of findBadNormals from the flipped-vote balance (see voteFace). */
+function judgeNormals(balance: Int32Array, normals: Float32Array, vertexCount: number, unitTolerance: number, marks: Uint8Array | null): BadNormals {
   let count = 0, zero = 0, nonUnit = 0, flipped = 0;
   for (let v = 0; v < vertexCount; v++) {
     const nx = normals[v * 3], ny = normals[v * 3 + 1], nz = normals[v * 3 + 2];
@@ -94,7 +110,7 @@ export function findBadNormals(
       nonUnit++;
       bad = true;
     }
-    if (len - len === 0 && away[v] * 2 > votes[v]) {
+    if (len - len === 0 && balance[v] > 0) {
       flipped++;
       bad = true;
     }
@@ -104,4 +120,57 @@ export function findBadNormals(
     }
   }
   return { count, zero, nonUnit, flipped };
+}
+
+/** What findDegenerateGeometryAndBadNormals found. */
+export interface GeometryFindings {
+  degenerate: Finding;
+  badNormals: BadNormals;
+}
+
+/**
+ * findDegenerateGeometry (with its default epsilon, GEOMETRY_DEGENERATE_RELATIVE) and
+ * findBadNormals in one pass over the triangles, which reads each triangle's corners once for
+ * both: the same results, marks and preconditions as the two calls.
+ */
+export function findDegenerateGeometryAndBadNormals(
+  indices: Uint32Array,
+  positions: Float32Array,
+  normals: Float32Array,
+  triangleCount: number,
+  vertexCount: number,
+  unitTolerance: number = UNIT_LENGTH_TOLERANCE,
+  positionHalfStep = 0,
+  degenerateMarks: Uint8Array | null = null,
+  badNormalMarks: Uint8Array | null = null,
+): GeometryFindings {
+  assert(!badNormalMarks || badNormalMarks.length >= vertexCount, 'marks must hold one entry per vertex');
+  assert(!degenerateMarks || degenerateMarks.length >= triangleCount, 'marks must hold one entry per triangle');
+  assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
+  assert(positions.length >= vertexCount * 3, 'positions must hold 3 floats per vertex');
+  assert(normals.length >= vertexCount * 3, 'normals must hold 3 floats per vertex');
+  const epsilon = GEOMETRY_DEGENERATE_RELATIVE;
+  const balance = new Int32Array(vertexCount);
+  const triangles: number[] = [];
+  let count = 0;
+  for (let t = 0; t < triangleCount; t++) {
+    const i0 = indices[t * 3], i1 = indices[t * 3 + 1], i2 = indices[t * 3 + 2];
+    const x0 = positions[i0 * 3], y0 = positions[i0 * 3 + 1], z0 = positions[i0 * 3 + 2];
+    const e1x = positions[i1 * 3] - x0, e1y = positions[i1 * 3 + 1] - y0, e1z = positions[i1 * 3 + 2] - z0;
+    const e2x = positions[i2 * 3] - x0, e2y = positions[i2 * 3 + 1] - y0, e2z = positions[i2 * 3 + 2] - z0;
+    voteFace(balance, indices, normals, t, e1x, e1y, e1z, e2x, e2y, e2z, positionHalfStep);
+    // The test of findDegenerateGeometry.
+    let degenerate = i0 === i1 || i0 === i2 || i1 === i2;
+    if (!degenerate) {
+      const cx = e1y * e2z - e1z * e2y, cy = e1z * e2x - e1x * e2z, cz = e1x * e2y - e1y * e2x;
+      const cross = Math.sqrt(cx * cx + cy * cy + cz * cz);
+      const scale = e1x * e1x + e1y * e1y + e1z * e1z + e2x * e2x + e2y * e2y + e2z * e2z;
+      degenerate = !(cross > epsilon * scale);
+    }
+    if (degenerateMarks) degenerateMarks[t] = degenerate ? 1 : 0;
+    if (!degenerate) continue;
+    if (count < MAX_LISTED) triangles.push(t);
+    count++;
+  }
+  return { degenerate: { count, triangles }, badNormals: judgeNormals(balance, normals, vertexCount, unitTolerance, badNormalMarks) };
 }

@@ -16,7 +16,7 @@ export {
 export { findDegenerateUvTriangles } from './degenerateUv.js';
 export { findDegenerateGeometry } from './degenerateGeometry.js';
 export { countInvalidVertices, markInvalidVertices, markNonFiniteVertices } from './invalidValues.js';
-export { findBadNormals, type BadNormals } from './badNormals.js';
+export { findBadNormals, findDegenerateGeometryAndBadNormals, type BadNormals, type GeometryFindings } from './badNormals.js';
 export { countMirroredTriangles, countMirrorSeamSplits, markMirroredTriangles } from './mirrored.js';
 export { findUvOverlaps, trianglesOverlap, type UvOverlapStats } from './uvOverlap.js';
 export {

@@ -19,6 +19,15 @@ export function markNonFiniteVertices(
 ): number {
   assert(marks.length >= vertexCount, 'marks must hold one entry per vertex');
   assert(itemSize >= 1 && values.length >= vertexCount * itemSize, 'values must hold itemSize floats per vertex');
+  // One pass without branches first: x * 0 is +-0 for finite x and NaN for NaN and
+  // +-Infinity, so the sums stay 0 exactly when every value is finite (the usual case).
+  const valueCount = vertexCount * itemSize;
+  let s0 = 0, s1 = 0, s2 = 0, s3 = 0, i = 0;
+  for (; i + 3 < valueCount; i += 4) {
+    s0 += values[i] * 0; s1 += values[i + 1] * 0; s2 += values[i + 2] * 0; s3 += values[i + 3] * 0;
+  }
+  for (; i < valueCount; i++) s0 += values[i] * 0;
+  if (s0 + s1 + s2 + s3 === 0) return 0;
   let bad = 0;
   for (let v = 0; v < vertexCount; v++) {
     const o = v * itemSize;

@@ -3,8 +3,8 @@
  */
 import {
   compareStoredTangents,
-  findBadNormals,
   findDegenerateGeometry,
+  findDegenerateGeometryAndBadNormals,
   findDegenerateUvTriangles,
   findUvOverlaps,
   isStoredTangentSetValid,
@@ -100,15 +100,20 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
     return { count: f.count, vertices: listed, positions: vertexPositions(f.vertices, positions), triangleCount: f.triangleCount, triangles: f.triangles, ...where };
   };
   report.degenerateUv = located(findDegenerateUvTriangles(indices, uvs, triangleCount, input.uvEpsilon, marks ? marks.degenerateUv : null));
-  report.degenerateGeometry = located(findDegenerateGeometry(indices, positions, triangleCount, undefined, marks?.degenerateGeometry ?? null));
+  const unitTolerance = input.normalUnitTolerance ?? UNIT_LENGTH_TOLERANCE;
+  const validity = input.tangentValidity ?? FLOAT_TANGENT_VALIDITY;
+  const badNormal = new Uint8Array(vertexCount);
+  // With normals, degenerate geometry and bad normals come from one pass over the triangles.
+  const degenerateGeometry = normals
+    ? findDegenerateGeometryAndBadNormals(
+      indices, positions, normals, triangleCount, vertexCount, unitTolerance, input.positionHalfStep ?? 0, marks?.degenerateGeometry ?? null, badNormal,
+    ).degenerate
+    : findDegenerateGeometry(indices, positions, triangleCount, undefined, marks?.degenerateGeometry ?? null);
+  report.degenerateGeometry = located(degenerateGeometry);
   const invalid = new Uint8Array(vertexCount);
   markInvalidVertices(invalid, vertexCount, positions, normals, uvs, storedTangents);
   report.invalidValues = vertexFinding(invalid);
   if (marks?.invalidValues) trianglesOfVertices(marks.invalidValues, indices, invalid, triangleCount);
-  const unitTolerance = input.normalUnitTolerance ?? UNIT_LENGTH_TOLERANCE;
-  const validity = input.tangentValidity ?? FLOAT_TANGENT_VALIDITY;
-  const badNormal = new Uint8Array(vertexCount);
-  if (normals) findBadNormals(indices, positions, normals, triangleCount, vertexCount, unitTolerance, input.positionHalfStep ?? 0, badNormal);
   report.badNormals = vertexFinding(badNormal);
   if (marks?.badNormals) trianglesOfVertices(marks.badNormals, indices, badNormal, triangleCount);
   const stacked = threadArena().u8(SLOT_STACKED, triangleCount);
