@@ -93,10 +93,12 @@ export function findUvOverlaps(
   layout: UvLayoutOptions = {},
 ): Finding {
   const stacked = layout.stacked ?? null;
+  const degenerate = layout.degenerate ?? null;
   const touching = layout.touching ?? UV_OVERLAP_ABSOLUTE;
   assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
   assert(!marks || marks.length >= triangleCount, 'marks must hold one entry per triangle');
   assert(!stacked || stacked.length >= triangleCount, 'stacked must hold one entry per triangle');
+  assert(!degenerate || degenerate.length >= triangleCount, 'degenerate must hold one entry per triangle');
   assert(triangleCount <= TRIANGLE_BITS + 1, 'at most 2^30 triangles');
   const arena = threadArena();
   const flags = marks ?? arena.u8(SLOT_OVERLAP_FLAGS, triangleCount);
@@ -105,15 +107,39 @@ export function findUvOverlaps(
   // Per-triangle UV bounding boxes (exact: min/max of float32 values) and usability.
   const box = arena.f32(SLOT_OVERLAP_BOX, triangleCount * 4);
   const usable = arena.u8(SLOT_OVERLAP_USABLE, triangleCount, 0);
+  // Per vertex a hash of its UV bits (-0 as 0); per usable triangle a mix of the sum of its
+  // three vertices' hashes, for the exact-copy search: the same three points give the same
+  // hash in any order.
+  const vertexCount = uvs.length >> 1;
+  const pointHash = arena.u32(SLOT_OVERLAP_POINT_HASH, vertexCount);
+  const words = new Uint32Array(uvs.buffer, uvs.byteOffset, vertexCount * 2);
+  for (let v = 0; v < vertexCount; v++) {
+    let x = words[v * 2], y = words[v * 2 + 1];
+    if (x === 0x80000000) x = 0;
+    if (y === 0x80000000) y = 0;
+    let h = Math.imul(x ^ 0x811c9dc5, 0x9e3779b1);
+    h = Math.imul(h ^ (h >>> 15) ^ y, 0x85ebca6b);
+    h = Math.imul(h ^ (h >>> 13), 0xc2b2ae35);
+    pointHash[v] = h ^ (h >>> 16);
+  }
+  const hashOf = arena.u32(SLOT_OVERLAP_HASH, triangleCount);
   let usableCount = 0;
   for (let t = 0; t < triangleCount; t++) {
-    const i0 = indices[t * 3] * 2, i1 = indices[t * 3 + 1] * 2, i2 = indices[t * 3 + 2] * 2;
+    const j0 = indices[t * 3], j1 = indices[t * 3 + 1], j2 = indices[t * 3 + 2];
+    const i0 = j0 * 2, i1 = j1 * 2, i2 = j2 * 2;
     const u0 = uvs[i0], v0 = uvs[i0 + 1], u1 = uvs[i1], v1 = uvs[i1 + 1], u2 = uvs[i2], v2 = uvs[i2 + 1];
+    if (degenerate) degenerate[t] = 1;
     // x - x is 0 for finite x, NaN for NaN and +-Infinity.
     if (u0 - u0 !== 0 || v0 - v0 !== 0 || u1 - u1 !== 0 || v1 - v1 !== 0 || u2 - u2 !== 0 || v2 - v2 !== 0) continue;
     const du1 = u1 - u0, dv1 = v1 - v0, du2 = u2 - u0, dv2 = v2 - v0;
     const det = du1 * dv2 - du2 * dv1;
     if (!(Math.abs(det) > UV_DEGENERATE_RELATIVE * (du1 * du1 + dv1 * dv1 + du2 * du2 + dv2 * dv2))) continue;
+    if (degenerate) degenerate[t] = 0;
+    // Final mix, so every bit (the buckets' top bits, the tables' low bits) depends on every point.
+    let h = (pointHash[j0] + pointHash[j1] + pointHash[j2]) | 0;
+    h = Math.imul(h ^ (h >>> 16), 0x85ebca6b);
+    h = Math.imul(h ^ (h >>> 13), 0xc2b2ae35);
+    hashOf[t] = h ^ (h >>> 16);
     let bu0 = u0 < u1 ? u0 : u1, bu1 = u0 < u1 ? u1 : u0;
     if (u2 < bu0) bu0 = u2; else if (u2 > bu1) bu1 = u2;
     let bv0 = v0 < v1 ? v0 : v1, bv1 = v0 < v1 ? v1 : v0;
@@ -126,7 +152,7 @@ export function findUvOverlaps(
   // coincide with an earlier usable triangle's joins that triangle's class and stays out of
   // the grid; pairs within a class are intentional stacking, and every copy takes its class's
   // verdict at the end. This keeps thousands of stacked copies from filling one cell.
-  const classOf = stackedClasses(arena, indices, uvs, usable, triangleCount, usableCount);
+  const classOf = stackedClasses(arena, indices, uvs, usable, hashOf, triangleCount, usableCount);
   // Shells and their keys (UV point hash and area) over the usable triangles, copies included:
   // made the first time an overlapping pair needs them (a layout without overlaps never does).
   const shell: LazyShells = { keys: null, arena, indices, uvs, usable, classOf, triangleCount };
@@ -350,6 +376,12 @@ export interface UvLayoutOptions {
   stacked?: Uint8Array | null;
   /** Absolute touching tolerance in UV units (default UV_OVERLAP_ABSOLUTE). */
   touching?: number;
+  /**
+   * Receives 1 per triangle that takes no part for having no UV area (NaN or infinite UVs,
+   * or degenerate by UV_DEGENERATE_RELATIVE), 0 otherwise (triangleCount entries): the marks
+   * findDegenerateUvTriangles gives with its default epsilon.
+   */
+  degenerate?: Uint8Array | null;
 }
 
 /** The shell keys of one findUvOverlaps call, made on first use (shellsOf). */
@@ -523,33 +555,15 @@ const COPY_BUCKET_BITS = 8;
  * table over the whole mesh would cost a cache and TLB miss per triangle. Equal points have
  * equal hashes, so they meet in one bucket, in triangle order: the first is the lowest index.
  */
-function stackedClasses(arena: Arena, indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, triangleCount: number, usableCount: number): Uint32Array {
+function stackedClasses(
+  arena: Arena, indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, hashOf: Uint32Array, triangleCount: number, usableCount: number,
+): Uint32Array {
   const classOf = arena.u32(SLOT_OVERLAP_CLASS, triangleCount);
   for (let t = 0; t < triangleCount; t++) classOf[t] = t;
-  const hashOf = arena.u32(SLOT_OVERLAP_HASH, triangleCount);
   const bucketStart = new Uint32Array((1 << COPY_BUCKET_BITS) + 1);
   const shift = 32 - COPY_BUCKET_BITS;
   const p = new Float64Array(6), q = new Float64Array(6);
-  // Per vertex a hash of its UV bits (-0 as 0), per triangle a mix of the sum of its three
-  // vertices' hashes: the same three points give the same hash in any order.
-  const vertexCount = uvs.length >> 1;
-  const pointHash = arena.u32(SLOT_OVERLAP_POINT_HASH, vertexCount);
-  const words = new Uint32Array(uvs.buffer, uvs.byteOffset, vertexCount * 2);
-  for (let v = 0; v < vertexCount; v++) {
-    let x = words[v * 2], y = words[v * 2 + 1];
-    if (x === 0x80000000) x = 0; // -0 hashes as 0
-    if (y === 0x80000000) y = 0;
-    let h = Math.imul(x ^ 0x811c9dc5, 0x9e3779b1);
-    h = Math.imul(h ^ (h >>> 15) ^ y, 0x85ebca6b);
-    h = Math.imul(h ^ (h >>> 13), 0xc2b2ae35);
-    pointHash[v] = h ^ (h >>> 16);
-  }
-  for (let t = 0; t < triangleCount; t++) {
-    if (!usable[t]) continue;
-    let h = (pointHash[indices[t * 3]] + pointHash[indices[t * 3 + 1]] + pointHash[indices[t * 3 + 2]]) | 0;
-    hashOf[t] = h;
-    bucketStart[(h >>> shift) + 1]++;
-  }
+  for (let t = 0; t < triangleCount; t++) if (usable[t]) bucketStart[(hashOf[t] >>> shift) + 1]++;
   let largest = 0;
   for (let k = 0; k < 1 << COPY_BUCKET_BITS; k++) {
     if (bucketStart[k + 1] > largest) largest = bucketStart[k + 1];

@@ -15,8 +15,8 @@ import {
   vertexPositions,
 } from '../diagnose/index.js';
 import { findingFromMarks, type Finding } from '../diagnose/finding.js';
-import { SLOT_STACKED, threadArena } from '../mesh/arena.js';
-import { FLOAT_TANGENT_VALIDITY, UNIT_LENGTH_TOLERANCE, type TangentValidityTolerances } from '../mesh/tolerances.js';
+import { SLOT_DEGENERATE_UV, SLOT_STACKED, threadArena } from '../mesh/arena.js';
+import { FLOAT_TANGENT_VALIDITY, UNIT_LENGTH_TOLERANCE, UV_DEGENERATE_RELATIVE, type TangentValidityTolerances } from '../mesh/tolerances.js';
 import type { PrimitiveReport, TriangleFinding, VertexFindingReport } from '../report/types.js';
 
 /** What the diagnostics read. Arrays are the primitive's decoded input, before any split. */
@@ -99,7 +99,15 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
     const listed = numbers ? f.vertices.map((v) => numbers[v]) : f.vertices;
     return { count: f.count, vertices: listed, positions: vertexPositions(f.vertices, positions), triangleCount: f.triangleCount, triangles: f.triangles, ...where };
   };
-  report.degenerateUv = located(findDegenerateUvTriangles(indices, uvs, triangleCount, input.uvEpsilon, marks ? marks.degenerateUv : null));
+  // The UV-overlap check finds the triangles without UV area as it goes: with the default
+  // epsilon those are the degenerate-UV triangles, so that pass is not made twice.
+  const uvTestShared = input.uvEpsilon === UV_DEGENERATE_RELATIVE;
+  const degenerateUv = uvTestShared ? (marks ? marks.degenerateUv : threadArena().u8(SLOT_DEGENERATE_UV, triangleCount)) : null;
+  const stacked = threadArena().u8(SLOT_STACKED, triangleCount);
+  const uvOverlap = findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null, null, { stacked, touching: input.uvTouching, degenerate: degenerateUv });
+  report.degenerateUv = located(degenerateUv
+    ? findingFromMarks(degenerateUv, triangleCount)
+    : findDegenerateUvTriangles(indices, uvs, triangleCount, input.uvEpsilon, marks ? marks.degenerateUv : null));
   const unitTolerance = input.normalUnitTolerance ?? UNIT_LENGTH_TOLERANCE;
   const validity = input.tangentValidity ?? FLOAT_TANGENT_VALIDITY;
   const badNormal = new Uint8Array(vertexCount);
@@ -116,8 +124,7 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
   if (marks?.invalidValues) trianglesOfVertices(marks.invalidValues, indices, invalid, triangleCount);
   report.badNormals = vertexFinding(badNormal);
   if (marks?.badNormals) trianglesOfVertices(marks.badNormals, indices, badNormal, triangleCount);
-  const stacked = threadArena().u8(SLOT_STACKED, triangleCount);
-  report.uvOverlap = located(findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null, null, { stacked, touching: input.uvTouching }));
+  report.uvOverlap = located(uvOverlap);
   report.stackedShells = findingFromMarks(stacked, triangleCount);
   let valid = false;
   if (marks?.tangentMismatch) marks.tangentMismatch.fill(0, 0, triangleCount);

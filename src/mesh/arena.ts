@@ -73,6 +73,8 @@ export const SLOT_OVERLAP_STARTS_V = 26;
 export const SLOT_OVERLAP_STARTS_BOTH = 27;
 /** The UV-overlap check's exact-copy search: per vertex a hash of its UV point. */
 export const SLOT_OVERLAP_POINT_HASH = 28;
+/** diagnosePrimitive: per triangle whether it has no UV area (filled by the UV-overlap check), when no picture marks are wanted. */
+export const SLOT_DEGENERATE_UV = 29;
 
 /** Smallest block a slot grows to, in bytes. */
 const MIN_BLOCK = 1 << 16;
