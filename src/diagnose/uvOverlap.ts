@@ -38,7 +38,10 @@ export interface UvOverlapStats {
   cellsV: number;
   /** Triangles entered into the grid (finite, non-degenerate UVs). */
   gridTriangles: number;
-  /** Pairs of triangles the broad phase looked at in the grid's cells (its own work; pairs of two marked triangles are not visited). */
+  /**
+   * Pairs of triangles the broad phase looked at in the grid's cells (its own work; pairs of two marked triangles, and
+   * pairs that belong to another cell, are not visited).
+   */
   cellPairs: number;
   /** Candidate pairs given to the exact triangle-triangle test. */
   exactTests: number;
@@ -54,7 +57,7 @@ export interface UvOverlapStats {
  * - Mirroring onto themselves is not overlap: a pair whose two UV triangles coincide exactly
  *   (the same three UV points, bit for bit, in any order) is intentional stacking, as when
  *   the left and right halves of a symmetric model share one set of UVs, and is skipped
- *   (and marked stacked). Exact copies are grouped first (a hash of the sorted UV points), so only one triangle of
+ *   (and marked stacked). Exact copies are grouped first (a hash of the three UV points, in any order), so only one triangle of
  *   each group enters the grid and thousands of stacked copies cost linear time; every copy
  *   takes its group's verdict.
  * - Degenerate-UV triangles (UV_DEGENERATE_RELATIVE) and triangles with a NaN or infinite UV
@@ -80,8 +83,8 @@ export interface UvOverlapStats {
  * to 1 for each overlapping triangle and 0 otherwise; when `layout.stacked` is given (same length) it
  * is set to 1 for each triangle lying exactly on another (an exact copy, or a stacked shell's
  * triangle overlapping its twin) and 0 otherwise; when `stats` is given it receives the
- * broad-phase figures. Memory: about 18 bytes per triangle plus the cell lists (4 bytes per cell and per
- * cell entry).
+ * broad-phase figures. Memory: about 34 bytes per triangle and 4 per vertex plus the cell lists (4 bytes per
+ * cell and per cell entry).
  * Preconditions: indices hold 3 * triangleCount entries, each < uvs.length / 2.
  */
 export function findUvOverlaps(
@@ -152,16 +155,17 @@ export function findUvOverlaps(
   // coincide with an earlier usable triangle's joins that triangle's class and stays out of
   // the grid; pairs within a class are intentional stacking, and every copy takes its class's
   // verdict at the end. This keeps thousands of stacked copies from filling one cell.
-  const classOf = stackedClasses(arena, indices, uvs, usable, hashOf, triangleCount, usableCount);
+  const classOf = arena.u32(SLOT_OVERLAP_CLASS, triangleCount);
+  const copies = stackedClasses(classOf, arena, indices, uvs, usable, hashOf, triangleCount, usableCount);
   // Shells and their keys (UV point hash and area) over the usable triangles, copies included:
   // made the first time an overlapping pair needs them (a layout without overlaps never does).
   const shell: LazyShells = { keys: null, arena, indices, uvs, usable, classOf, triangleCount };
-  let copies = 0;
-  for (let t = 0; t < triangleCount; t++) {
-    if (usable[t] && classOf[t] !== t) {
-      usable[t] = 0;
-      copies++;
-      if (stacked) { stacked[t] = 1; stacked[classOf[t]] = 1; }
+  if (copies > 0) {
+    for (let t = 0; t < triangleCount; t++) {
+      if (usable[t] && classOf[t] !== t) {
+        usable[t] = 0;
+        if (stacked) { stacked[t] = 1; stacked[classOf[t]] = 1; }
+      }
     }
   }
   usableCount -= copies;
@@ -547,19 +551,22 @@ function sortedPoints(out: Float64Array, indices: Uint32Array, uvs: Float32Array
 const COPY_BUCKET_BITS = 8;
 
 /**
- * For each usable triangle, the first usable triangle with the same three UV points (in any
- * order, compared as numbers so -0 equals 0); itself when it is the first. Other entries are
- * the triangle itself. Hash on the sorted points; triangles are first sorted into 256
+ * Writes into classOf, for each usable triangle, the first usable triangle with the same three
+ * UV points (in any order, compared as numbers so -0 equals 0); itself when it is the first.
+ * Other entries are the triangle itself. Returns the number of copies (usable triangles whose
+ * class is an earlier triangle). hashOf holds each usable triangle's hash of its three points
+ * (equal for equal points in any order, made in findUvOverlaps' box pass); triangles are first sorted into 256
  * buckets by the hash's top bits (a counting sort that keeps triangle order), then each
  * bucket is searched with its own small open-addressing table, which stays in cache where one
  * table over the whole mesh would cost a cache and TLB miss per triangle. Equal points have
  * equal hashes, so they meet in one bucket, in triangle order: the first is the lowest index.
  */
 function stackedClasses(
-  arena: Arena, indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, hashOf: Uint32Array, triangleCount: number, usableCount: number,
-): Uint32Array {
-  const classOf = arena.u32(SLOT_OVERLAP_CLASS, triangleCount);
+  classOf: Uint32Array, arena: Arena, indices: Uint32Array, uvs: Float32Array, usable: Uint8Array, hashOf: Uint32Array,
+  triangleCount: number, usableCount: number,
+): number {
   for (let t = 0; t < triangleCount; t++) classOf[t] = t;
+  let copies = 0;
   const bucketStart = new Uint32Array((1 << COPY_BUCKET_BITS) + 1);
   const shift = 32 - COPY_BUCKET_BITS;
   const p = new Float64Array(6), q = new Float64Array(6);
@@ -600,6 +607,7 @@ function stackedClasses(
           sortedPoints(q, indices, uvs, r);
           if (p[0] === q[0] && p[1] === q[1] && p[2] === q[2] && p[3] === q[3] && p[4] === q[4] && p[5] === q[5]) {
             classOf[t] = r;
+            copies++;
             break;
           }
         }
@@ -607,7 +615,7 @@ function stackedClasses(
       }
     }
   }
-  return classOf;
+  return copies;
 }
 
 /**
