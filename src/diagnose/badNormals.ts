@@ -59,19 +59,19 @@ export function findBadNormals(
     const x0 = positions[i0 * 3], y0 = positions[i0 * 3 + 1], z0 = positions[i0 * 3 + 2];
     const e1x = positions[i1 * 3] - x0, e1y = positions[i1 * 3 + 1] - y0, e1z = positions[i1 * 3 + 2] - z0;
     const e2x = positions[i2 * 3] - x0, e2y = positions[i2 * 3 + 1] - y0, e2z = positions[i2 * 3 + 2] - z0;
-    voteFace(balance, indices, normals, t, e1x, e1y, e1z, e2x, e2y, e2z, positionHalfStep);
+    voteFace(balance, normals, i0, i1, i2, e1x, e1y, e1z, e2x, e2y, e2z, positionHalfStep);
   }
   return judgeNormals(balance, normals, vertexCount, unitTolerance, marks);
 }
 
 /**
- * The flipped vote of triangle t (see findBadNormals), given its edges e1 = p1 - p0 and
- * e2 = p2 - p0: adds 1 to balance[v] for each corner vertex v whose normal faces away from
+ * The flipped vote of the triangle with corner vertices i0, i1, i2 (see findBadNormals), given
+ * its edges e1 = p1 - p0 and e2 = p2 - p0: adds 1 to balance[v] for each corner vertex v whose normal faces away from
  * the face normal cross(e1, e2), and -1 for each that does not (away * 2 > votes exactly when
  * the balance is positive); nothing when the face normal has no reliable direction.
  */
 function voteFace(
-  balance: Int32Array, indices: Uint32Array, normals: Float32Array, t: number,
+  balance: Int32Array, normals: Float32Array, i0: number, i1: number, i2: number,
   e1x: number, e1y: number, e1z: number, e2x: number, e2y: number, e2z: number, positionHalfStep: number,
 ): void {
   const fx = e1y * e2z - e1z * e2y, fy = e1z * e2x - e1x * e2z, fz = e1x * e2y - e1y * e2x;
@@ -85,11 +85,12 @@ function voteFace(
     const bound = 2 * Math.sqrt(3) * positionHalfStep * (Math.sqrt(e1x * e1x + e1y * e1y + e1z * e1z) + Math.sqrt(e2x * e2x + e2y * e2y + e2z * e2z));
     if (f2 <= bound * bound) return;
   }
-  for (let k = 0; k < 3; k++) {
-    const v = indices[t * 3 + k];
-    const d = normals[v * 3] * fx + normals[v * 3 + 1] * fy + normals[v * 3 + 2] * fz;
-    balance[v] += d < 0 ? 1 : -1;
-  }
+  const d0 = normals[i0 * 3] * fx + normals[i0 * 3 + 1] * fy + normals[i0 * 3 + 2] * fz;
+  const d1 = normals[i1 * 3] * fx + normals[i1 * 3 + 1] * fy + normals[i1 * 3 + 2] * fz;
+  const d2 = normals[i2 * 3] * fx + normals[i2 * 3 + 1] * fy + normals[i2 * 3 + 2] * fz;
+  balance[i0] += d0 < 0 ? 1 : -1;
+  balance[i1] += d1 < 0 ? 1 : -1;
+  balance[i2] += d2 < 0 ? 1 : -1;
 }
 
 /** The per-vertex verdicts of findBadNormals from the flipped-vote balance (see voteFace). */
@@ -158,7 +159,7 @@ export function findDegenerateGeometryAndBadNormals(
     const x0 = positions[i0 * 3], y0 = positions[i0 * 3 + 1], z0 = positions[i0 * 3 + 2];
     const e1x = positions[i1 * 3] - x0, e1y = positions[i1 * 3 + 1] - y0, e1z = positions[i1 * 3 + 2] - z0;
     const e2x = positions[i2 * 3] - x0, e2y = positions[i2 * 3 + 1] - y0, e2z = positions[i2 * 3 + 2] - z0;
-    voteFace(balance, indices, normals, t, e1x, e1y, e1z, e2x, e2y, e2z, positionHalfStep);
+    voteFace(balance, normals, i0, i1, i2, e1x, e1y, e1z, e2x, e2y, e2z, positionHalfStep);
     // The test of findDegenerateGeometry.
     let degenerate = i0 === i1 || i0 === i2 || i1 === i2;
     if (!degenerate) {
