@@ -53,47 +53,10 @@ export function findBadNormals(
   assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
   assert(positions.length >= vertexCount * 3, 'positions must hold 3 floats per vertex');
   assert(normals.length >= vertexCount * 3, 'normals must hold 3 floats per vertex');
-  const balance = new Int32Array(vertexCount);
-  for (let t = 0; t < triangleCount; t++) {
-    const i0 = indices[t * 3], i1 = indices[t * 3 + 1], i2 = indices[t * 3 + 2];
-    const x0 = positions[i0 * 3], y0 = positions[i0 * 3 + 1], z0 = positions[i0 * 3 + 2];
-    const e1x = positions[i1 * 3] - x0, e1y = positions[i1 * 3 + 1] - y0, e1z = positions[i1 * 3 + 2] - z0;
-    const e2x = positions[i2 * 3] - x0, e2y = positions[i2 * 3 + 1] - y0, e2z = positions[i2 * 3 + 2] - z0;
-    voteFace(balance, normals, i0, i1, i2, e1x, e1y, e1z, e2x, e2y, e2z, positionHalfStep);
-  }
-  return judgeNormals(balance, normals, vertexCount, unitTolerance, marks);
+  return findDegenerateGeometryAndBadNormals(indices, positions, normals, triangleCount, vertexCount, unitTolerance, positionHalfStep, null, marks).badNormals;
 }
 
-/**
- * The flipped vote of the triangle with corner vertices i0, i1, i2 (see findBadNormals), given
- * its edges e1 = p1 - p0 and e2 = p2 - p0: adds 1 to balance[v] for each corner vertex v whose normal faces away from
- * the face normal cross(e1, e2), and -1 for each that does not (away * 2 > votes exactly when
- * the balance is positive); nothing when the face normal has no reliable direction.
- */
-function voteFace(
-  balance: Int32Array, normals: Float32Array, i0: number, i1: number, i2: number,
-  e1x: number, e1y: number, e1z: number, e2x: number, e2y: number, e2z: number, positionHalfStep: number,
-): void {
-  const fx = e1y * e2z - e1z * e2y, fy = e1z * e2x - e1x * e2z, fz = e1x * e2y - e1y * e2x;
-  const f2 = fx * fx + fy * fy + fz * fz;
-  // Zero, NaN or infinite face normal: no direction to vote with.
-  if (!(f2 > 0) || f2 === Infinity) return;
-  // Quantized positions: rounding each corner by up to sqrt(3) half steps moves the cross
-  // product by up to 2 * sqrt(3) * h * (|e1| + |e2|) (first order); a face normal shorter than
-  // that has no reliable direction and does not vote.
-  if (positionHalfStep > 0) {
-    const bound = 2 * Math.sqrt(3) * positionHalfStep * (Math.sqrt(e1x * e1x + e1y * e1y + e1z * e1z) + Math.sqrt(e2x * e2x + e2y * e2y + e2z * e2z));
-    if (f2 <= bound * bound) return;
-  }
-  const d0 = normals[i0 * 3] * fx + normals[i0 * 3 + 1] * fy + normals[i0 * 3 + 2] * fz;
-  const d1 = normals[i1 * 3] * fx + normals[i1 * 3 + 1] * fy + normals[i1 * 3 + 2] * fz;
-  const d2 = normals[i2 * 3] * fx + normals[i2 * 3 + 1] * fy + normals[i2 * 3 + 2] * fz;
-  balance[i0] += d0 < 0 ? 1 : -1;
-  balance[i1] += d1 < 0 ? 1 : -1;
-  balance[i2] += d2 < 0 ? 1 : -1;
-}
-
-/** The per-vertex verdicts of findBadNormals from the flipped-vote balance (see voteFace). */
+/** The per-vertex verdicts of findBadNormals from the flipped-vote balance (see findDegenerateGeometryAndBadNormals). */
 function judgeNormals(balance: Int32Array, normals: Float32Array, vertexCount: number, unitTolerance: number, marks: Uint8Array | null): BadNormals {
   let count = 0, zero = 0, nonUnit = 0, flipped = 0;
   for (let v = 0; v < vertexCount; v++) {
@@ -159,12 +122,32 @@ export function findDegenerateGeometryAndBadNormals(
     const x0 = positions[i0 * 3], y0 = positions[i0 * 3 + 1], z0 = positions[i0 * 3 + 2];
     const e1x = positions[i1 * 3] - x0, e1y = positions[i1 * 3 + 1] - y0, e1z = positions[i1 * 3 + 2] - z0;
     const e2x = positions[i2 * 3] - x0, e2y = positions[i2 * 3 + 1] - y0, e2z = positions[i2 * 3 + 2] - z0;
-    voteFace(balance, normals, i0, i1, i2, e1x, e1y, e1z, e2x, e2y, e2z, positionHalfStep);
+    // Face normal (the cross product both checks use).
+    const cx = e1y * e2z - e1z * e2y, cy = e1z * e2x - e1x * e2z, cz = e1x * e2y - e1y * e2x;
+    const f2 = cx * cx + cy * cy + cz * cz;
+    // The flipped vote: +1 per corner whose normal faces away from the face normal, -1 per
+    // corner that does not (away * 2 > votes exactly when the balance ends positive). A zero,
+    // NaN or infinite face normal has no direction to vote with; with quantized positions,
+    // rounding each corner by up to sqrt(3) half steps moves the cross product by up to
+    // 2 * sqrt(3) * h * (|e1| + |e2|) (first order), and a face normal shorter than that has no
+    // reliable direction and does not vote.
+    let votes = f2 > 0 && f2 !== Infinity;
+    if (votes && positionHalfStep > 0) {
+      const bound = 2 * Math.sqrt(3) * positionHalfStep * (Math.sqrt(e1x * e1x + e1y * e1y + e1z * e1z) + Math.sqrt(e2x * e2x + e2y * e2y + e2z * e2z));
+      votes = !(f2 <= bound * bound);
+    }
+    if (votes) {
+      const d0 = normals[i0 * 3] * cx + normals[i0 * 3 + 1] * cy + normals[i0 * 3 + 2] * cz;
+      const d1 = normals[i1 * 3] * cx + normals[i1 * 3 + 1] * cy + normals[i1 * 3 + 2] * cz;
+      const d2 = normals[i2 * 3] * cx + normals[i2 * 3 + 1] * cy + normals[i2 * 3 + 2] * cz;
+      balance[i0] += d0 < 0 ? 1 : -1;
+      balance[i1] += d1 < 0 ? 1 : -1;
+      balance[i2] += d2 < 0 ? 1 : -1;
+    }
     // The test of findDegenerateGeometry.
     let degenerate = i0 === i1 || i0 === i2 || i1 === i2;
     if (!degenerate) {
-      const cx = e1y * e2z - e1z * e2y, cy = e1z * e2x - e1x * e2z, cz = e1x * e2y - e1y * e2x;
-      const cross = Math.sqrt(cx * cx + cy * cy + cz * cz);
+      const cross = Math.sqrt(f2);
       const scale = e1x * e1x + e1y * e1y + e1z * e1z + e2x * e2x + e2y * e2y + e2z * e2z;
       degenerate = !(cross > epsilon * scale);
     }

@@ -7,6 +7,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { findBadNormals, findDegenerateGeometryAndBadNormals } from '../../src/diagnose/badNormals.js';
+import { UNIT_LENGTH_TOLERANCE, ZERO_LENGTH } from '../../src/mesh/tolerances.js';
 import { findDegenerateGeometry } from '../../src/diagnose/degenerateGeometry.js';
 
 function plantedMesh(): { indices: Uint32Array; positions: Float32Array; normals: Float32Array; triangleCount: number; vertexCount: number } {
@@ -39,6 +40,35 @@ function plantedMesh(): { indices: Uint32Array; positions: Float32Array; normals
   return { indices, positions, normals, triangleCount, vertexCount };
 }
 
+/** Bad-normal marks as findBadNormals documents them, written out plainly (vote counters per vertex). */
+function referenceBadNormals(m: ReturnType<typeof plantedMesh>, halfStep: number): Uint8Array {
+  const { indices, positions: p, normals: n } = m;
+  const votes = new Array<number>(m.vertexCount).fill(0), away = new Array<number>(m.vertexCount).fill(0);
+  for (let t = 0; t < m.triangleCount; t++) {
+    const [a, b, c] = [indices[t * 3], indices[t * 3 + 1], indices[t * 3 + 2]];
+    const e1 = [p[b * 3] - p[a * 3], p[b * 3 + 1] - p[a * 3 + 1], p[b * 3 + 2] - p[a * 3 + 2]];
+    const e2 = [p[c * 3] - p[a * 3], p[c * 3 + 1] - p[a * 3 + 1], p[c * 3 + 2] - p[a * 3 + 2]];
+    const f = [e1[1] * e2[2] - e1[2] * e2[1], e1[2] * e2[0] - e1[0] * e2[2], e1[0] * e2[1] - e1[1] * e2[0]];
+    const f2 = f[0] * f[0] + f[1] * f[1] + f[2] * f[2];
+    if (!Number.isFinite(f2) || !(f2 > 0)) continue;
+    const bound = 2 * Math.sqrt(3) * halfStep * (Math.hypot(e1[0], e1[1], e1[2]) + Math.hypot(e2[0], e2[1], e2[2]));
+    if (halfStep > 0 && f2 <= bound * bound) continue;
+    for (const v of [a, b, c]) {
+      votes[v]++;
+      if (n[v * 3] * f[0] + n[v * 3 + 1] * f[1] + n[v * 3 + 2] * f[2] < 0) away[v]++;
+    }
+  }
+  const marks = new Uint8Array(m.vertexCount);
+  for (let v = 0; v < m.vertexCount; v++) {
+    const len = Math.sqrt(n[v * 3] ** 2 + n[v * 3 + 1] ** 2 + n[v * 3 + 2] ** 2);
+    const zero = len <= ZERO_LENGTH;
+    const nonUnit = !zero && !(Math.abs(len - 1) <= UNIT_LENGTH_TOLERANCE);
+    const flipped = !zero && Number.isFinite(len) && away[v] * 2 > votes[v];
+    marks[v] = zero || nonUnit || flipped ? 1 : 0;
+  }
+  return marks;
+}
+
 describe('findDegenerateGeometryAndBadNormals', () => {
   it('matches findDegenerateGeometry and findBadNormals, counts and marks', () => {
     const m = plantedMesh();
@@ -55,6 +85,9 @@ describe('findDegenerateGeometryAndBadNormals', () => {
       expect(fused.badNormals).toEqual(bad);
       expect(degenerateMarks).toEqual(soloDegenerate);
       expect(badMarks).toEqual(soloBad);
+      const reference = referenceBadNormals(m, halfStep);
+      expect(badMarks).toEqual(reference);
+      expect(fused.badNormals.count).toBe(reference.reduce((x, y) => x + y, 0));
     }
   });
 });
