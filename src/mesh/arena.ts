@@ -43,10 +43,9 @@ export const SLOT_LENGYEL_SUMS = 4;
 export const SLOT_LENGYEL_UNDEFINED = 5;
 /**
  * Slots of the UV-overlap check. It runs after the solve, so it reuses the solve's slots, the
- * largest arrays on the largest slots (the cell entries' boxes on the corner contributions, the boxes on
- * the welded corners, the cell entries on the edge rows).
+ * largest arrays on the largest slots (the boxes on the welded corners, the cell entries on the
+ * edge rows).
  */
-export const SLOT_OVERLAP_RANGE = 20;
 export const SLOT_OVERLAP_BOX = 21;
 export const SLOT_OVERLAP_ENTRIES = 2;
 export const SLOT_OVERLAP_ORDER = 6;
