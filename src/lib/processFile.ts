@@ -8,9 +8,9 @@ import * as path from 'node:path';
 import type { Asset } from '../mesh/asset.js';
 import { Arena, threadArena } from '../mesh/arena.js';
 import { assert, TanframeError } from '../mesh/errors.js';
-import { writeFilesAtomic } from '../io/files.js';
+import { outputLength, writeFilesAtomic, type OutputFile } from '../io/files.js';
 import { readGltf, readGltfBytes } from '../io/gltfRead.js';
-import { encodeGltf, isBufferFileOf } from '../io/gltfWrite.js';
+import { encodeGltfParts, isBufferFileOf } from '../io/gltfWrite.js';
 import type { ReadLimits } from '../io/limits.js';
 import { capWarnings, quoteText } from '../mesh/text.js';
 import { readObj, readObjBytes } from '../io/objRead.js';
@@ -175,9 +175,9 @@ async function inputGeometryBytes(asset: Asset, input: string): Promise<number> 
 }
 
 /** Bytes of the output file and its buffer files (.bin) among the files planned. */
-function outputGeometryBytes(files: { path: string; bytes: Uint8Array }[], out: string): number {
+function outputGeometryBytes(files: OutputFile[], out: string): number {
   let total = 0;
-  for (const f of files) if (path.resolve(f.path) === path.resolve(out) || f.path.toLowerCase().endsWith('.bin')) total += f.bytes.byteLength;
+  for (const f of files) if (path.resolve(f.path) === path.resolve(out) || f.path.toLowerCase().endsWith('.bin')) total += outputLength(f);
   return total;
 }
 
@@ -252,7 +252,7 @@ export async function processFileOutcome(job: FileJob, batchOptions: ProcessOpti
       plan.primitives.forEach((c, i) => { if (report.primitives[i]) report.primitives[i].compression = c; });
       if (unchanged) report.notes = [unchanged.length === 0 ? 'nothing to bake: left as it was' : 'nothing to bake: written as the input\'s bytes'];
       else report.notes.push(...compressionNotes(asset, plan.primitives, mode));
-      const planned = unchanged ?? encodeGltf(asset, solved.replacements, {
+      const planned = unchanged ?? encodeGltfParts(asset, solved.replacements, {
         format, outPath: out, imageUris: w?.imageUris, embedBuffers: w?.embedBuffers && asset.container === 'gltf', compression: plan.write,
       });
       report.bytesIn = await inputGeometryBytes(asset, job.input);
