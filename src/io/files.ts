@@ -391,7 +391,16 @@ export interface AssetWriteOptions {
   removeAfter?: string[];
   /** Leftovers to remove then too: names in the main file's folder this accepts, unless written now or in `keep`. */
   leftovers?: { match: (name: string) => boolean; keep: string[] };
+  /**
+   * Asked after each temporary file is written and before the first rename: true stops the
+   * write (its time ran out): the temporary files are removed, nothing is renamed into place,
+   * and it fails with 'timeout'.
+   */
+  stopped?: () => boolean;
 }
+
+/** Thrown inside writeFilesAtomic when `stopped` says so. */
+const STOPPED = new Error('stopped');
 
 /**
  * Writes every file atomically: creates the folders (mkdir -p), writes each file to a
@@ -429,11 +438,14 @@ export async function writeFilesAtomic(files: OutputFile[], options: AssetWriteO
       const tmp = tempPathFor(path.resolve(file.path));
       temps[i] = tmp;
       await writeAndSync(tmp, outputParts(file), states[i].mode ?? mainMode);
+      if (options.stopped?.()) throw STOPPED;
     }
     for (const i of order) {
       current = files[i].path;
       await checkReplaceable(path.resolve(files[i].path));
     }
+    // Once renaming starts, the asset is put in place whole.
+    if (options.stopped?.()) throw STOPPED;
     for (const i of order) {
       current = files[i].path;
       if (path.resolve(files[i].path) === main) await writeHooks.beforeMainRename?.(main);
@@ -443,6 +455,7 @@ export async function writeFilesAtomic(files: OutputFile[], options: AssetWriteO
     if (order.length > 0) await writeHooks.afterMainRename?.(main);
   } catch (err) {
     await removeQuietly(temps.filter((t) => !!t));
+    if (err === STOPPED) throw new TanframeError('timeout', `stopped before '${current}' was put in place`);
     throw new TanframeError('write-failed', `cannot write '${current}': ${describeFsError(err)}`);
   }
   const written = new Set(files.map((f) => path.resolve(f.path)));

@@ -166,3 +166,20 @@ describe('outputs made of parts', () => {
     expect(Buffer.compare(await readFile(file), joined(changed))).toBe(0);
   });
 });
+
+describe('writeFilesAtomic told to stop', () => {
+  it('renames nothing into place, removes its temporary files and fails with timeout', async () => {
+    const dir = path.join(root, 'stopped');
+    await mkdir(dir, { recursive: true });
+    await writeFile(path.join(dir, 'old.glb'), 'old');
+    let asked = 0;
+    const code = await codeOf(writeFilesAtomic([
+      { path: path.join(dir, 'old.glb'), bytes: new Uint8Array([1, 2, 3]) },
+      { path: path.join(dir, 'new.bin'), bytes: new Uint8Array([4]) },
+    ], { main: path.join(dir, 'old.glb'), stopped: () => ++asked > 1 }));
+    expect(code).toBe('timeout');
+    expect(asked).toBeGreaterThan(1);
+    expect(await readFile(path.join(dir, 'old.glb'), 'utf8')).toBe('old');
+    expect(await readdir(dir)).toEqual(['old.glb']);
+  });
+});
