@@ -450,11 +450,27 @@ function vertexLayoutBytes(a: AttributeData, count: number): { bytes: Uint8Array
 function bounds(array: ComponentArray, itemSize: number): { min: number[]; max: number[] } {
   const min = new Array<number>(itemSize).fill(Infinity);
   const max = new Array<number>(itemSize).fill(-Infinity);
-  for (let i = 0; i < array.length; i++) {
-    const v = array[i];
-    const c = i % itemSize;
-    if (v < min[c]) min[c] = v;
-    if (v > max[c]) max[c] = v;
+  if (itemSize === 3) {
+    // POSITION: one pass over the elements with the six bounds in locals.
+    let x0 = Infinity, y0 = Infinity, z0 = Infinity, x1 = -Infinity, y1 = -Infinity, z1 = -Infinity;
+    for (let i = 0; i + 2 < array.length; i += 3) {
+      const x = array[i], y = array[i + 1], z = array[i + 2];
+      if (x < x0) x0 = x;
+      if (x > x1) x1 = x;
+      if (y < y0) y0 = y;
+      if (y > y1) y1 = y;
+      if (z < z0) z0 = z;
+      if (z > z1) z1 = z;
+    }
+    min[0] = x0; min[1] = y0; min[2] = z0;
+    max[0] = x1; max[1] = y1; max[2] = z1;
+  } else {
+    for (let i = 0; i < array.length; i++) {
+      const v = array[i];
+      const c = i % itemSize;
+      if (v < min[c]) min[c] = v;
+      if (v > max[c]) max[c] = v;
+    }
   }
   for (let c = 0; c < itemSize; c++) {
     if (!Number.isFinite(min[c])) min[c] = 0;
