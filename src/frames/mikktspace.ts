@@ -50,6 +50,13 @@ function newFrame(store: FrameStore, arena: Arena): number {
   return store.count++;
 }
 
+/** Appends a frame holding the documented fallback for welded vertex `v`'s normal; returns its id. */
+function newFallbackFrame(store: FrameStore, arena: Arena, normals: Float32Array, v: number): number {
+  const g = newFrame(store, arena);
+  writeFallbackTangent(store.data, g * 4, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
+  return g;
+}
+
 /**
  * Computes tangent frames with the MikkTSpace method: one frame per group, and for every
  * triangle corner (corner c = triangle c/3, slot c%3) the id of its frame in `cornerFrame`
@@ -284,10 +291,7 @@ export function computeMikktspaceFrames(
       for (let i = 0; i < 3; i++) {
         const c = t * 3 + i;
         if (cornerGroup[c] === NONE) {
-          const v = wi[c];
-          const g = newFrame(store, arena);
-          writeFallbackTangent(store.data, g * 4, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
-          cornerGroup[c] = g;
+          cornerGroup[c] = newFallbackFrame(store, arena, normals, wi[c]);
           undefinedCorner[c] = 1;
           fallbackCorners++;
           left--;
@@ -306,10 +310,7 @@ export function computeMikktspaceFrames(
             cornerGroup[c] = cornerGroup[src];
             undefinedCorner[c] = undefinedCorner[src];
           } else {
-            const v = wi[c];
-            const g = newFrame(store, arena);
-            writeFallbackTangent(store.data, g * 4, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
-            cornerGroup[c] = g;
+            cornerGroup[c] = newFallbackFrame(store, arena, normals, wi[c]);
             undefinedCorner[c] = 1;
             fallbackCorners++;
           }
