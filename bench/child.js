@@ -38,7 +38,10 @@ function countAllocations() {
     const Counted = class extends Base {
       constructor(...args) {
         super(...args);
-        if (!(args[0] instanceof ArrayBuffer) && !(typeof SharedArrayBuffer !== 'undefined' && args[0] instanceof SharedArrayBuffer)) {
+        // A view of an existing buffer (of any class: the buffers typed arrays make for themselves
+        // are not CountedBuffer instances) is not an allocation.
+        const tag = Object.prototype.toString.call(args[0]);
+        if (tag !== '[object ArrayBuffer]' && tag !== '[object SharedArrayBuffer]') {
           counter.bytes += this.byteLength;
           counter.arrays++;
         }

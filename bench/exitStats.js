@@ -1,6 +1,6 @@
 // Preloaded into a benchmarked process (`node --import ./bench/exitStats.js ...`): at exit,
-// writes the process's peak RSS (Linux VmHWM, worker threads included) and its minor page
-// faults as one JSON line to the file named by TANFRAME_BENCH_STATS.
+// writes the process's peak RSS (Linux VmHWM, worker threads included), its minor page faults
+// and its CPU time (user + system, every thread) as one JSON line to the file named by TANFRAME_BENCH_STATS.
 import { readFileSync, writeFileSync } from 'node:fs';
 
 const file = process.env.TANFRAME_BENCH_STATS;
@@ -13,6 +13,7 @@ if (file) {
     } catch {
       /* not Linux */
     }
-    writeFileSync(file, JSON.stringify({ peakRssMB: Math.round(peakKb / 102.4) / 10, minorFaults: process.resourceUsage().minorPageFault }) + '\n');
+    const u = process.resourceUsage();
+    writeFileSync(file, JSON.stringify({ peakRssMB: Math.round(peakKb / 102.4) / 10, minorFaults: u.minorPageFault, cpuMs: (u.userCPUTime + u.systemCPUTime) / 1000 }) + '\n');
   });
 }

@@ -160,12 +160,31 @@ try {
     fs.mkdirSync(dir);
     for (let i = 0; i < b.files; i++) writeMeshGlb(path.join(dir, `prop_${String(i).padStart(3, '0')}.glb`), makeMesh(i % 2 ? 'sphere' : 'scan', b.tris));
     const j1 = [], j2 = [];
-    const bake = (jobs) => spawnTimed([path.join(repo, 'bin', 'tanframe.js'), 'bake', dir, '-o', path.join(tmp, `out-${b.files}-${jobs}`), '--quiet', '--force', '--jobs', String(jobs)]);
+    // Each run also gives its CPU time (every thread) and, in its report, each file's seconds:
+    // what a second thread costs beside what it gains (see "what bounds the batch" below).
+    const cpu = { 1: [], 2: [] }, perFile = { 1: [], 2: [] };
+    const bake = async (jobs) => {
+      const report = path.join(tmp, `batch-${b.files}-${jobs}.json`);
+      const r = await spawnTimed([path.join(repo, 'bin', 'tanframe.js'), 'bake', dir, '-o', path.join(tmp, `out-${b.files}-${jobs}`), '--quiet', '--force', '--jobs', String(jobs), '--report', report], true);
+      cpu[jobs].push(r.cpuMs);
+      perFile[jobs].push(JSON.parse(fs.readFileSync(report, 'utf8')).files.map((f) => f.seconds * 1000));
+      (jobs === 1 ? j1 : j2).push(r.wallMs);
+    };
     for (let i = 0; i < 3; i++) {
-      if (i % 2) { j2.push((await bake(2)).wallMs); j1.push((await bake(1)).wallMs); } else { j1.push((await bake(1)).wallMs); j2.push((await bake(2)).wallMs); }
+      if (i % 2) { await bake(2); await bake(1); } else { await bake(1); await bake(2); }
     }
-    results.batch[b.name] = { files: b.files, triangles: b.tris, jobs1Ms: median(j1), jobs2Ms: median(j2), speedup: median(j1) / median(j2) };
+    // Warm-up: the first files a thread bakes run before its code is optimised. Each thread
+    // starts on the first two jobs handed out to it (jobs 0..2*jobs-1 in a fresh run).
+    const warm = (jobs) => median(perFile[jobs].map((s) => s.slice(0, 2 * jobs).reduce((x, y) => x + y, 0) / (2 * jobs)));
+    const steady = (jobs) => median(perFile[jobs].map((s) => median(s.slice(Math.min(s.length - 1, 4 * jobs)))));
+    results.batch[b.name] = {
+      files: b.files, triangles: b.tris, jobs1Ms: median(j1), jobs2Ms: median(j2), speedup: median(j1) / median(j2),
+      cpuMs: { jobs1: median(cpu[1]), jobs2: median(cpu[2]) },
+      perFileMs: { jobs1: { firstFiles: warm(1), steady: steady(1) }, jobs2: { firstFiles: warm(2), steady: steady(2) } },
+    };
+    const bb = results.batch[b.name];
     console.log(`batch of ${b.name} GLBs: --jobs 1 ${(median(j1) / 1000).toFixed(2)} s, --jobs 2 ${(median(j2) / 1000).toFixed(2)} s, speedup ${(median(j1) / median(j2)).toFixed(2)}x`);
+    console.log(`  CPU time (all threads): --jobs 1 ${(bb.cpuMs.jobs1 / 1000).toFixed(2)} s, --jobs 2 ${(bb.cpuMs.jobs2 / 1000).toFixed(2)} s; per file, first files of a thread / steady: --jobs 1 ${bb.perFileMs.jobs1.firstFiles.toFixed(0)} / ${bb.perFileMs.jobs1.steady.toFixed(0)} ms, --jobs 2 ${bb.perFileMs.jobs2.firstFiles.toFixed(0)} / ${bb.perFileMs.jobs2.steady.toFixed(0)} ms`);
   }
   // What two threads can gain here at all, by kind of work (bench/scaling.js): the ceiling of the batch ratios.
   results.threadScaling = await measureThreadScaling();

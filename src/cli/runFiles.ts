@@ -13,7 +13,7 @@ import { defaultWorkerScript, runInWorkers } from './pool.js';
 export interface RunSettings {
   /**
    * Worker threads; 1 runs every file on this thread, one after the other (no worker), unless
-   * a file timeout needs a thread it can stop (also for a single file).
+   * a file timeout needs a thread it can stop (a batch, or a single file with pictures or view sheets).
    */
   threads: number;
   /** Milliseconds a file may take before it fails with 'timeout' (a single file too); 0 or absent: no limit. */
@@ -30,8 +30,9 @@ export interface RunSettings {
 
 /**
  * Processes `jobs` and returns their reports in the order of `jobs`. Without a file timeout, one
- * job, or several with one thread, run here; otherwise they run on min(threads, jobs) worker
- * threads (at least one, so a file past the timeout can be stopped, a single one included).
+ * job, or several with one thread, run here; with one, a single job without pictures or view
+ * sheets runs here under it (processFileOutcome's time limit), and otherwise they run on
+ * min(threads, jobs) worker threads (at least one, so a file past the timeout can be stopped).
  * A number as `settings` is the thread count.
  */
 export async function runFiles(jobs: FileJob[], options: ProcessOptions, settings: RunSettings | number): Promise<FileReport[]> {
@@ -56,13 +57,16 @@ export async function runFiles(jobs: FileJob[], options: ProcessOptions, setting
     }
   };
   const timeoutMs = s.fileTimeoutMs ?? 0;
-  // Here only without a file timeout: a file that must be stoppable runs on a worker thread,
-  // even when it is the only one.
   if (jobs.length === 0) return reports; // nothing to run (a rerun with every file up-to-date): no reader is loaded
-  if (timeoutMs <= 0 && (jobs.length === 1 || s.threads <= 1)) {
+  // A single file without pictures or view sheets runs here under its timeout (processFileOutcome
+  // stops its solve and encoding at the deadline), sparing a second isolate, its module loads
+  // and its heap. A batch with a timeout, and a file drawing pictures, run on worker threads
+  // the pool can stop.
+  const alone = jobs.length === 1 && !jobs[0].pictures && !jobs[0].views;
+  if (timeoutMs <= 0 ? jobs.length === 1 || s.threads <= 1 : alone) {
     // Loaded here: a batch on worker threads never needs the readers on this thread.
     const { processFileOutcome } = await import('../lib/processFile.js');
-    for (let i = 0; i < jobs.length; i++) take(i, await processFileOutcome(jobs[i], options));
+    for (let i = 0; i < jobs.length; i++) take(i, await processFileOutcome(jobs[i], options, timeoutMs));
   } else {
     await runInWorkers(jobs, options, Math.max(1, s.threads), s.workerScript ?? defaultWorkerScript(), take, timeoutMs);
   }

@@ -48,9 +48,8 @@ export function computeFrames(input: FrameInput, options: FrameOptions = {}): Fr
     for (let i = 0; i < vertexCount; i++) indices[i] = i;
   }
   assert(indices.length % 3 === 0, 'indices must be a multiple of 3');
-  let maxIndex = 0;
-  for (let i = 0; i < indices.length; i++) if (indices[i] > maxIndex) maxIndex = indices[i];
-  assert(indices.length === 0 || maxIndex < vertexCount, 'an index is out of range');
+  // Indices at or past vertexCount are a contract breach too: the solvers check the range in
+  // their first pass over the triangles, before any index is used.
   const triangleCount = indices.length / 3;
   const faces = input.faces ?? null;
   assert(!faces || faces.length === triangleCount, 'faces must hold one entry per triangle');
@@ -64,7 +63,8 @@ export function computeFrames(input: FrameInput, options: FrameOptions = {}): Fr
     for (let v = 0; v < vertexCount; v++) sourceVertex[v] = v;
     const undefinedCorners = new Uint8Array(indices.length);
     // Every corner of a vertex that took the fallback (none, usually: the array stays zero).
-    if (s.fallbackTangents > 0) for (let c = 0; c < indices.length; c++) undefinedCorners[c] = undefinedVertex[indices[c]];
+    // Only the 1s are written: the fresh array's zero pages stay untouched.
+    if (s.fallbackTangents > 0) for (let c = 0; c < indices.length; c++) if (undefinedVertex[indices[c]] !== 0) undefinedCorners[c] = 1;
     return {
       tangents,
       indices: indices.slice(),

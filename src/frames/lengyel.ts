@@ -7,6 +7,7 @@ import type { TangentWeight } from '../mesh/types.js';
 import { UV_DEGENERATE_RELATIVE, ZERO_LENGTH } from '../mesh/tolerances.js';
 import { SLOT_LENGYEL_SUMS, threadArena } from '../mesh/arena.js';
 import { writeFallbackTangent } from './fallback.js';
+import { indexOutOfRange } from '../mesh/errors.js';
 
 /** Counts a `lengyel` solve reports. */
 export interface LengyelStats {
@@ -24,7 +25,8 @@ export interface LengyelStats {
  * by corner angle, triangle area or 1. Triangles with a degenerate UV determinant contribute
  * nothing; a vertex left without a direction gets the documented fallback and a 1 in
  * `undefinedVertex` (0 elsewhere).
- * Preconditions: indices hold 3 * triangleCount entries < vertexCount; out.length >= 4 * vertexCount;
+ * Throws a TanframeError ('invalid-argument') before using an index >= vertexCount.
+ * Preconditions: indices hold 3 * triangleCount entries; out.length >= 4 * vertexCount;
  * undefinedVertex.length >= vertexCount.
  */
 export function computeLengyelTangents(
@@ -46,6 +48,7 @@ export function computeLengyelTangents(
   let degenerate = 0, mirrored = 0, fallback = 0;
   for (let t = 0; t < triangleCount; t++) {
     const i0 = indices[t * 3], i1 = indices[t * 3 + 1], i2 = indices[t * 3 + 2];
+    if (!(i0 < vertexCount && i1 < vertexCount && i2 < vertexCount)) throw indexOutOfRange();
     const x0 = positions[i0 * 3], y0 = positions[i0 * 3 + 1], z0 = positions[i0 * 3 + 2];
     const e1x = positions[i1 * 3] - x0, e1y = positions[i1 * 3 + 1] - y0, e1z = positions[i1 * 3 + 2] - z0;
     const e2x = positions[i2 * 3] - x0, e2y = positions[i2 * 3 + 1] - y0, e2z = positions[i2 * 3 + 2] - z0;

@@ -14,6 +14,7 @@ import {
   SLOT_TRIANGLE_FLAGS, SLOT_WELD_REP, threadArena, type Arena,
 } from '../mesh/arena.js';
 import { weldVertices } from '../mesh/weld.js';
+import { indexOutOfRange } from '../mesh/errors.js';
 import { writeFallbackTangent } from './fallback.js';
 
 const NONE = 0xffffffff;
@@ -49,6 +50,13 @@ function newFrame(store: FrameStore, arena: Arena): number {
   return store.count++;
 }
 
+/** Appends a frame holding the documented fallback for welded vertex `v`'s normal; returns its id. */
+function newFallbackFrame(store: FrameStore, arena: Arena, normals: Float32Array, v: number): number {
+  const g = newFrame(store, arena);
+  writeFallbackTangent(store.data, g * 4, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
+  return g;
+}
+
 /**
  * Computes tangent frames with the MikkTSpace method: one frame per group, and for every
  * triangle corner (corner c = triangle c/3, slot c%3) the id of its frame in `cornerFrame`
@@ -61,7 +69,8 @@ function newFrame(store: FrameStore, arena: Arena): number {
  * same id (a split quad) are forced to one orientation, while three or more (a fanned polygon)
  * are independent triangles. Corners with no usable direction get the
  * documented fallback (see fallback.ts). Returns the frames and the counts.
- * Preconditions: indices hold 3 * triangleCount entries < vertexCount; normals are unit;
+ * Throws a TanframeError ('invalid-argument') before using an index >= vertexCount.
+ * Preconditions: indices hold 3 * triangleCount entries; normals are unit;
  * cornerFrame.length and undefinedCorner.length >= 3 * triangleCount.
  */
 export function computeMikktspaceFrames(
@@ -91,8 +100,11 @@ export function computeMikktspaceFrames(
   const contrib = arena.f32(SLOT_CONTRIB, cornerCount * 3);
   let degenerateUv = 0, mirrored = 0, degenerateTriangles = 0;
   for (let t = 0; t < triangleCount; t++) {
-    // The welded corners, written here (one pass over the corners, not two).
-    const a = rep[indices[t * 3]], b = rep[indices[t * 3 + 1]], c = rep[indices[t * 3 + 2]];
+    // The welded corners, written here (one pass over the corners, not two). The index range
+    // is checked here too, before any index is used, instead of in a pass of its own.
+    const i0 = indices[t * 3], i1 = indices[t * 3 + 1], i2 = indices[t * 3 + 2];
+    if (!(i0 < vertexCount && i1 < vertexCount && i2 < vertexCount)) throw indexOutOfRange();
+    const a = rep[i0], b = rep[i1], c = rep[i2];
     wi[t * 3] = a; wi[t * 3 + 1] = b; wi[t * 3 + 2] = c;
     let f = GROUP_WITH_ANY;
     const u0 = uvs[a * 2], v0 = uvs[a * 2 + 1];
@@ -208,6 +220,10 @@ export function computeMikktspaceFrames(
       assigned++;
       let memberCount = 0;
       members[memberCount++] = f * 3 + i;
+      // The group's sum, added as members join (member order). It starts from +0 so that a
+      // first contribution of -0 sums to +0, as a sum from zero does.
+      let sx = 0, sy = 0, sz = 0;
+      sx += contrib[(f * 3 + i) * 3]; sy += contrib[(f * 3 + i) * 3 + 1]; sz += contrib[(f * 3 + i) * 3 + 2];
       let sp = 0;
       // Left neighbour first, then right (pushed in reverse).
       const r0 = neighbour[f * 3 + (i > 0 ? i - 1 : 2)], l0 = neighbour[f * 3 + i];
@@ -228,15 +244,17 @@ export function computeMikktspaceFrames(
           }
         }
         if ((flags[t] & ORIENT_PRESERVING) !== orient) continue;
-        cornerGroup[t * 3 + j] = g;
+        const c = t * 3 + j;
+        cornerGroup[c] = g;
         assigned++;
         if (memberCount === members.length) {
           const grown = new Uint32Array(members.length * 2);
           grown.set(members);
           members = grown;
         }
-        members[memberCount++] = t * 3 + j;
-        const r = neighbour[t * 3 + (j > 0 ? j - 1 : 2)], l = neighbour[t * 3 + j];
+        members[memberCount++] = c;
+        sx += contrib[c * 3]; sy += contrib[c * 3 + 1]; sz += contrib[c * 3 + 2];
+        const r = neighbour[t * 3 + (j > 0 ? j - 1 : 2)], l = neighbour[c];
         if (sp + 2 > stack.length) {
           const grown = new Uint32Array(stack.length * 2);
           grown.set(stack);
@@ -245,48 +263,57 @@ export function computeMikktspaceFrames(
         if (r !== NONE) stack[sp++] = r;
         if (l !== NONE) stack[sp++] = l;
       }
-      if (!evaluateGroup(store.data, g, members, memberCount, vrep, orient !== 0, contrib, normals)) {
+      // The frame: the normalised sum with the group's sign, or the fallback when nothing
+      // contributed (written out here: doubles passed to a call that is not inlined are boxed).
+      const frames = store.data, o = g * 4;
+      const sl = Math.sqrt(sx * sx + sy * sy + sz * sz);
+      if (sl > MIKK_NOT_ZERO && Number.isFinite(sl)) {
+        frames[o] = sx / sl; frames[o + 1] = sy / sl; frames[o + 2] = sz / sl;
+      } else {
+        writeFallbackTangent(frames, o, normals[vrep * 3], normals[vrep * 3 + 1], normals[vrep * 3 + 2]);
         fallbackCorners += memberCount;
         for (let m = 0; m < memberCount; m++) undefinedCorner[members[m]] = 1;
       }
+      frames[o + 3] = orient !== 0 ? 1 : -1;
     }
   }
 
   // Corners of non-degenerate triangles that joined no group (isolated "group with any"),
-  // then degenerate triangles; both passes are skipped when there is nothing to do.
-  if (!(assigned === (triangleCount - degenerateTriangles) * 3 && degenerateTriangles === 0)) {
-    const firstGood = arena.u32(SLOT_FIRST_GOOD, vertexCount, NONE);
-    for (let t = 0; t < triangleCount; t++) {
+  // then degenerate triangles; each pass runs only when it has something to do, and the
+  // first good corner of each welded vertex is recorded only when degenerate triangles need it.
+  const unassigned = (triangleCount - degenerateTriangles) * 3 - assigned;
+  if (unassigned > 0 || degenerateTriangles > 0) {
+    const needFirst = degenerateTriangles > 0;
+    const firstGood = needFirst ? arena.u32(SLOT_FIRST_GOOD, vertexCount, NONE) : null;
+    let left = unassigned;
+    for (let t = 0; t < triangleCount && (left > 0 || needFirst); t++) {
       if (flags[t] & DEGENERATE) continue;
       for (let i = 0; i < 3; i++) {
         const c = t * 3 + i;
         if (cornerGroup[c] === NONE) {
-          const v = wi[c];
-          const g = newFrame(store, arena);
-          writeFallbackTangent(store.data, g * 4, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
-          cornerGroup[c] = g;
+          cornerGroup[c] = newFallbackFrame(store, arena, normals, wi[c]);
           undefinedCorner[c] = 1;
           fallbackCorners++;
+          left--;
         }
-        if (firstGood[wi[c]] === NONE) firstGood[wi[c]] = c;
+        if (firstGood !== null && firstGood[wi[c]] === NONE) firstGood[wi[c]] = c;
       }
     }
     // Degenerate triangles take the frame the same welded vertex has in a good triangle.
-    for (let t = 0; t < triangleCount; t++) {
-      if (!(flags[t] & DEGENERATE)) continue;
-      for (let i = 0; i < 3; i++) {
-        const c = t * 3 + i;
-        const src = firstGood[wi[c]];
-        if (src !== NONE) {
-          cornerGroup[c] = cornerGroup[src];
-          undefinedCorner[c] = undefinedCorner[src];
-        } else {
-          const v = wi[c];
-          const g = newFrame(store, arena);
-          writeFallbackTangent(store.data, g * 4, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
-          cornerGroup[c] = g;
-          undefinedCorner[c] = 1;
-          fallbackCorners++;
+    if (firstGood !== null) {
+      for (let t = 0; t < triangleCount; t++) {
+        if (!(flags[t] & DEGENERATE)) continue;
+        for (let i = 0; i < 3; i++) {
+          const c = t * 3 + i;
+          const src = firstGood[wi[c]];
+          if (src !== NONE) {
+            cornerGroup[c] = cornerGroup[src];
+            undefinedCorner[c] = undefinedCorner[src];
+          } else {
+            cornerGroup[c] = newFallbackFrame(store, arena, normals, wi[c]);
+            undefinedCorner[c] = 1;
+            fallbackCorners++;
+          }
         }
       }
     }
@@ -392,29 +419,4 @@ function buildNeighbours(arena: Arena, wi: Uint32Array, flags: Uint8Array, trian
     }
   }
   return neighbour;
-}
-
-/**
- * Sums the corner contributions of the group's members at welded vertex `v` and writes the
- * normalised frame with the group's sign to frame `g` of `frames`. Returns false when nothing
- * contributed (the frame is then the fallback with the group's sign).
- */
-function evaluateGroup(
-  frames: Float32Array, g: number, members: Uint32Array, memberCount: number, v: number, orient: boolean,
-  contrib: Float32Array, normals: Float32Array,
-): boolean {
-  let sx = 0, sy = 0, sz = 0;
-  for (let m = 0; m < memberCount; m++) {
-    const c = members[m] * 3;
-    sx += contrib[c]; sy += contrib[c + 1]; sz += contrib[c + 2];
-  }
-  const sl = Math.sqrt(sx * sx + sy * sy + sz * sz);
-  const o = g * 4;
-  if (sl > MIKK_NOT_ZERO && Number.isFinite(sl)) {
-    frames[o] = sx / sl; frames[o + 1] = sy / sl; frames[o + 2] = sz / sl; frames[o + 3] = orient ? 1 : -1;
-    return true;
-  }
-  writeFallbackTangent(frames, o, normals[v * 3], normals[v * 3 + 1], normals[v * 3 + 2]);
-  frames[o + 3] = orient ? 1 : -1;
-  return false;
 }

@@ -23,6 +23,54 @@ export interface OutputFile {
   bytes: Uint8Array;
 }
 
+/** The parts of outputs made by outputFromParts (their content, in order). */
+const partsOfOutput = new WeakMap<OutputFile, Uint8Array[]>();
+
+/**
+ * An output file whose content is `parts` one after another. writeFilesAtomic writes the parts
+ * straight into the file and compares them with what is there in chunks, so the whole content is
+ * never joined in memory; reading `bytes` joins them once (on first use) for callers that need it.
+ */
+export function outputFromParts(filePath: string, parts: Uint8Array[]): OutputFile {
+  const kept = parts.filter((p) => p.byteLength > 0);
+  let joined: Uint8Array | null = null;
+  const file = { path: filePath } as OutputFile;
+  Object.defineProperty(file, 'bytes', {
+    enumerable: true,
+    configurable: true,
+    get: () => (joined ??= joinParts(kept)),
+  });
+  partsOfOutput.set(file, kept);
+  return file;
+}
+
+/** `parts` copied one after another into one new array. */
+function joinParts(parts: Uint8Array[]): Uint8Array {
+  let length = 0;
+  for (const p of parts) length += p.byteLength;
+  const out = new Uint8Array(length);
+  let at = 0;
+  for (const p of parts) {
+    out.set(p, at);
+    at += p.byteLength;
+  }
+  return out;
+}
+
+/** The content of `file` as parts in order: those of outputFromParts, else its bytes alone. */
+export function outputParts(file: OutputFile): Uint8Array[] {
+  return partsOfOutput.get(file) ?? [file.bytes];
+}
+
+/** The byte length of `file`'s content (its parts are not joined for it). */
+export function outputLength(file: OutputFile): number {
+  const parts = partsOfOutput.get(file);
+  if (!parts) return file.bytes.byteLength;
+  let length = 0;
+  for (const p of parts) length += p.byteLength;
+  return length;
+}
+
 /** A short, human reason for a file-system error code. */
 function describeFsError(err: unknown): string {
   const e = err as NodeJS.ErrnoException;
@@ -212,32 +260,102 @@ export function removeThreadTemps(dir: string, thread: number): Promise<string[]
 const cleanedFolders = new Set<string>();
 
 /**
- * Writes `bytes` to a new file at `tmp` (must not exist) and flushes it to disk; `mode`, when
+ * Writes `parts` one after another to a new file at `tmp` (must not exist) and flushes it to disk; `mode`, when
  * given, is set exactly (not narrowed by the umask), so a replaced file keeps its permission bits.
  */
-async function writeAndSync(tmp: string, bytes: Uint8Array, mode: number | null): Promise<void> {
+async function writeAndSync(tmp: string, parts: Uint8Array[], mode: number | null): Promise<void> {
   const handle = await fsp.open(tmp, 'wx', mode ?? 0o644);
   try {
     if (mode !== null) await handle.chmod(mode);
-    let off = 0;
-    while (off < bytes.byteLength) {
-      const { bytesWritten } = await handle.write(bytes, off, bytes.byteLength - off);
-      off += bytesWritten;
-    }
+    await writeParts(handle, parts);
     await handle.sync();
   } finally {
     await handle.close();
   }
 }
 
-/** What is at a destination now: its permission bits, and whether it already holds `bytes`. */
-async function currentState(target: string, bytes: Uint8Array): Promise<{ mode: number | null; same: boolean }> {
+/** Most parts handed to one writev call (the system's IOV_MAX is at least 1024 where it matters). */
+const PARTS_PER_WRITE = 1024;
+
+/** Writes `parts` one after another from the handle's position, resuming after short writes. */
+async function writeParts(handle: fsp.FileHandle, parts: Uint8Array[]): Promise<void> {
+  let i = 0;
+  let skip = 0; // bytes of parts[i] already written
+  for (;;) {
+    while (i < parts.length && parts[i].byteLength === skip) {
+      i++;
+      skip = 0;
+    }
+    if (i === parts.length) return;
+    const batch: Uint8Array[] = [];
+    for (let j = i; j < parts.length && batch.length < PARTS_PER_WRITE; j++) batch.push(j === i ? parts[j].subarray(skip) : parts[j]);
+    let { bytesWritten } = await handle.writev(batch);
+    if (bytesWritten === 0) throw fsError('EIO', 'the write made no progress');
+    while (i < parts.length && bytesWritten >= parts[i].byteLength - skip) {
+      bytesWritten -= parts[i].byteLength - skip;
+      skip = 0;
+      i++;
+    }
+    skip += bytesWritten;
+  }
+}
+
+/** Bytes read at a time when a file is compared with content in memory. Our choice. */
+const COMPARE_CHUNK_BYTES = 1 << 20;
+
+/**
+ * True when the regular file at `target` holds exactly `parts` one after another (`length`
+ * bytes in all). Read and compared a chunk at a time, so the file is never loaded whole;
+ * false when it cannot be read.
+ */
+export async function fileHolds(target: string, parts: Uint8Array[], length: number): Promise<boolean> {
+  let opened: { handle: fsp.FileHandle; size: number };
+  try {
+    opened = await openRegularFile(target);
+  } catch {
+    return false;
+  }
+  const { handle, size } = opened;
+  try {
+    if (size !== length) return false;
+    const chunk = Buffer.allocUnsafe(Math.min(COMPARE_CHUNK_BYTES, Math.max(1, length)));
+    let pos = 0; // file offset compared so far
+    let i = 0; // current part
+    let inPart = 0; // offset inside parts[i]
+    while (pos < length) {
+      const { bytesRead } = await handle.read(chunk, 0, Math.min(chunk.byteLength, length - pos), pos);
+      if (bytesRead === 0) return false;
+      let c = 0;
+      while (c < bytesRead) {
+        const part = parts[i];
+        const n = Math.min(part.byteLength - inPart, bytesRead - c);
+        if (Buffer.compare(chunk.subarray(c, c + n), part.subarray(inPart, inPart + n)) !== 0) return false;
+        c += n;
+        inPart += n;
+        if (inPart === part.byteLength) {
+          i++;
+          inPart = 0;
+        }
+      }
+      pos += bytesRead;
+    }
+    const probe = Buffer.alloc(1);
+    return (await handle.read(probe, 0, 1, pos)).bytesRead === 0;
+  } catch {
+    return false;
+  } finally {
+    await handle.close();
+  }
+}
+
+/** What is at a destination now: its permission bits, and whether it already holds `file`'s content. */
+async function currentState(target: string, file: OutputFile): Promise<{ mode: number | null; same: boolean }> {
   const st = await fsp.stat(target).catch(() => null);
   if (!st || !st.isFile()) return { mode: null, same: false };
   const mode = st.mode & 0o7777;
-  if (st.size !== bytes.byteLength) return { mode, same: false };
-  const current = await readRegularFile(target).catch(() => null);
-  return { mode, same: current !== null && Buffer.compare(current, bytes) === 0 };
+  const length = outputLength(file);
+  if (st.size !== length) return { mode, same: false };
+  return { mode, same: await fileHolds(target, outputParts(file), length) };
 }
 
 /**
@@ -273,7 +391,16 @@ export interface AssetWriteOptions {
   removeAfter?: string[];
   /** Leftovers to remove then too: names in the main file's folder this accepts, unless written now or in `keep`. */
   leftovers?: { match: (name: string) => boolean; keep: string[] };
+  /**
+   * Asked after each temporary file is written and before the first rename: true stops the
+   * write (its time ran out): the temporary files are removed, nothing is renamed into place,
+   * and it fails with 'timeout'.
+   */
+  stopped?: () => boolean;
 }
+
+/** Thrown inside writeFilesAtomic when `stopped` says so. */
+const STOPPED = new Error('stopped');
 
 /**
  * Writes every file atomically: creates the folders (mkdir -p), writes each file to a
@@ -294,7 +421,7 @@ export async function writeFilesAtomic(files: OutputFile[], options: AssetWriteO
   let current = '';
   const main = path.resolve(options.main ?? files[0]?.path ?? '');
   try {
-    const states = await Promise.all(files.map((f) => currentState(path.resolve(f.path), f.bytes)));
+    const states = await Promise.all(files.map((f) => currentState(path.resolve(f.path), f)));
     const mainMode = states[files.findIndex((f) => path.resolve(f.path) === main)]?.mode ?? null;
     const order: number[] = [];
     for (let i = 0; i < files.length; i++) if (!states[i].same && path.resolve(files[i].path) !== main) order.push(i);
@@ -310,12 +437,15 @@ export async function writeFilesAtomic(files: OutputFile[], options: AssetWriteO
       }
       const tmp = tempPathFor(path.resolve(file.path));
       temps[i] = tmp;
-      await writeAndSync(tmp, file.bytes, states[i].mode ?? mainMode);
+      await writeAndSync(tmp, outputParts(file), states[i].mode ?? mainMode);
+      if (options.stopped?.()) throw STOPPED;
     }
     for (const i of order) {
       current = files[i].path;
       await checkReplaceable(path.resolve(files[i].path));
     }
+    // Once renaming starts, the asset is put in place whole.
+    if (options.stopped?.()) throw STOPPED;
     for (const i of order) {
       current = files[i].path;
       if (path.resolve(files[i].path) === main) await writeHooks.beforeMainRename?.(main);
@@ -325,6 +455,7 @@ export async function writeFilesAtomic(files: OutputFile[], options: AssetWriteO
     if (order.length > 0) await writeHooks.afterMainRename?.(main);
   } catch (err) {
     await removeQuietly(temps.filter((t) => !!t));
+    if (err === STOPPED) throw new TanframeError('timeout', `stopped before '${current}' was put in place`);
     throw new TanframeError('write-failed', `cannot write '${current}': ${describeFsError(err)}`);
   }
   const written = new Set(files.map((f) => path.resolve(f.path)));

@@ -145,13 +145,43 @@ export function assembleGlb(json: object, bin: Uint8Array | null): Uint8Array {
  * parts is placed once, straight into the file, instead of being joined and then copied.
  */
 export function assembleGlbWith(json: object, binLength: number, writeBin: (out: Uint8Array, at: number) => void): Uint8Array {
+  const head = glbHead(json, binLength);
+  const out = new Uint8Array(head.total); // zero-filled: the BIN chunk's padding
+  out.set(head.bytes, 0);
+  if (binLength > 0) writeBin(out, head.bytes.byteLength);
+  return out;
+}
+
+/** Zeros for the padding of parts (never written to). */
+const ZERO_PADDING = new Uint8Array(4);
+
+/**
+ * The file assembleGlb makes, as parts in file order (their concatenation is that file, byte
+ * for byte): the header, the JSON chunk and the BIN chunk's header in one new array, then the
+ * `bin` parts themselves (not copied) and the BIN chunk's zero padding. For writing the file
+ * without building it in memory. Throws 'too-large' past the 4 GiB GLB limit.
+ */
+export function glbParts(json: object, bin: Uint8Array[]): Uint8Array[] {
+  let binLength = 0;
+  for (const b of bin) binLength += b.byteLength;
+  const head = glbHead(json, binLength);
+  if (binLength === 0) return [head.bytes];
+  const pad = head.total - head.bytes.byteLength - binLength;
+  return pad > 0 ? [head.bytes, ...bin, ZERO_PADDING.subarray(0, pad)] : [head.bytes, ...bin];
+}
+
+/**
+ * The bytes of a GLB before its BIN chunk's data (header, JSON chunk padded with spaces and,
+ * with a BIN chunk, its 8-byte header) and the file's total length.
+ */
+function glbHead(json: object, binLength: number): { bytes: Uint8Array; total: number } {
   const jsonBytes = new TextEncoder().encode(JSON.stringify(json));
   const jsonPadded = jsonBytes.byteLength + ((4 - (jsonBytes.byteLength % 4)) % 4);
   const hasBin = binLength > 0;
   const binPadded = hasBin ? binLength + ((4 - (binLength % 4)) % 4) : 0;
   const total = HEADER_BYTES + CHUNK_HEADER_BYTES + jsonPadded + (hasBin ? CHUNK_HEADER_BYTES + binPadded : 0);
   if (total > MAX_GLB_BYTES) throw new TanframeError('too-large', 'the output exceeds the 4 GiB GLB size limit');
-  const out = new Uint8Array(total); // zero-filled: the BIN chunk's padding
+  const out = new Uint8Array(HEADER_BYTES + CHUNK_HEADER_BYTES + jsonPadded + (hasBin ? CHUNK_HEADER_BYTES : 0));
   const view = new DataView(out.buffer);
   view.setUint32(0, GLB_MAGIC, true);
   view.setUint32(4, 2, true);
@@ -164,7 +194,6 @@ export function assembleGlbWith(json: object, binLength: number, writeBin: (out:
     const at = 20 + jsonPadded;
     view.setUint32(at, binPadded, true);
     view.setUint32(at + 4, CHUNK_BIN, true);
-    writeBin(out, at + CHUNK_HEADER_BYTES);
   }
-  return out;
+  return { bytes: out, total };
 }

@@ -238,21 +238,21 @@ export function chargeBudget(budget: DecodeBudget, bytes: number, what: string):
   }
 }
 
-/** A typed array of `componentType` over `buffer` (fresh, so always aligned). */
-function typedArrayOf(componentType: number, buffer: ArrayBuffer, length: number): ComponentArray {
+/** A typed array of `componentType` over `buffer` from `byteOffset` (a multiple of the component size). */
+function typedArrayOf(componentType: number, buffer: ArrayBuffer, byteOffset: number, length: number): ComponentArray {
   switch (componentType) {
     case BYTE:
-      return new Int8Array(buffer, 0, length);
+      return new Int8Array(buffer, byteOffset, length);
     case UNSIGNED_BYTE:
-      return new Uint8Array(buffer, 0, length);
+      return new Uint8Array(buffer, byteOffset, length);
     case SHORT:
-      return new Int16Array(buffer, 0, length);
+      return new Int16Array(buffer, byteOffset, length);
     case UNSIGNED_SHORT:
-      return new Uint16Array(buffer, 0, length);
+      return new Uint16Array(buffer, byteOffset, length);
     case UNSIGNED_INT:
-      return new Uint32Array(buffer, 0, length);
+      return new Uint32Array(buffer, byteOffset, length);
     default:
-      return new Float32Array(buffer, 0, length);
+      return new Float32Array(buffer, byteOffset, length);
   }
 }
 
@@ -303,20 +303,33 @@ function applySparse(out: Uint8Array, spec: AccessorSpec, views: ViewTable, l: E
 
 /**
  * Decodes a checked accessor into a dense, tightly packed typed array of its component
- * type (itemSize values per element, matrix padding removed): strided and unaligned data
- * are copied, an accessor without bufferView starts as zeros, sparse substitution applied.
- * The array owns its memory. Charges the budget first; throws 'too-large' or 'bad-accessor'.
+ * type (itemSize values per element, matrix padding removed). Data already stored that way
+ * (tightly packed, aligned to its component size, no sparse substitution) is returned as a
+ * view of the buffer's bytes, not copied: the array is read-only by contract, like every
+ * decoded array. Strided, padded and unaligned data are copied, an accessor without
+ * bufferView starts as zeros, sparse substitution is applied to a copy. The budget is charged
+ * the decoded size either way (so what a file may declare does not depend on its layout);
+ * throws 'too-large' or 'bad-accessor'.
  */
 export function decodeAccessor(spec: AccessorSpec, views: ViewTable, vertexAttribute: boolean, budget: DecodeBudget): ComponentArray {
   if (!LITTLE_ENDIAN_HOST) throw new TanframeError('unsupported-feature', 'big-endian hosts are not supported');
   const length = spec.count * spec.itemSize;
-  const byteLength = length * COMPONENT_BYTES[spec.componentType];
+  const componentBytes = COMPONENT_BYTES[spec.componentType];
+  const byteLength = length * componentBytes;
   chargeBudget(budget, byteLength, `accessor ${spec.index}`);
-  const out = new Uint8Array(byteLength);
   const l = elementLayout(spec.type, spec.componentType);
+  if (spec.bufferView !== null && !spec.sparse) {
+    const src = views.bytes[spec.bufferView];
+    const start = src.byteOffset + spec.byteOffset;
+    const dense = l.cols * l.colBytes;
+    if (l.colStride === l.colBytes && strideOf(spec, views, vertexAttribute) === dense && start % componentBytes === 0) {
+      return typedArrayOf(spec.componentType, src.buffer as ArrayBuffer, start, length);
+    }
+  }
+  const out = new Uint8Array(byteLength);
   if (spec.bufferView !== null) {
     copyElements(out, views.bytes[spec.bufferView], spec.byteOffset, strideOf(spec, views, vertexAttribute), spec.count, l);
   }
   if (spec.sparse) applySparse(out, spec, views, l);
-  return typedArrayOf(spec.componentType, out.buffer, length);
+  return typedArrayOf(spec.componentType, out.buffer, 0, length);
 }

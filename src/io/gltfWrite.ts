@@ -35,8 +35,8 @@ import {
 } from '../mesh/asset.js';
 import { toFloat32 } from '../mesh/decode.js';
 import { TanframeError, assert } from '../mesh/errors.js';
-import type { OutputFile } from './files.js';
-import { assembleGlbWith } from './glb.js';
+import { outputFromParts, type OutputFile } from './files.js';
+import { glbParts } from './glb.js';
 import { TYPE_COMPONENTS, elementLayout, packedElementBytes } from './gltfAccessor.js';
 import { accessorRefs, bufferViewRefs, keepReferenced } from './gltfRefs.js';
 import { needsQuantization } from './gltfSemantics.js';
@@ -102,8 +102,15 @@ export const BUFFER_HASH_DIGITS = 16;
  * the new buffer under its own name, then the JSON (see writeAssetAtomic).
  */
 export function bufferFileName(outPath: string, bin: Uint8Array): string {
+  return bufferFileNameOfParts(outPath, [bin]);
+}
+
+/** bufferFileName of the buffer made of `parts` one after another (hashed part by part, not joined). */
+function bufferFileNameOfParts(outPath: string, parts: Uint8Array[]): string {
   const stem = path.basename(outPath, path.extname(outPath));
-  return `${stem}.${createHash('sha256').update(bin).digest('hex').slice(0, BUFFER_HASH_DIGITS)}.bin`;
+  const hash = createHash('sha256');
+  for (const p of parts) hash.update(p);
+  return `${stem}.${hash.digest('hex').slice(0, BUFFER_HASH_DIGITS)}.bin`;
 }
 
 /** True when `name` is a buffer file name bufferFileName gives for an output named `outPath`. */
@@ -164,7 +171,24 @@ class BinBuilder {
   writeInto(out: Uint8Array, at: number): void {
     for (const p of this.parts) out.set(p.bytes, at + p.offset);
   }
+
+  /** The whole buffer as pieces in order (the parts themselves, not copied, with zero padding between and after them). */
+  pieces(): Uint8Array[] {
+    const out: Uint8Array[] = [];
+    let at = 0;
+    for (const p of this.parts) {
+      if (p.offset > at) out.push(ZERO_PADDING.subarray(0, p.offset - at));
+      if (p.bytes.byteLength > 0) out.push(p.bytes);
+      at = p.offset + p.bytes.byteLength;
+    }
+    const end = align4(this.length);
+    if (end > at) out.push(ZERO_PADDING.subarray(0, end - at));
+    return out;
+  }
 }
+
+/** Zeros for the padding between pieces (never written to). */
+const ZERO_PADDING = new Uint8Array(4);
 
 /** Everything the encoding steps share. */
 interface EncodeState {
@@ -426,11 +450,27 @@ function vertexLayoutBytes(a: AttributeData, count: number): { bytes: Uint8Array
 function bounds(array: ComponentArray, itemSize: number): { min: number[]; max: number[] } {
   const min = new Array<number>(itemSize).fill(Infinity);
   const max = new Array<number>(itemSize).fill(-Infinity);
-  for (let i = 0; i < array.length; i++) {
-    const v = array[i];
-    const c = i % itemSize;
-    if (v < min[c]) min[c] = v;
-    if (v > max[c]) max[c] = v;
+  if (itemSize === 3) {
+    // POSITION: one pass over the elements with the six bounds in locals.
+    let x0 = Infinity, y0 = Infinity, z0 = Infinity, x1 = -Infinity, y1 = -Infinity, z1 = -Infinity;
+    for (let i = 0; i + 2 < array.length; i += 3) {
+      const x = array[i], y = array[i + 1], z = array[i + 2];
+      if (x < x0) x0 = x;
+      if (x > x1) x1 = x;
+      if (y < y0) y0 = y;
+      if (y > y1) y1 = y;
+      if (z < z0) z0 = z;
+      if (z > z1) z1 = z;
+    }
+    min[0] = x0; min[1] = y0; min[2] = z0;
+    max[0] = x1; max[1] = y1; max[2] = z1;
+  } else {
+    for (let i = 0; i < array.length; i++) {
+      const v = array[i];
+      const c = i % itemSize;
+      if (v < min[c]) min[c] = v;
+      if (v > max[c]) max[c] = v;
+    }
   }
   for (let c = 0; c < itemSize; c++) {
     if (!Number.isFinite(min[c])) min[c] = 0;
@@ -722,6 +762,16 @@ function editableCopy(json: any): any {
  * Throws 'bad-gltf' for dangling references or empty replacements, 'too-large' past 4 GiB GLB.
  */
 export function encodeGltf(asset: Asset, replacements: Map<number, PrimitiveReplacement>, options: EncodeOptions): OutputFile[] {
+  return encodeGltfParts(asset, replacements, options).map((f) => ({ path: f.path, bytes: f.bytes }));
+}
+
+/**
+ * encodeGltf with the GLB and the .gltf's buffer file as outputs made of parts (files.ts,
+ * outputFromParts): their binary data stays in the arrays it was encoded from, so
+ * writeFilesAtomic writes it straight into the file and the whole file is never built in
+ * memory. The same files, byte for byte, as encodeGltf.
+ */
+export function encodeGltfParts(asset: Asset, replacements: Map<number, PrimitiveReplacement>, options: EncodeOptions): OutputFile[] {
   const json = editableCopy(asset.json);
   const compression = options.compression ?? null;
   const targets = replacementTargets(asset, withDecodedDefaults(asset, replacements, !!compression?.keepCompressed));
@@ -739,20 +789,21 @@ export function encodeGltf(asset: Asset, replacements: Map<number, PrimitiveRepl
   for (const [m, p, r, key] of targets) writeReplacement(state, m, p, r, key);
   tidyExtensions(state);
   if (options.format === 'glb') {
-    // The new buffer goes straight into the GLB's BIN chunk, never joined on its own first.
-    const binLength = align4(state.bin.length);
-    finishLists(state, binLength, null);
-    return [{ path: options.outPath, bytes: assembleGlbWith(json, binLength, (out, at) => state.bin.writeInto(out, at)) }, ...imageFiles];
+    // The new buffer's parts go straight into the file's BIN chunk, never joined.
+    finishLists(state, align4(state.bin.length), null);
+    return [outputFromParts(options.outPath, glbParts(json, state.bin.pieces())), ...imageFiles];
   }
-  const bin = state.bin.finish();
   if (options.embedBuffers) {
+    const bin = state.bin.finish();
     finishLists(state, bin.byteLength, `data:application/octet-stream;base64,${Buffer.from(bin.buffer, bin.byteOffset, bin.byteLength).toString('base64')}`);
     return [{ path: options.outPath, bytes: new TextEncoder().encode(`${JSON.stringify(json, null, 2)}\n`) }, ...imageFiles];
   }
-  const binName = bufferFileName(options.outPath, bin);
-  finishLists(state, bin.byteLength, encodeURIComponent(binName));
+  const pieces = state.bin.pieces();
+  const binLength = align4(state.bin.length);
+  const binName = bufferFileNameOfParts(options.outPath, pieces);
+  finishLists(state, binLength, encodeURIComponent(binName));
   const text = new TextEncoder().encode(`${JSON.stringify(json, null, 2)}\n`);
   const files: OutputFile[] = [{ path: options.outPath, bytes: text }];
-  if (bin.byteLength > 0) files.push({ path: path.join(outDir, binName), bytes: bin });
+  if (binLength > 0) files.push(outputFromParts(path.join(outDir, binName), pieces));
   return [...files, ...imageFiles];
 }

@@ -8,7 +8,7 @@
  * are solved once and share one replacement. Pure: no file system, no console.
  */
 import type { Asset, AttributeData, PrimitiveData, PrimitiveReplacement } from '../mesh/asset.js';
-import { FLOAT } from '../mesh/asset.js';
+import { FLOAT, MODE_TRIANGLES } from '../mesh/asset.js';
 import { composeSource, gatherAttribute, toFloat32 } from '../mesh/decode.js';
 import { compactPrimitive, createCompactScratch, type CompactScratch } from '../mesh/compact.js';
 import { generateNormals } from '../mesh/normals.js';
@@ -152,7 +152,8 @@ export function solvePrimitive(
   p = compactPrimitive(scratch, p);
   const vertexCount = p.attributes.POSITION.array.length / 3;
   report.verticesIn = vertexCount;
-  const tri = expandToTriangleList(p.mode, p.indices, vertexCount);
+  // A stored triangle list is used as it is (read-only, like every decoded array), not copied.
+  const tri = p.mode === MODE_TRIANGLES && p.indices ? p.indices.subarray(0, p.indices.length - (p.indices.length % 3)) : expandToTriangleList(p.mode, p.indices, vertexCount);
   const triangleCount = tri.length / 3;
   report.triangles = triangleCount;
   if (triangleCount === 0) return skip('empty');

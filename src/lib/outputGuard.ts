@@ -9,7 +9,7 @@ import * as fsp from 'node:fs/promises';
 import * as path from 'node:path';
 import type { Asset } from '../mesh/asset.js';
 import { TanframeError } from '../mesh/errors.js';
-import type { OutputFile } from '../io/files.js';
+import { fileHolds, outputLength, outputParts, type OutputFile } from '../io/files.js';
 import { isBufferFileOf } from '../io/gltfWrite.js';
 import { isInside, realPathOfNearestExisting, resolveResourceUri, uriToRelativePath } from '../io/uri.js';
 import type { JobWrites } from './writePlan.js';
@@ -40,16 +40,6 @@ function inputFiles(asset: Asset, input: string): Set<string> {
   }
   for (const img of asset.externalImages) out.add(realOrSelf(img.path));
   return out;
-}
-
-/** True when the file at `p` holds exactly `bytes`. */
-async function holds(p: string, bytes: Uint8Array): Promise<boolean> {
-  try {
-    const current = await fsp.readFile(p);
-    return current.byteLength === bytes.byteLength && Buffer.compare(current, bytes) === 0;
-  } catch {
-    return false;
-  }
 }
 
 /**
@@ -100,7 +90,7 @@ export async function guardOutputs(files: OutputFile[], output: string, input: s
     if (protectedFiles.has(real)) {
       // Copied onto itself unchanged: kept in the list (the writer leaves equal bytes alone, and
       // must know the new asset names this file), never written.
-      if (await holds(real, file.bytes)) {
+      if (await fileHolds(real, outputParts(file), outputLength(file))) {
         kept.push(file);
         continue;
       }

@@ -5,12 +5,13 @@
  */
 import { stat } from 'node:fs/promises';
 import * as path from 'node:path';
+import { createContext, Script, type Context } from 'node:vm';
 import type { Asset } from '../mesh/asset.js';
 import { Arena, threadArena } from '../mesh/arena.js';
 import { assert, TanframeError } from '../mesh/errors.js';
-import { writeFilesAtomic } from '../io/files.js';
+import { outputLength, writeFilesAtomic, type OutputFile } from '../io/files.js';
 import { readGltf, readGltfBytes } from '../io/gltfRead.js';
-import { encodeGltf, isBufferFileOf } from '../io/gltfWrite.js';
+import { encodeGltfParts, isBufferFileOf } from '../io/gltfWrite.js';
 import type { ReadLimits } from '../io/limits.js';
 import { capWarnings, quoteText } from '../mesh/text.js';
 import { readObj, readObjBytes } from '../io/objRead.js';
@@ -175,9 +176,9 @@ async function inputGeometryBytes(asset: Asset, input: string): Promise<number> 
 }
 
 /** Bytes of the output file and its buffer files (.bin) among the files planned. */
-function outputGeometryBytes(files: { path: string; bytes: Uint8Array }[], out: string): number {
+function outputGeometryBytes(files: OutputFile[], out: string): number {
   let total = 0;
-  for (const f of files) if (path.resolve(f.path) === path.resolve(out) || f.path.toLowerCase().endsWith('.bin')) total += f.bytes.byteLength;
+  for (const f of files) if (path.resolve(f.path) === path.resolve(out) || f.path.toLowerCase().endsWith('.bin')) total += outputLength(f);
   return total;
 }
 
@@ -189,11 +190,98 @@ export async function processFile(job: FileJob, options: ProcessOptions): Promis
   return (await processFileOutcome(job, options)).report;
 }
 
+/** The message of a file stopped by --file-timeout after `timeoutMs`. */
+export function timeoutMessage(timeoutMs: number): string {
+  return `stopped after ${timeoutMs / 1000} s (--file-timeout)`;
+}
+
+/** The one script the guarded stages run through: it calls the function its context holds. */
+let guardScript: Script | null = null;
+/** Its context, made once per thread; `holder.run` is the stage being run. */
+let guardContext: Context | null = null;
+
+/**
+ * A file's time limit on the thread that runs it (processFileOutcome with a timeout). Stages
+ * whose cost depends on the geometry (solve and diagnostics, encoding) run through `run`, as a
+ * script with V8's execution timeout set to the time left: past the deadline V8 stops them
+ * where they are (the same as terminating a worker thread) and they fail with 'timeout'.
+ * `check` fails at once when the deadline has passed (between stages, after reading), and
+ * `stopped` tells the writer not to rename anything into place any more.
+ */
+class FileGuard {
+  stopped = false;
+  constructor(private readonly deadline: number, readonly timeoutMs: number) {}
+
+  /** Throws 'timeout' when the deadline has passed. */
+  check(): void {
+    if (this.stopped || performance.now() >= this.deadline) this.stop();
+  }
+
+  /** Marks the file stopped and throws 'timeout'. */
+  stop(): never {
+    this.stopped = true;
+    throw new TanframeError('timeout', timeoutMessage(this.timeoutMs));
+  }
+
+  /** Runs `fn` (synchronous), stopped by V8 at the deadline. */
+  run<T>(fn: () => T): T {
+    this.check();
+    guardScript ??= new Script('holder.run()');
+    guardContext ??= createContext({ holder: { run: null } });
+    const holder = (guardContext as { holder: { run: (() => T) | null } }).holder;
+    holder.run = fn;
+    try {
+      return guardScript.runInContext(guardContext, { timeout: Math.max(1, Math.ceil(this.deadline - performance.now())) }) as T;
+    } catch (err) {
+      if ((err as NodeJS.ErrnoException)?.code !== 'ERR_SCRIPT_EXECUTION_TIMEOUT') throw err;
+      // Stopped mid-stage: the scratch it held may be half-written, so none of it is kept.
+      threadArena().trim(0);
+      return this.stop();
+    } finally {
+      holder.run = null;
+    }
+  }
+}
+
+/** Longest timeout setTimeout and V8's script timeout take (about 24 days); beyond it, no limit. */
+const MAX_TIMEOUT_MS = 0x7fffffff;
+
 /**
  * Processes one file and returns its report and, when `job.pictures` is set, the UV picture
  * data of its primitives with findings (none for a failed file). Never throws for bad input.
+ *
+ * With `timeoutMs` > 0 the file has that long on this thread (a single input with
+ * --file-timeout, run without a worker thread): solving, diagnostics and encoding are stopped
+ * by V8 at the deadline, the deadline is checked between the other stages, and when it passes
+ * while the file waits on reading or writing, the outcome is 'timeout' at once and the write
+ * renames nothing into place (its temporary files are removed). A stopped file fails with code
+ * 'timeout', `seconds` the limit, as a worker thread stopped by the pool does.
  */
-export async function processFileOutcome(job: FileJob, batchOptions: ProcessOptions): Promise<FileOutcome> {
+export async function processFileOutcome(job: FileJob, batchOptions: ProcessOptions, timeoutMs = 0): Promise<FileOutcome> {
+  if (!(timeoutMs > 0 && timeoutMs <= MAX_TIMEOUT_MS)) return runJob(job, batchOptions, null);
+  const guard = new FileGuard(performance.now() + timeoutMs, timeoutMs);
+  let timer: NodeJS.Timeout | null = null;
+  const expired = new Promise<null>((resolve) => {
+    timer = setTimeout(() => {
+      guard.stopped = true;
+      resolve(null);
+    }, timeoutMs);
+  });
+  const outcome = await Promise.race([runJob(job, batchOptions, guard), expired]);
+  if (timer) clearTimeout(timer);
+  if (outcome && outcome.report.error?.code !== 'timeout') return outcome;
+  return {
+    report: {
+      input: job.displayInput, output: null, status: 'failed', error: { code: 'timeout', message: timeoutMessage(timeoutMs) },
+      gates: [], primitives: [], warnings: [], notes: [], seconds: timeoutMs / 1000,
+    },
+    pictures: [],
+  };
+}
+
+/** processFileOutcome's body; with `guard`, under its time limit. */
+async function runJob(job: FileJob, batchOptions: ProcessOptions, guard: FileGuard | null): Promise<FileOutcome> {
+  const bounded = <T>(fn: () => T): T => (guard ? guard.run(fn) : fn());
   const started = performance.now();
   const options = job.options ?? batchOptions;
   const report: FileReport = {
@@ -213,9 +301,10 @@ export async function processFileOutcome(job: FileJob, batchOptions: ProcessOpti
   try {
     const inputHash = job.record && job.output && !job.dryRun ? await hashWithStamp(job.input) : null;
     const asset = await readAsset(job.input, { maxTriangles: options.maxTriangles });
+    guard?.check();
     report.warnings = capWarnings(asset.warnings).map((w) => quoteText(w, MAX_MESSAGE_LENGTH));
     if (job.command === 'audit') for (const ext of asset.decompressed ?? []) report.notes.push(`decompressed ${ext}`);
-    const solved = solveAsset(asset, options, !!job.pictures);
+    const solved = bounded(() => solveAsset(asset, options, !!job.pictures));
     // The scratch of ordinary primitives stays for the next file; a huge one's is let go
     // before encoding, so it does not add to the file's peak.
     threadArena().trim(Arena.KEEP_BYTES);
@@ -252,18 +341,21 @@ export async function processFileOutcome(job: FileJob, batchOptions: ProcessOpti
       plan.primitives.forEach((c, i) => { if (report.primitives[i]) report.primitives[i].compression = c; });
       if (unchanged) report.notes = [unchanged.length === 0 ? 'nothing to bake: left as it was' : 'nothing to bake: written as the input\'s bytes'];
       else report.notes.push(...compressionNotes(asset, plan.primitives, mode));
-      const planned = unchanged ?? encodeGltf(asset, solved.replacements, {
+      guard?.check();
+      const planned = unchanged ?? bounded(() => encodeGltfParts(asset, solved.replacements, {
         format, outPath: out, imageUris: w?.imageUris, embedBuffers: w?.embedBuffers && asset.container === 'gltf', compression: plan.write,
-      });
+      }));
       report.bytesIn = await inputGeometryBytes(asset, job.input);
       report.bytesOut = unchanged && unchanged.length === 0 ? report.bytesIn : outputGeometryBytes(planned, out);
       const files = await guardOutputs(planned, out, job.input, asset, w);
+      guard?.check();
       // In place with nothing to bake, nothing is written (and nothing the file names is removed).
       if (!job.dryRun && !(unchanged && unchanged.length === 0)) {
         await writeFilesAtomic(files, {
           main: out,
           removeAfter: w?.removeAfter,
           leftovers: format === 'gltf' ? { match: (name) => isBufferFileOf(out, name), keep: w?.keep ?? [] } : undefined,
+          stopped: guard ? () => guard.stopped : undefined,
         });
         report.notes.push(...(w?.notes ?? []));
       }

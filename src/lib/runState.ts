@@ -47,7 +47,7 @@ import * as fsp from 'node:fs/promises';
 import * as path from 'node:path';
 import type { Asset } from '../mesh/asset.js';
 import { TanframeError } from '../mesh/errors.js';
-import { writeFilesAtomic, type OutputFile } from '../io/files.js';
+import { outputParts, writeFilesAtomic, type OutputFile } from '../io/files.js';
 import type { FileReport } from '../report/types.js';
 import { referencedFiles } from './assetFiles.js';
 import { STATE_FILE_NAME, type ProcessOptions } from './options.js';
@@ -121,7 +121,9 @@ export async function recordParts(inputHash: { sha256: string; stamp: Stamp | nu
   }
   const outputs: HashedFile[] = [];
   for (const f of planned) {
-    const sha256 = sha256Bytes(f.bytes);
+    const hash = createHash('sha256');
+    for (const part of outputParts(f)) hash.update(part);
+    const sha256 = hash.digest('hex');
     outputs.push({ path: path.resolve(f.path), sha256 });
     const s = written ? await ownStamp(f.path, sha256) : null;
     if (s) stamps[path.resolve(f.path)] = s;

@@ -46,35 +46,48 @@ export function compactIndices(scratch: CompactScratch, indices: Uint32Array, ve
     scratch.map = new Uint32Array(vertexCount);
     scratch.generation = 0;
   }
-  if (scratch.generation === 0xffffffff) {
+  if (scratch.generation >= 0xfffffffe) {
     scratch.stamp.fill(0);
     scratch.generation = 0;
   }
-  const gen = ++scratch.generation;
+  let gen = ++scratch.generation;
   const stamp = scratch.stamp;
+  const map = scratch.map;
   const n = indices.length;
-  const seen = new Uint32Array(Math.min(n, vertexCount));
+  // First pass: how many vertices are referenced (stamped with this call's generation).
   let k = 0;
   for (let i = 0; i < n; i++) {
     const v = indices[i];
     if (stamp[v] !== gen) {
       stamp[v] = gen;
-      seen[k++] = v;
+      k++;
     }
   }
   if (k === vertexCount) return null;
   // The referenced vertices in ascending order: by a walk over the stamps when that is no
   // dearer than sorting them (k log k >= vertexCount, a primitive using most of its buffer),
-  // else by sorting, so a small primitive of a huge shared buffer never pays for the buffer.
-  let vertices: Uint32Array;
+  // else collected by a second pass over the indices and sorted, so a small primitive of a
+  // huge shared buffer never pays for the buffer.
+  const vertices = new Uint32Array(k);
   if (k * Math.log2(k + 1) >= vertexCount) {
-    vertices = new Uint32Array(k);
-    for (let v = 0, j = 0; v < vertexCount; v++) if (stamp[v] === gen) vertices[j++] = v;
+    for (let v = 0, j = 0; v < vertexCount; v++) {
+      if (stamp[v] === gen) {
+        map[v] = j;
+        vertices[j++] = v;
+      }
+    }
   } else {
-    vertices = seen.slice(0, k).sort();
+    gen = ++scratch.generation;
+    for (let i = 0, j = 0; i < n; i++) {
+      const v = indices[i];
+      if (stamp[v] !== gen) {
+        stamp[v] = gen;
+        vertices[j++] = v;
+      }
+    }
+    vertices.sort();
+    for (let i = 0; i < k; i++) map[vertices[i]] = i;
   }
-  const map = scratch.map;
-  for (let i = 0; i < k; i++) map[vertices[i]] = i;
   const out = new Uint32Array(n);
   for (let i = 0; i < n; i++) out[i] = map[indices[i]];
   return { indices: out, vertices };

@@ -58,11 +58,44 @@ export function gatherAttribute(attr: AttributeData, sourceVertex: Uint32Array):
   const n = sourceVertex.length;
   const src = attr.array;
   const out = allocComponents(attr.componentType, n * k);
-  for (let i = 0; i < n; i++) {
-    const s = sourceVertex[i] * k, o = i * k;
-    for (let j = 0; j < k; j++) out[o + j] = src[s + j];
+  if (src instanceof Float32Array && out instanceof Float32Array && k >= 2 && k <= 4) gatherFloatElements(out, src, k, sourceVertex);
+  else {
+    for (let i = 0; i < n; i++) {
+      const s = sourceVertex[i] * k, o = i * k;
+      for (let j = 0; j < k; j++) out[o + j] = src[s + j];
+    }
   }
   return { array: out, itemSize: k, type: attr.type, componentType: attr.componentType, normalized: attr.normalized };
+}
+
+/**
+ * gatherAttribute's loop for float elements of 2, 3 or 4 components (positions, normals, UVs,
+ * tangents), one monomorphic loop per size with the components copied without an inner loop.
+ */
+function gatherFloatElements(out: Float32Array, src: Float32Array, k: number, sourceVertex: Uint32Array): void {
+  const n = sourceVertex.length;
+  if (k === 3) {
+    for (let i = 0, o = 0; i < n; i++, o += 3) {
+      const s = sourceVertex[i] * 3;
+      out[o] = src[s];
+      out[o + 1] = src[s + 1];
+      out[o + 2] = src[s + 2];
+    }
+  } else if (k === 2) {
+    for (let i = 0, o = 0; i < n; i++, o += 2) {
+      const s = sourceVertex[i] * 2;
+      out[o] = src[s];
+      out[o + 1] = src[s + 1];
+    }
+  } else {
+    for (let i = 0, o = 0; i < n; i++, o += 4) {
+      const s = sourceVertex[i] * 4;
+      out[o] = src[s];
+      out[o + 1] = src[s + 1];
+      out[o + 2] = src[s + 2];
+      out[o + 3] = src[s + 3];
+    }
+  }
 }
 
 /** Composes two source maps: result[i] = first[second[i]]. */

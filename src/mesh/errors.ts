@@ -44,3 +44,12 @@ export class TanframeError extends Error {
 export function assert(cond: unknown, message: string): asserts cond {
   if (!cond) throw new TanframeError('invalid-argument', `assertion failed: ${message}`);
 }
+
+/**
+ * The contract breach of a triangle list holding an index at or past the vertex count, as
+ * `assert` words it: solvers check the range in their first pass over the indices and throw
+ * this before they use the index.
+ */
+export function indexOutOfRange(): TanframeError {
+  return new TanframeError('invalid-argument', 'assertion failed: an index is out of range');
+}

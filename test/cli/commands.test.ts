@@ -46,4 +46,10 @@ describe('lazy command loading', () => {
     const unused = files.filter((f) => /^dist\/(imaging\/(png|convert)|report\/(html|uvMapSvg)|lib\/mergeReports)\.js$/.test(f) || /node_modules\/(fast-png|draco3d|meshoptimizer)\//.test(f));
     expect(unused).toEqual([]);
   });
+
+  it('a single input runs on the main thread under the default file timeout, one with pictures on a worker thread', () => {
+    const input = path.join(repoRoot, 'fixtures', 'values', 'single-triangle.glb');
+    expect(loaded(['bake', input, '-o', path.join(tmp, 'alone.glb'), '--quiet'])).not.toContain('dist/cli/worker.js');
+    expect(loaded(['audit', input, '--uv-maps', path.join(tmp, 'maps'), '--quiet'])).toContain('dist/cli/worker.js');
+  });
 });

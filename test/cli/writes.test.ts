@@ -256,7 +256,7 @@ describe('--file-timeout', () => {
     expect(listFiles(out)).toEqual(['.tanframe-state.json', 'b_small.glb']);
   });
 
-  it('holds for a single input too: the one file runs on a worker thread that is stopped', async () => {
+  it('holds for a single input too: the one file, run on the main thread, is stopped in its solve', async () => {
     const out = path.join(tmp, 'timeout-single-out');
     const r = await runCli(['bake', bigInput, '-o', out, '--file-timeout', '0.5', '--json'], repo);
     expect(r.code).toBe(3);

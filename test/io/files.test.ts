@@ -3,7 +3,7 @@ import { mkdtemp, mkdir, readdir, readFile, rm, writeFile } from 'node:fs/promis
 import { tmpdir } from 'node:os';
 import * as path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { readInputBytes, writeFilesAtomic, writeHooks } from '../../src/io/files.js';
+import { fileHolds, outputFromParts, outputLength, outputParts, readInputBytes, writeFilesAtomic, writeHooks } from '../../src/io/files.js';
 import { TanframeError } from '../../src/mesh/errors.js';
 
 let root: string;
@@ -121,5 +121,65 @@ describe('writeFilesAtomic replacing an asset of several files', () => {
     // An empty write (nothing to write for this asset) never removes anything.
     await writeFilesAtomic([], { main, removeAfter: [path.join(dir, 'a.bin')] });
     expect((await readdir(dir)).sort()).toEqual(['a.bin', 'a.gltf']);
+  });
+});
+
+describe('outputs made of parts', () => {
+  /** Parts of assorted sizes, empty ones among them, more than one writev call takes. */
+  function manyParts(): Uint8Array[] {
+    const parts: Uint8Array[] = [];
+    for (let i = 0; i < 2500; i++) parts.push(Uint8Array.from({ length: i % 7 === 0 ? 0 : (i * 37) % 300 }, (_, k) => (i * 13 + k) & 0xff));
+    parts.push(Uint8Array.from({ length: 3 << 20 }, (_, k) => (k * 7) & 0xff)); // past one compare chunk
+    return parts;
+  }
+  const joined = (parts: Uint8Array[]) => Buffer.concat(parts.map((p) => Buffer.from(p.buffer, p.byteOffset, p.byteLength)));
+
+  it('are written as their parts one after another, and their bytes join them only when read', async () => {
+    const parts = manyParts();
+    const file = path.join(root, 'parts', 'out.bin');
+    const out = outputFromParts(file, parts);
+    expect(outputLength(out)).toBe(joined(parts).byteLength);
+    expect(outputParts(out).every((p) => p.byteLength > 0)).toBe(true);
+    await writeFilesAtomic([out]);
+    expect(Buffer.compare(await readFile(file), joined(parts))).toBe(0);
+    expect(Buffer.compare(Buffer.from(out.bytes), joined(parts))).toBe(0);
+    expect((await readdir(path.dirname(file))).sort()).toEqual(['out.bin']);
+  });
+
+  it('are compared with the file on disk chunk by chunk: equal content is left alone, any other is replaced', async () => {
+    const parts = manyParts();
+    const file = path.join(root, 'parts', 'same.bin');
+    await writeFile(file, joined(parts));
+    const length = joined(parts).byteLength;
+    expect(await fileHolds(file, parts, length)).toBe(true);
+    const changed = parts.map((p) => p.slice());
+    changed[changed.length - 1][(2 << 20) + 5] ^= 1;
+    expect(await fileHolds(file, changed, length)).toBe(false);
+    expect(await fileHolds(file, parts.slice(0, -1), length - (3 << 20))).toBe(false);
+    expect(await fileHolds(path.join(root, 'parts', 'absent.bin'), parts, length)).toBe(false);
+    const old = new Date(2001, 1, 1);
+    fs.utimesSync(file, old, old);
+    await writeFilesAtomic([outputFromParts(file, parts)]);
+    expect(fs.statSync(file).mtimeMs).toBe(old.getTime());
+    await writeFilesAtomic([outputFromParts(file, changed)]);
+    expect(fs.statSync(file).mtimeMs).not.toBe(old.getTime());
+    expect(Buffer.compare(await readFile(file), joined(changed))).toBe(0);
+  });
+});
+
+describe('writeFilesAtomic told to stop', () => {
+  it('renames nothing into place, removes its temporary files and fails with timeout', async () => {
+    const dir = path.join(root, 'stopped');
+    await mkdir(dir, { recursive: true });
+    await writeFile(path.join(dir, 'old.glb'), 'old');
+    let asked = 0;
+    const code = await codeOf(writeFilesAtomic([
+      { path: path.join(dir, 'old.glb'), bytes: new Uint8Array([1, 2, 3]) },
+      { path: path.join(dir, 'new.bin'), bytes: new Uint8Array([4]) },
+    ], { main: path.join(dir, 'old.glb'), stopped: () => ++asked > 1 }));
+    expect(code).toBe('timeout');
+    expect(asked).toBeGreaterThan(1);
+    expect(await readFile(path.join(dir, 'old.glb'), 'utf8')).toBe('old');
+    expect(await readdir(dir)).toEqual(['old.glb']);
   });
 });

@@ -53,6 +53,35 @@ async function codeOf(p: Promise<unknown>): Promise<string> {
   return 'no error';
 }
 
+describe('decoded arrays over the file bytes', () => {
+  it('tightly packed aligned data is a view of the file, strided and sparse data are copies, with the same values', async () => {
+    const sparse = quad();
+    sparse.attributes.TEXCOORD_0 = { array: UV, type: 'VEC2', sparse: { indices: [1], values: new Float32Array([0.5, 0.5]) } };
+    for (const interleaved of [false, true]) {
+      const { json, bin } = buildGltf([interleaved ? quad() : sparse], { interleaved });
+      const asset = await readGltfBytes(glbBytes(json, bin), 'x.glb');
+      const file = asset.buffers[0].buffer;
+      const a = asset.primitives[0].attributes;
+      expect([...a.POSITION.array]).toEqual([...POS]);
+      expect([...a.NORMAL.array]).toEqual([...NRM]);
+      expect([...a.TEXCOORD_0.array]).toEqual(interleaved ? [...UV] : [0, 1, 0.5, 0.5, 1, 0, 0, 0]);
+      expect(a.POSITION.array.buffer === file).toBe(!interleaved);
+      expect(a.NORMAL.array.buffer === file).toBe(!interleaved);
+      expect(a.TEXCOORD_0.array.buffer === file).toBe(false);
+      // 16-bit indices are widened to 32 bits: a copy.
+      expect([...asset.primitives[0].indices!]).toEqual([...IDX]);
+      expect(asset.primitives[0].indices!.buffer === file).toBe(false);
+    }
+  });
+
+  it('32-bit indices stored aligned are a view of the file', async () => {
+    const { json, bin } = buildGltf([quad({ indices: new Uint32Array(IDX) })]);
+    const asset = await readGltfBytes(glbBytes(json, bin), 'x.glb');
+    expect([...asset.primitives[0].indices!]).toEqual([...IDX]);
+    expect(asset.primitives[0].indices!.buffer === asset.buffers[0].buffer).toBe(true);
+  });
+});
+
 describe('readGltf decodes accessors', () => {
   for (const layout of ['separate', 'interleaved', 'offset'] as const) {
     for (const container of ['glb', 'gltf'] as const) {

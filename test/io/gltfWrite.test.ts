@@ -3,9 +3,9 @@ import { existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import * as path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { writeFilesAtomic } from '../../src/io/files.js';
+import { outputParts, writeFilesAtomic } from '../../src/io/files.js';
 import { readGltf } from '../../src/io/gltfRead.js';
-import { encodeGltf } from '../../src/io/gltfWrite.js';
+import { encodeGltf, encodeGltfParts } from '../../src/io/gltfWrite.js';
 import type { Asset, AttributeData, PrimitiveData, PrimitiveReplacement } from '../../src/mesh/asset.js';
 import { GltfBuilder, minMax, writeGlb, writeGltf, type BuildPrimitive } from '../helpers/gltfBuilder.js';
 import { encodePngRgba8 } from '../helpers/png.js';
@@ -237,6 +237,27 @@ describe('encodeGltf without replacements', () => {
     expect(a.map((f) => f.path)).toEqual(b.map((f) => f.path));
     expect(Buffer.from(a[0].bytes).equals(Buffer.from(b[0].bytes))).toBe(true);
   });
+});
+
+describe('encodeGltfParts', () => {
+  for (const to of ['glb', 'gltf'] as const) {
+    it(`gives the files encodeGltf gives, byte for byte, the binary data left in its arrays (${to})`, async () => {
+      const input = await readGltf(await writeRich(dir(), 'glb'));
+      const outPath = `x/out.${to}`;
+      const whole = encodeGltf(input, new Map(), { format: to, outPath });
+      const parted = encodeGltfParts(input, new Map(), { format: to, outPath });
+      expect(parted.map((f) => f.path)).toEqual(whole.map((f) => f.path));
+      const binary = parted.find((f) => f.path.endsWith(to === 'glb' ? '.glb' : '.bin'))!;
+      const parts = outputParts(binary);
+      expect(parts.length).toBeGreaterThan(2);
+      // Kept views are the input's own bytes, not copies.
+      expect(parts.some((p) => p.buffer === input.buffers[0].buffer)).toBe(true);
+      parted.forEach((f, i) => {
+        const joined = Buffer.concat(outputParts(f).map((p) => Buffer.from(p.buffer, p.byteOffset, p.byteLength)));
+        expect(joined.equals(Buffer.from(whole[i].bytes)), f.path).toBe(true);
+      });
+    });
+  }
 });
 
 describe('encodeGltf with replacements', () => {
