@@ -99,15 +99,6 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
     const listed = numbers ? f.vertices.map((v) => numbers[v]) : f.vertices;
     return { count: f.count, vertices: listed, positions: vertexPositions(f.vertices, positions), triangleCount: f.triangleCount, triangles: f.triangles, ...where };
   };
-  // The UV-overlap check finds the triangles without UV area as it goes: with the default
-  // epsilon those are the degenerate-UV triangles, so that pass is not made twice.
-  const uvTestShared = input.uvEpsilon === UV_DEGENERATE_RELATIVE;
-  const degenerateUv = uvTestShared ? (marks ? marks.degenerateUv : threadArena().u8(SLOT_DEGENERATE_UV, triangleCount)) : null;
-  const stacked = threadArena().u8(SLOT_STACKED, triangleCount);
-  const uvOverlap = findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null, null, { stacked, touching: input.uvTouching, degenerate: degenerateUv });
-  report.degenerateUv = located(degenerateUv
-    ? findingFromMarks(degenerateUv, triangleCount)
-    : findDegenerateUvTriangles(indices, uvs, triangleCount, input.uvEpsilon, marks ? marks.degenerateUv : null));
   const unitTolerance = input.normalUnitTolerance ?? UNIT_LENGTH_TOLERANCE;
   const validity = input.tangentValidity ?? FLOAT_TANGENT_VALIDITY;
   const badNormal = new Uint8Array(vertexCount);
@@ -117,9 +108,19 @@ export function diagnosePrimitive(report: PrimitiveReport, input: DiagnoseInput)
       indices, positions, normals, triangleCount, vertexCount, unitTolerance, input.positionHalfStep ?? 0, marks?.degenerateGeometry ?? null, badNormal,
     ).degenerate
     : findDegenerateGeometry(indices, positions, triangleCount, undefined, marks?.degenerateGeometry ?? null);
-  report.degenerateGeometry = located(degenerateGeometry);
   const invalid = new Uint8Array(vertexCount);
   markInvalidVertices(invalid, vertexCount, positions, normals, uvs, storedTangents);
+  // The UV-overlap check finds the triangles without UV area as it goes: with the default
+  // epsilon those are the degenerate-UV triangles, so that pass is not made twice.
+  const uvTestShared = input.uvEpsilon === UV_DEGENERATE_RELATIVE;
+  const degenerateUv = uvTestShared ? (marks ? marks.degenerateUv : threadArena().u8(SLOT_DEGENERATE_UV, triangleCount)) : null;
+  const stacked = threadArena().u8(SLOT_STACKED, triangleCount);
+  const uvOverlap = findUvOverlaps(indices, uvs, triangleCount, marks ? marks.overlap : null, null, { stacked, touching: input.uvTouching, degenerate: degenerateUv });
+  // The report's fields in their usual order.
+  report.degenerateUv = located(degenerateUv
+    ? findingFromMarks(degenerateUv, triangleCount)
+    : findDegenerateUvTriangles(indices, uvs, triangleCount, input.uvEpsilon, marks ? marks.degenerateUv : null));
+  report.degenerateGeometry = located(degenerateGeometry);
   report.invalidValues = vertexFinding(invalid);
   if (marks?.invalidValues) trianglesOfVertices(marks.invalidValues, indices, invalid, triangleCount);
   report.badNormals = vertexFinding(badNormal);

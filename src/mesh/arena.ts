@@ -56,6 +56,8 @@ export const SLOT_SHELL_AREA = 0;
 export const SLOT_OVERLAP_USABLE = 3;
 export const SLOT_OVERLAP_CELLS = 5;
 export const SLOT_OVERLAP_CURSOR = 11;
+/** Per vertex a hash of its UV point (the exact-copy search), dead before the cell cursors take the slot. */
+export const SLOT_OVERLAP_POINT_HASH = 11;
 export const SLOT_OVERLAP_TABLE = 22;
 export const SLOT_SHELL_PARENT = 23;
 export const SLOT_SHELL_HASH_A = 13;
@@ -70,10 +72,8 @@ export const SLOT_STACKED = 19;
 export const SLOT_OVERLAP_STARTS_U = 25;
 export const SLOT_OVERLAP_STARTS_V = 26;
 export const SLOT_OVERLAP_STARTS_BOTH = 27;
-/** The UV-overlap check's exact-copy search: per vertex a hash of its UV point. */
-export const SLOT_OVERLAP_POINT_HASH = 28;
 /** diagnosePrimitive: per triangle whether it has no UV area (filled by the UV-overlap check), when no picture marks are wanted. */
-export const SLOT_DEGENERATE_UV = 29;
+export const SLOT_DEGENERATE_UV = 28;
 
 /** Smallest block a slot grows to, in bytes. */
 const MIN_BLOCK = 1 << 16;
