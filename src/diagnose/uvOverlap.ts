@@ -10,8 +10,7 @@ import {
   SLOT_OVERLAP_BOX, SLOT_OVERLAP_CELLS, SLOT_OVERLAP_CLASS, SLOT_OVERLAP_CURSOR, SLOT_OVERLAP_ENTRIES, SLOT_OVERLAP_FLAGS,
   SLOT_OVERLAP_HASH, SLOT_OVERLAP_LIVE, SLOT_OVERLAP_ORDER, SLOT_OVERLAP_TABLE, SLOT_OVERLAP_USABLE,
   SLOT_SHELL_AREA, SLOT_SHELL_HASH_A, SLOT_SHELL_HASH_B, SLOT_SHELL_OF, SLOT_SHELL_PARENT, SLOT_SHELL_POINTS, SLOT_SHELL_SEEN,
-  SLOT_SHELL_USABLE, SLOT_OVERLAP_STARTS_U, SLOT_OVERLAP_STARTS_V,
-  SLOT_OVERLAP_STARTS_BOTH, SLOT_OVERLAP_POINT_HASH,
+  SLOT_SHELL_USABLE, SLOT_OVERLAP_POINT_HASH,
   threadArena, type Arena,
 } from '../mesh/arena.js';
 import { assert } from '../mesh/errors.js';
@@ -259,18 +258,12 @@ export function findUvOverlaps(
   // the intersection of its bounding boxes, so once over the whole grid. That corner's cell
   // is (max of the two first cells along u, max along v), as cellOf is monotonic, and a
   // triangle's first cell is never past the cell it is met in, so the test is "one of the two
-  // starts here" on each axis. Each cell first lists its entries that start in it along u,
-  // along v, and along both (in entry order), so an entry that starts here along u only walks
-  // the later entries starting here along v, one along v only those along u, one along
-  // neither those along both, and one along both all later entries: the pairs that fail the
-  // corner test are never visited. A pair of two triangles already known to overlap
-  // something teaches nothing, so for an already-marked triangle only the cell's
-  // still-unmarked later entries are visited: `live` holds them, compacted as they get
-  // marked. Near-stacked copies (offset by a little, so not exact copies) all mark each other
-  // in the first pass, and the cell then costs its length, not its square. Pairs are tested
-  // in the same order whichever way they are found (cells in order, then by first and by
-  // second entry), so which pairs are skipped, and so every mark, does not depend on how the
-  // candidates are enumerated.
+  // starts here" on each axis: one bit test on the two entries (their start bits), made
+  // before the boxes are read. A pair of two triangles already known to overlap something
+  // teaches nothing, so for an already-marked triangle only the cell's still-unmarked later
+  // entries are visited: `live` holds them, compacted as they get marked. Near-stacked copies
+  // (offset by a little, so not exact copies) all mark each other in the first pass, and the
+  // cell then costs its length, not its square.
   const counts = pairsInCells(arena, cellStart, cellCount, entries, box, flags, indices, uvs, touching, shell, stacked);
   const cellPairs = counts[0], exactTests = counts[1];
   if (stats) { stats.cellsU = nu; stats.cellsV = nv; stats.cellPairs = cellPairs; stats.exactTests = exactTests; }
@@ -284,7 +277,10 @@ export function findUvOverlaps(
   return findingFromMarks(flags, triangleCount);
 }
 
-/** Bits above the triangle number in a cell entry: the triangle's first cell along u (HERE_U) and along v (HERE_V) is this cell. */
+/**
+ * Bits above the triangle number in a cell entry: HERE_U when the triangle's first cell along u
+ * is this cell's column, HERE_V when its first cell along v is this cell's row.
+ */
 const HERE_U = 0x40000000;
 const HERE_V = 0x80000000;
 /** The triangle number of a cell entry. */
@@ -301,54 +297,27 @@ function pairsInCells(
   let maxRow = 0;
   for (let c = 0; c < cellCount; c++) if (cellStart[c + 1] - cellStart[c] > maxRow) maxRow = cellStart[c + 1] - cellStart[c];
   const live = arena.u32(SLOT_OVERLAP_LIVE, maxRow);
-  // Positions of the cell's entries that start here along u, along v, and along both.
-  const startsU = arena.u32(SLOT_OVERLAP_STARTS_U, maxRow);
-  const startsV = arena.u32(SLOT_OVERLAP_STARTS_V, maxRow);
-  const startsBoth = arena.u32(SLOT_OVERLAP_STARTS_BOTH, maxRow);
   let exactTests = 0, cellPairs = 0;
   for (let c = 0; c < cellCount; c++) {
     const start = cellStart[c], end = cellStart[c + 1];
     if (end - start < 2) continue;
-    let nU = 0, nV = 0, nBoth = 0;
-    for (let i = start; i < end; i++) {
-      const e = entries[i];
-      if (e & HERE_U) startsU[nU++] = i;
-      if (e >= HERE_V) { startsV[nV++] = i; if (e & HERE_U) startsBoth[nBoth++] = i; }
-    }
     let liveN = -1; // live is made at the first marked entry (nothing is compacted before)
-    // First places in startsU / startsV / startsBoth past the current entry.
-    let pU = 0, pV = 0, pBoth = 0;
     for (let i = start; i < end - 1; i++) {
-      if (pU < nU && startsU[pU] === i) pU++;
-      if (pV < nV && startsV[pV] === i) pV++;
-      if (pBoth < nBoth && startsBoth[pBoth] === i) pBoth++;
       const ea = entries[i];
       const a = ea & TRIANGLE_BITS;
-      const aHereU = (ea & HERE_U) !== 0, aHereV = ea >= HERE_V;
       const aMinU = box[a * 4], aMinV = box[a * 4 + 1], aMaxU = box[a * 4 + 2], aMaxV = box[a * 4 + 3];
       let after = i; // entries at positions <= after have been paired with a
       if (flags[a] === 0) {
-        if (aHereU && aHereV) {
-          for (let j = i + 1; j < end; j++) {
-            cellPairs++;
-            const b = entries[j] & TRIANGLE_BITS;
-            // Boxes that only touch cannot overlap with positive area.
-            if (box[b * 4] >= aMaxU || aMinU >= box[b * 4 + 2] || box[b * 4 + 1] >= aMaxV || aMinV >= box[b * 4 + 3]) continue;
-            exactTests += testPair(a, b, flags, indices, uvs, touching, shell, stacked);
-            if (flags[a] !== 0) { after = j; break; }
-          }
-        } else {
-          // The later entries that start here along the axes a does not start on.
-          const list = aHereU ? startsV : aHereV ? startsU : startsBoth;
-          const listEnd = aHereU ? nV : aHereV ? nU : nBoth;
-          for (let p = aHereU ? pV : aHereV ? pU : pBoth; p < listEnd; p++) {
-            const j = list[p];
-            cellPairs++;
-            const b = entries[j] & TRIANGLE_BITS;
-            if (box[b * 4] >= aMaxU || aMinU >= box[b * 4 + 2] || box[b * 4 + 1] >= aMaxV || aMinV >= box[b * 4 + 3]) continue;
-            exactTests += testPair(a, b, flags, indices, uvs, touching, shell, stacked);
-            if (flags[a] !== 0) { after = j; break; }
-          }
+        for (let j = i + 1; j < end; j++) {
+          const eb = entries[j];
+          // The pair belongs to this cell when, on each axis, one of the two starts here.
+          if ((ea | eb) >>> 30 !== 3) continue;
+          cellPairs++;
+          const b = eb & TRIANGLE_BITS;
+          // Boxes that only touch cannot overlap with positive area.
+          if (box[b * 4] >= aMaxU || aMinU >= box[b * 4 + 2] || box[b * 4 + 1] >= aMaxV || aMinV >= box[b * 4 + 3]) continue;
+          exactTests += testPair(a, b, flags, indices, uvs, touching, shell, stacked);
+          if (flags[a] !== 0) { after = j; break; }
         }
         if (flags[a] === 0) continue;
       }
@@ -363,9 +332,9 @@ function pairsInCells(
         if (flags[b] !== 0) continue; // marked: dropped for good
         live[w++] = j;
         if (j <= after) continue;
+        if ((ea | eb) >>> 30 !== 3) continue;
         cellPairs++;
         if (box[b * 4] >= aMaxU || aMinU >= box[b * 4 + 2] || box[b * 4 + 1] >= aMaxV || aMinV >= box[b * 4 + 3]) continue;
-        if (!((aHereU || (eb & HERE_U) !== 0) && (aHereV || eb >= HERE_V))) continue;
         exactTests += testPair(a, b, flags, indices, uvs, touching, shell, stacked);
       }
       liveN = w;

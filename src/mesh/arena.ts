@@ -68,12 +68,8 @@ export const SLOT_SHELL_USABLE = 12;
 export const SLOT_OVERLAP_LIVE = 17;
 export const SLOT_OVERLAP_FLAGS = 18;
 export const SLOT_STACKED = 19;
-/** The UV-overlap check, per cell (one at a time): which of its entries start in it along u, along v, along both. */
-export const SLOT_OVERLAP_STARTS_U = 25;
-export const SLOT_OVERLAP_STARTS_V = 26;
-export const SLOT_OVERLAP_STARTS_BOTH = 27;
 /** diagnosePrimitive: per triangle whether it has no UV area (filled by the UV-overlap check), when no picture marks are wanted. */
-export const SLOT_DEGENERATE_UV = 28;
+export const SLOT_DEGENERATE_UV = 25;
 
 /** Smallest block a slot grows to, in bytes. */
 const MIN_BLOCK = 1 << 16;
