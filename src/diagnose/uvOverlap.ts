@@ -232,10 +232,9 @@ export function findUvOverlaps(
   }
   const cellCount = nu * nv;
 
-  // Cell lists in compressed rows: prefix sums of the counts, fill. Each entry carries its
-  // triangle, a copy of the triangle's box and where the triangle starts (bit 0: its first
-  // cell along u is this cell's column, bit 1: its first cell along v is this cell's row), so
-  // the pair search reads each cell's entries in one stream.
+  // Cell lists in compressed rows: prefix sums of the counts, fill. Each entry is its triangle
+  // and where the triangle starts (HERE_U, HERE_V; the cell ranges are made again from the
+  // boxes rather than kept per triangle).
   for (let c = 0; c < cellCount; c++) cellStart[c + 1] += cellStart[c];
   const entryTotal = cellStart[cellCount];
   const entries = arena.u32(SLOT_OVERLAP_ENTRIES, entryTotal);
