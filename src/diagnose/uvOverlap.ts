@@ -7,7 +7,7 @@
  * partitioning (cited from memory).
  */
 import {
-  SLOT_OVERLAP_BOX, SLOT_OVERLAP_CELLS, SLOT_OVERLAP_CLASS, SLOT_OVERLAP_CURSOR, SLOT_OVERLAP_ENTRIES, SLOT_OVERLAP_FLAGS,
+  SLOT_OVERLAP_BOX, SLOT_OVERLAP_CELLS, SLOT_OVERLAP_CLASS, SLOT_OVERLAP_ENTRIES, SLOT_OVERLAP_FLAGS,
   SLOT_OVERLAP_HASH, SLOT_OVERLAP_LIVE, SLOT_OVERLAP_ORDER, SLOT_OVERLAP_TABLE, SLOT_OVERLAP_USABLE,
   SLOT_SHELL_AREA, SLOT_SHELL_HASH_A, SLOT_SHELL_HASH_B, SLOT_SHELL_OF, SLOT_SHELL_PARENT, SLOT_SHELL_POINTS, SLOT_SHELL_SEEN,
   SLOT_SHELL_USABLE, SLOT_OVERLAP_POINT_HASH,
@@ -238,20 +238,23 @@ export function findUvOverlaps(
   for (let c = 0; c < cellCount; c++) cellStart[c + 1] += cellStart[c];
   const entryTotal = cellStart[cellCount];
   const entries = arena.u32(SLOT_OVERLAP_ENTRIES, entryTotal);
-  const cursor = arena.u32(SLOT_OVERLAP_CURSOR, cellCount);
-  cursor.set(cellStart.subarray(0, cellCount));
-  for (let t = 0; t < triangleCount; t++) {
+  // Filled from the back: cellStart[c + 1], the end of cell c, counts down to its start as the
+  // triangles are taken in descending order (so each cell lists them ascending); the starts
+  // then move down one place.
+  for (let t = triangleCount - 1; t >= 0; t--) {
     if (!usable[t]) continue;
     const bu0 = box[t * 4], bv0 = box[t * 4 + 1], bu1 = box[t * 4 + 2], bv1 = box[t * 4 + 3];
     const cu0 = cellOf(bu0, minU, inv, nu), cu1 = cellOf(bu1, minU, inv, nu);
     const cv0 = cellOf(bv0, minV, inv, nv), cv1 = cellOf(bv1, minV, inv, nv);
     for (let cv = cv0; cv <= cv1; cv++) {
       for (let cu = cu0; cu <= cu1; cu++) {
-        const pos = cursor[cv * nu + cu]++;
+        const pos = --cellStart[cv * nu + cu + 1];
         entries[pos] = t + (cu === cu0 ? HERE_U : 0) + (cv === cv0 ? HERE_V : 0);
       }
     }
   }
+  cellStart.copyWithin(0, 1, cellCount + 1);
+  cellStart[cellCount] = entryTotal;
 
   // Pairs within each cell; a pair is tested only in the cell of the lower-left corner of
   // the intersection of its bounding boxes, so once over the whole grid. That corner's cell

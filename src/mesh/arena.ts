@@ -55,8 +55,7 @@ export const SLOT_SHELL_OF = 1;
 export const SLOT_SHELL_AREA = 0;
 export const SLOT_OVERLAP_USABLE = 3;
 export const SLOT_OVERLAP_CELLS = 5;
-export const SLOT_OVERLAP_CURSOR = 11;
-/** Per vertex a hash of its UV point (the exact-copy search), dead before the cell cursors take the slot. */
+/** Per vertex a hash of its UV point (the exact-copy search). */
 export const SLOT_OVERLAP_POINT_HASH = 11;
 export const SLOT_OVERLAP_TABLE = 22;
 export const SLOT_SHELL_PARENT = 23;
