@@ -49,10 +49,7 @@ export function findBadNormals(
   positionHalfStep = 0,
   marks: Uint8Array | null = null,
 ): BadNormals {
-  assert(!marks || marks.length >= vertexCount, 'marks must hold one entry per vertex');
-  assert(indices.length >= triangleCount * 3, 'indices must hold 3 entries per triangle');
-  assert(positions.length >= vertexCount * 3, 'positions must hold 3 floats per vertex');
-  assert(normals.length >= vertexCount * 3, 'normals must hold 3 floats per vertex');
+  // The one pass checks the same contract (and words it the same way).
   return findDegenerateGeometryAndBadNormals(indices, positions, normals, triangleCount, vertexCount, unitTolerance, positionHalfStep, null, marks).badNormals;
 }
 
